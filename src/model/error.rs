@@ -1,0 +1,96 @@
+//! Validation problems, each with the JSON path where it was found.
+
+use std::fmt;
+
+use super::limits::MAX_REPORTED_PROBLEMS;
+
+/// One problem found in a model: where (a JSON path such as
+/// `steps[1].transitions[2][0]`) and what was expected.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Problem {
+    /// JSON path of the offending value; empty for the document as a whole.
+    pub path: String,
+    /// What is wrong and what was expected.
+    pub message: String,
+}
+
+impl fmt::Display for Problem {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        if self.path.is_empty() {
+            write!(f, "{}", self.message)
+        } else {
+            write!(f, "{}: {}", self.path, self.message)
+        }
+    }
+}
+
+/// Every problem found in one model (the first [`MAX_REPORTED_PROBLEMS`] of
+/// them, and a count of the rest).
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub struct Problems {
+    list: Vec<Problem>,
+    unlisted: usize,
+}
+
+impl Problems {
+    /// Records a problem at `path`.
+    pub fn push(&mut self, path: impl Into<String>, message: impl Into<String>) {
+        if self.list.len() < MAX_REPORTED_PROBLEMS {
+            self.list.push(Problem {
+                path: path.into(),
+                message: message.into(),
+            });
+        } else {
+            self.unlisted += 1;
+        }
+    }
+
+    /// True when nothing was recorded.
+    pub fn is_empty(&self) -> bool {
+        self.list.is_empty()
+    }
+
+    /// The recorded problems, in the order found.
+    pub fn list(&self) -> &[Problem] {
+        &self.list
+    }
+
+    /// How many further problems were found but not listed.
+    pub fn unlisted(&self) -> usize {
+        self.unlisted
+    }
+
+    /// Total number of problems found.
+    pub fn count(&self) -> usize {
+        self.list.len() + self.unlisted
+    }
+
+    /// One problem, for callers that found a single fault.
+    pub fn single(path: impl Into<String>, message: impl Into<String>) -> Self {
+        let mut p = Problems::default();
+        p.push(path, message);
+        p
+    }
+
+    /// Ok(()) when empty, otherwise the problems as an error.
+    pub fn into_result(self) -> Result<(), Problems> {
+        if self.is_empty() { Ok(()) } else { Err(self) }
+    }
+
+    /// One line per problem, and a last line counting unlisted ones.
+    pub fn lines(&self) -> Vec<String> {
+        let mut out: Vec<String> = self.list.iter().map(|p| p.to_string()).collect();
+        if self.unlisted > 0 {
+            out.push(format!("… and {} more problems", self.unlisted));
+        }
+        out
+    }
+}
+
+impl fmt::Display for Problems {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{}", self.lines().join("\n"))
+    }
+}
+
+impl std::error::Error for Problems {}

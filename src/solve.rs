@@ -1,0 +1,281 @@
+//! Exact solution of a finite-horizon MDP by backward induction, and exact
+//! evaluation of deterministic and stochastic policies.
+//!
+//! With steps h = 0..H−1 and V_H ≡ 0:
+//!
+//! ```text
+//! Q_h(s,a) = r̄_h(s,a) + γ · Σ_{s'} P_h(s'|s,a) · V_{h+1}(s')
+//! V_h(s)   = max_a Q_h(s,a)
+//! Δ_h(s,a) = V_h(s) − Q_h(s,a)          (the gap, ≥ 0)
+//! ```
+//!
+//! where r̄ is the mean reward and γ the discount (1 unless the file gives
+//! one). The optimal value of the model is Σ_s ρ(s)·V_0(s) for the start
+//! distribution ρ.
+//!
+//! **Ties:** the optimal policy takes, in each (h, s), the lowest-indexed
+//! action whose Q value is within [`TIE_TOLERANCE`]·max(1, |V_h(s)|) of the
+//! maximum, so values that are equal in exact arithmetic but differ in the
+//! last bits of floating point still pick the same action on every platform.
+//!
+//! # References
+//! - M. L. Puterman, *Markov Decision Processes: Discrete Stochastic Dynamic
+//!   Programming*, Wiley, 1994, §4.5 (the backward induction algorithm).
+//! - R. S. Sutton and A. G. Barto, *Reinforcement Learning: An Introduction*,
+//!   2nd ed., MIT Press, 2018, §4.1 (iterative policy evaluation).
+
+use ndarray::{Array2, Array3};
+
+use crate::model::Mdp;
+
+/// Relative tolerance within which two Q values count as tied.
+pub const TIE_TOLERANCE: f64 = 1e-12;
+
+/// The exact solution of a model.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Solution {
+    /// V*_h(s), shape (H+1, S); row H is zero.
+    pub v: Array2<f64>,
+    /// Q*_h(s,a), shape (H, S, A).
+    pub q: Array3<f64>,
+    /// An optimal policy π*_h(s), shape (H, S); ties as described in the module docs.
+    pub policy: Array2<u32>,
+    /// Σ_s ρ(s)·V*_0(s).
+    pub optimal_value: f64,
+}
+
+impl Solution {
+    /// Gaps Δ_h(s,a) = V*_h(s) − Q*_h(s,a), shape (H, S, A).
+    pub fn gaps(&self) -> Array3<f64> {
+        let (h, s, a) = self.q.dim();
+        Array3::from_shape_fn((h, s, a), |(hi, si, ai)| {
+            (self.v[[hi, si]] - self.q[[hi, si, ai]]).max(0.0)
+        })
+    }
+
+    /// The smallest positive gap over all (h, s, a), if any action is suboptimal
+    /// by more than the tie tolerance.
+    pub fn min_positive_gap(&self) -> Option<f64> {
+        self.gaps()
+            .iter()
+            .copied()
+            .filter(|&d| d > TIE_TOLERANCE)
+            .min_by(f64::total_cmp)
+    }
+}
+
+/// Σ_{s'} P(s'|row)·V(s') over one sparse row.
+#[inline]
+fn expect(next: &[u32], prob: &[f64], v: &[f64]) -> f64 {
+    let mut acc = 0.0;
+    for (&n, &p) in next.iter().zip(prob) {
+        acc += p * v[n as usize];
+    }
+    acc
+}
+
+/// Solves `m` exactly by backward induction.
+pub fn solve(m: &Mdp) -> Solution {
+    let (h_max, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
+    let gamma = m.discount();
+    let mut v = Array2::<f64>::zeros((h_max + 1, s_n));
+    let mut q = Array3::<f64>::zeros((h_max, s_n, a_n));
+    let mut policy = Array2::<u32>::zeros((h_max, s_n));
+    for h in (0..h_max).rev() {
+        let step = m.step(h);
+        let (mut done, rest) = v.view_mut().split_at(ndarray::Axis(0), h + 1);
+        let vnext = rest.row(0);
+        let vnext = vnext.as_slice().expect("rows are contiguous");
+        let mut vrow = done.row_mut(h);
+        let mut qh = q.index_axis_mut(ndarray::Axis(0), h);
+        let qh = qh.as_slice_mut().expect("contiguous");
+        let r = step.mean_rewards();
+        for s in 0..s_n {
+            let mut best = f64::NEG_INFINITY;
+            for a in 0..a_n {
+                let row = s * a_n + a;
+                let (next, prob) = step.row(row);
+                let x = r[row] + gamma * expect(next, prob, vnext);
+                qh[row] = x;
+                if x > best {
+                    best = x;
+                }
+            }
+            vrow[s] = best;
+            let tol = TIE_TOLERANCE * best.abs().max(1.0);
+            let pick = (0..a_n)
+                .find(|&a| qh[s * a_n + a] >= best - tol)
+                .expect("the maximum is attained");
+            policy[[h, s]] = pick as u32;
+        }
+    }
+    let optimal_value = start_value(m, v.row(0).as_slice().expect("contiguous"));
+    Solution {
+        v,
+        q,
+        policy,
+        optimal_value,
+    }
+}
+
+/// Σ_s ρ(s)·V(s).
+pub fn start_value(m: &Mdp, v0: &[f64]) -> f64 {
+    m.start().iter().zip(v0).map(|(p, v)| p * v).sum()
+}
+
+/// A policy to evaluate.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Policy {
+    /// π_h(s) ∈ 0..A, shape (H, S).
+    Deterministic(Array2<u32>),
+    /// π_h(a|s), shape (H, S, A); each (h, s) a distribution over actions.
+    Stochastic(Array3<f64>),
+}
+
+/// A policy whose shape or entries do not fit the model.
+#[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
+pub enum PolicyError {
+    /// The array has the wrong dimensions.
+    Shape { expected: Vec<usize>, found: Vec<usize> },
+    /// An action index ≥ A at (h, s).
+    Action { h: usize, s: usize, action: u32 },
+    /// Probabilities at (h, s) are negative, not finite, or do not sum to 1.
+    Distribution { h: usize, s: usize, sum: f64 },
+}
+
+impl std::fmt::Display for PolicyError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            PolicyError::Shape { expected, found } => {
+                write!(f, "policy has shape {found:?}, expected {expected:?}")
+            }
+            PolicyError::Action { h, s, action } => write!(
+                f,
+                "policy at step {} state {s}: action index {action} is out of range",
+                h + 1
+            ),
+            PolicyError::Distribution { h, s, sum } => write!(
+                f,
+                "policy at step {} state {s}: action probabilities must be ≥ 0 and sum to 1 (sum {sum})",
+                h + 1
+            ),
+        }
+    }
+}
+
+impl std::error::Error for PolicyError {}
+
+/// Exact values V^π_h(s) of `policy` on `m`, shape (H+1, S), row H zero:
+///
+/// ```text
+/// V^π_h(s) = Σ_a π_h(a|s) · ( r̄_h(s,a) + γ · Σ_{s'} P_h(s'|s,a) · V^π_{h+1}(s') )
+/// ```
+pub fn evaluate(m: &Mdp, policy: &Policy) -> Result<Array2<f64>, PolicyError> {
+    let (h_max, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
+    check_policy(policy, h_max, s_n, a_n)?;
+    let gamma = m.discount();
+    let mut v = Array2::<f64>::zeros((h_max + 1, s_n));
+    for h in (0..h_max).rev() {
+        let step = m.step(h);
+        let r = step.mean_rewards();
+        for s in 0..s_n {
+            let q = |a: usize| {
+                let row = s * a_n + a;
+                let (next, prob) = step.row(row);
+                let mut acc = 0.0;
+                for (&n, &p) in next.iter().zip(prob) {
+                    acc += p * v[[h + 1, n as usize]];
+                }
+                r[row] + gamma * acc
+            };
+            let x = match policy {
+                Policy::Deterministic(p) => q(p[[h, s]] as usize),
+                Policy::Stochastic(p) => (0..a_n)
+                    .filter(|&a| p[[h, s, a]] > 0.0)
+                    .map(|a| p[[h, s, a]] * q(a))
+                    .sum(),
+            };
+            v[[h, s]] = x;
+        }
+    }
+    Ok(v)
+}
+
+fn check_policy(policy: &Policy, h: usize, s: usize, a: usize) -> Result<(), PolicyError> {
+    match policy {
+        Policy::Deterministic(p) => {
+            if p.dim() != (h, s) {
+                return Err(PolicyError::Shape {
+                    expected: vec![h, s],
+                    found: p.shape().to_vec(),
+                });
+            }
+            for ((hi, si), &x) in p.indexed_iter() {
+                if x as usize >= a {
+                    return Err(PolicyError::Action { h: hi, s: si, action: x });
+                }
+            }
+        }
+        Policy::Stochastic(p) => {
+            if p.dim() != (h, s, a) {
+                return Err(PolicyError::Shape {
+                    expected: vec![h, s, a],
+                    found: p.shape().to_vec(),
+                });
+            }
+            for hi in 0..h {
+                for si in 0..s {
+                    let row = p.slice(ndarray::s![hi, si, ..]);
+                    let ok = row.iter().all(|&x| x.is_finite() && x >= 0.0);
+                    let sum: f64 = row.sum();
+                    if !ok || (sum - 1.0).abs() > crate::model::check::SUM_TOLERANCE {
+                        return Err(PolicyError::Distribution { h: hi, s: si, sum });
+                    }
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
+/// The solution as a JSON object: `optimal_value`, `v` [H][S], `q` [H][S][A],
+/// `policy` [H][S] (action indices), `gaps` [H][S][A], with the model's
+/// `states` and `actions` labels. Steps are 0-based array positions.
+pub fn solution_json(m: &Mdp, sol: &Solution) -> String {
+    use crate::model::json::{num, string};
+    let (h_max, s_n, a_n) = sol.q.dim();
+    let join = |xs: Vec<String>| format!("[{}]", xs.join(", "));
+    let labels = |ls: &[String]| join(ls.iter().map(|l| string(l)).collect());
+    let v = join(
+        (0..h_max)
+            .map(|h| join((0..s_n).map(|s| num(sol.v[[h, s]])).collect()))
+            .collect(),
+    );
+    let cube = |arr: &Array3<f64>| {
+        join(
+            (0..h_max)
+                .map(|h| {
+                    join(
+                        (0..s_n)
+                            .map(|s| join((0..a_n).map(|a| num(arr[[h, s, a]])).collect()))
+                            .collect(),
+                    )
+                })
+                .collect(),
+        )
+    };
+    let policy = join(
+        (0..h_max)
+            .map(|h| join((0..s_n).map(|s| sol.policy[[h, s]].to_string()).collect()))
+            .collect(),
+    );
+    format!(
+        "{{\n  \"optimal_value\": {},\n  \"horizon\": {h_max},\n  \"states\": {},\n  \"actions\": {},\n  \"v\": {v},\n  \"q\": {},\n  \"policy\": {policy},\n  \"gaps\": {}\n}}\n",
+        num(sol.optimal_value),
+        labels(m.states()),
+        labels(m.actions()),
+        cube(&sol.q),
+        cube(&sol.gaps()),
+    )
+}
