@@ -208,7 +208,11 @@ impl Fields {
     }
 
     /// Skips the next value of `map`, noting the unknown key.
-    pub fn skip<'de, M: MapAccess<'de>>(&mut self, map: &mut M, key: String) -> Result<(), M::Error> {
+    pub fn skip<'de, M: MapAccess<'de>>(
+        &mut self,
+        map: &mut M,
+        key: String,
+    ) -> Result<(), M::Error> {
         map.next_value::<IgnoredAny>()?;
         self.unknown.push(key);
         Ok(())

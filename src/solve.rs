@@ -137,7 +137,10 @@ pub enum Policy {
 #[non_exhaustive]
 pub enum PolicyError {
     /// The array has the wrong dimensions.
-    Shape { expected: Vec<usize>, found: Vec<usize> },
+    Shape {
+        expected: Vec<usize>,
+        found: Vec<usize>,
+    },
     /// An action index ≥ A at (h, s).
     Action { h: usize, s: usize, action: u32 },
     /// Probabilities at (h, s) are negative, not finite, or do not sum to 1.
@@ -213,7 +216,11 @@ fn check_policy(policy: &Policy, h: usize, s: usize, a: usize) -> Result<(), Pol
             }
             for ((hi, si), &x) in p.indexed_iter() {
                 if x as usize >= a {
-                    return Err(PolicyError::Action { h: hi, s: si, action: x });
+                    return Err(PolicyError::Action {
+                        h: hi,
+                        s: si,
+                        action: x,
+                    });
                 }
             }
         }

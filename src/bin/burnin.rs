@@ -38,6 +38,12 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Rewrite a model file in the canonical layout (fields in order, one
+    /// transition row per line) on standard output.
+    Tidy {
+        /// Model file (burnin-model v1), or - for standard input.
+        file: PathBuf,
+    },
     /// Write a generated model file to standard output.
     Generate {
         #[command(subcommand)]
@@ -182,6 +188,7 @@ fn main() -> ExitCode {
     let result = match cli.command {
         Command::Validate { file } => validate(&file),
         Command::Solve { file, json } => solve(&file, json),
+        Command::Tidy { file } => load(&file).and_then(|m| emit(&burnin::write_model(&m))),
         Command::Generate { kind, seed, output } => generate(kind, seed, output.as_deref()),
     };
     match result {

@@ -184,7 +184,11 @@ impl Garnet {
             ),
             notes: Some(format!(
                 "Garnet-style random model (Archibald, McKinnon & Thomas 1995), seed {seed}{}.",
-                if self.time_dependent { ", a fresh table per step" } else { "" }
+                if self.time_dependent {
+                    ", a fresh table per step"
+                } else {
+                    ""
+                }
             )),
             horizon: self.horizon,
             discount: None,
@@ -243,7 +247,7 @@ fn add(row: &mut Vec<(u32, f64)>, to: usize, p: f64) {
     if p <= 0.0 {
         return;
     }
-    let tidy = |x: f64| format!("{x:.15e}").parse::<f64>().unwrap_or(x);
+    let tidy = |x: f64| format!("{x:.14e}").parse::<f64>().unwrap_or(x);
     match row.iter_mut().find(|e| e.0 == to as u32) {
         Some(e) => e.1 = tidy(e.1 + p),
         None => row.push((to as u32, tidy(p))),
@@ -253,7 +257,12 @@ fn add(row: &mut Vec<(u32, f64)>, to: usize, p: f64) {
 impl RiverSwim {
     pub fn generate(&self) -> Result<Mdp, ParamError> {
         need_range("states", self.states, 2, 10_000)?;
-        need_range("horizon", self.horizon, 1, crate::model::limits::MAX_HORIZON)?;
+        need_range(
+            "horizon",
+            self.horizon,
+            1,
+            crate::model::limits::MAX_HORIZON,
+        )?;
         need_prob("p_forward", self.p_forward)?;
         need_prob("p_back", self.p_back)?;
         if self.p_forward + self.p_back > 1.0 {
@@ -272,7 +281,11 @@ impl RiverSwim {
             add(&mut row, s.saturating_sub(1), self.p_back);
             add(&mut row, s, 1.0 - self.p_forward - self.p_back);
             transitions.push(row);
-            rewards.push(Reward::Fixed(if s == n - 1 { self.big_reward } else { 0.0 }));
+            rewards.push(Reward::Fixed(if s == n - 1 {
+                self.big_reward
+            } else {
+                0.0
+            }));
         }
         Ok(finish(MdpParts {
             name: format!("River chain S={} H={}", n, self.horizon),
@@ -331,7 +344,12 @@ impl Grid {
         if self.width * self.height < 2 {
             return Err(bad("width", "the grid needs at least two cells"));
         }
-        need_range("horizon", self.horizon, 1, crate::model::limits::MAX_HORIZON)?;
+        need_range(
+            "horizon",
+            self.horizon,
+            1,
+            crate::model::limits::MAX_HORIZON,
+        )?;
         need_prob("slip", self.slip)?;
         need_prob("goal_reward", self.goal_reward)?;
         let (w, hgt) = (self.width, self.height);
@@ -450,9 +468,14 @@ impl Lock {
             let mut transitions = Vec::new();
             let mut rewards = Vec::new();
             for s in 0..=h {
+                let right_action = code.get(s).copied();
                 for act in 0..a {
-                    let right = s < h && act == code[s];
-                    let next = if right { (s + 1).min(h - 1) as u32 } else { jam };
+                    let right = right_action == Some(act);
+                    let next = if right {
+                        (s + 1).min(h - 1) as u32
+                    } else {
+                        jam
+                    };
                     transitions.push(vec![(next, 1.0)]);
                     rewards.push(pay(right, s == h - 1));
                 }
@@ -548,15 +571,24 @@ impl LowerBound {
         need_range("actions", self.actions, 2, 50)?;
         need_range("depth", self.depth, 1, 12)?;
         let a = self.actions;
-        let leaves = a.checked_pow(self.depth as u32).filter(|&l| l <= 50_000).ok_or_else(|| {
-            bad("depth", "actions^depth leaves is over 50000")
-        })?;
+        let leaves = a
+            .checked_pow(self.depth as u32)
+            .filter(|&l| l <= 50_000)
+            .ok_or_else(|| bad("depth", "actions^depth leaves is over 50000"))?;
         need_range("wait_until", self.wait_until, 0, 5_000)?;
         let first_leaf_step = self.depth + 1; // earliest step at which a leaf is reached
         let last_leaf_step = self.wait_until + self.depth + 1; // latest (forced)
-        need_range("horizon", self.horizon, last_leaf_step + 2, crate::model::limits::MAX_HORIZON)?;
+        need_range(
+            "horizon",
+            self.horizon,
+            last_leaf_step + 2,
+            crate::model::limits::MAX_HORIZON,
+        )?;
         if !(self.epsilon > 0.0 && self.epsilon <= 0.5) {
-            return Err(bad("epsilon", format!("{} is outside (0, 0.5]", self.epsilon)));
+            return Err(bad(
+                "epsilon",
+                format!("{} is outside (0, 0.5]", self.epsilon),
+            ));
         }
         let mut rng = rng(seed);
         let span = last_leaf_step - first_leaf_step + 1;
@@ -674,7 +706,12 @@ impl Bandit {
             let mut rng = rng(seed);
             (0..self.arms).map(|_| rng.random::<f64>()).collect()
         } else {
-            need_range("arms", self.means.len(), 1, crate::model::limits::MAX_ACTIONS)?;
+            need_range(
+                "arms",
+                self.means.len(),
+                1,
+                crate::model::limits::MAX_ACTIONS,
+            )?;
             for &m in &self.means {
                 need_prob("means", m)?;
             }

@@ -74,10 +74,10 @@ impl Checker {
         if let Some(n) = &m.notes {
             self.check_notes(n);
         }
-        self.check_horizon(m.horizon as f64);
-        self.check_labels("states", &m.states, "state", MAX_STATES);
-        self.check_labels("actions", &m.actions, "action", MAX_ACTIONS);
-        if !self.is_clean() {
+        let sized = self.check_horizon(m.horizon as f64)
+            & self.check_labels("states", &m.states, "state", MAX_STATES)
+            & self.check_labels("actions", &m.actions, "action", MAX_ACTIONS);
+        if !sized {
             return;
         }
         let (s, a, h) = (m.states.len(), m.actions.len(), m.horizon);
@@ -159,18 +159,19 @@ impl Checker {
         }
     }
 
-    /// Non-empty, unique, non-empty labels, at most `max` of them.
-    pub fn check_labels(&mut self, path: &str, labels: &[String], what: &str, max: usize) {
+    /// Non-empty, unique, non-empty labels, at most `max` of them. Returns
+    /// whether their number is usable (so later checks can rely on it).
+    pub fn check_labels(&mut self, path: &str, labels: &[String], what: &str, max: usize) -> bool {
         if labels.is_empty() {
             self.push(path, format!("expected at least one {what}"));
-            return;
+            return false;
         }
         if labels.len() > max {
             self.push(
                 path,
                 format!("{} {what}s is over the limit of {max}", labels.len()),
             );
-            return;
+            return false;
         }
         let mut seen: HashSet<&str> = HashSet::with_capacity(labels.len());
         for (i, l) in labels.iter().enumerate() {
@@ -188,6 +189,7 @@ impl Checker {
                 );
             }
         }
+        true
     }
 
     /// H·S·A within [`MAX_CELLS`].
@@ -211,9 +213,7 @@ impl Checker {
         if total > MAX_ENTRIES {
             self.push(
                 "steps",
-                format!(
-                    "{total} transition entries is over the limit of {MAX_ENTRIES}"
-                ),
+                format!("{total} transition entries is over the limit of {MAX_ENTRIES}"),
             );
             false
         } else {
@@ -249,7 +249,10 @@ impl Checker {
         if d.len() != n {
             self.push(
                 path,
-                format!("expected {n} probabilities (one per state), found {}", d.len()),
+                format!(
+                    "expected {n} probabilities (one per state), found {}",
+                    d.len()
+                ),
             );
             return;
         }
@@ -280,7 +283,10 @@ impl Checker {
     /// One sparse transition row over `n` states.
     pub fn check_row(&mut self, path: &str, row: &[(u32, f64)], n: usize) {
         if row.is_empty() {
-            self.push(path, "expected at least one [next_state, probability] entry");
+            self.push(
+                path,
+                "expected at least one [next_state, probability] entry",
+            );
             return;
         }
         let mut seen: HashSet<u32> = HashSet::with_capacity(row.len());
@@ -289,7 +295,10 @@ impl Checker {
             if next as usize >= n {
                 self.push(
                     format!("{path}[{k}][0]"),
-                    format!("state index {next} is out of range (S = {n}, indices 0..{})", n - 1),
+                    format!(
+                        "state index {next} is out of range (S = {n}, indices 0..{})",
+                        n - 1
+                    ),
                 );
                 ok = false;
             } else if !seen.insert(next) {

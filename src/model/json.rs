@@ -13,7 +13,7 @@ use serde::de::{MapAccess, SeqAccess};
 
 use super::limits::{MAX_FILE_BYTES, MAX_HORIZON};
 use super::{Mdp, MdpParts, Problems, Reward, StepParts};
-use crate::lax::{syntax_problem, Accept, Fields, Lax, Reader};
+use crate::lax::{Accept, Fields, Lax, Reader, syntax_problem};
 
 /// The `format` value of a model file.
 pub const MODEL_FORMAT: &str = "burnin-model";
@@ -21,8 +21,18 @@ pub const MODEL_FORMAT: &str = "burnin-model";
 pub const MODEL_VERSION: u64 = 1;
 
 const MODEL_FIELDS: &[&str] = &[
-    "format", "version", "name", "notes", "horizon", "discount", "states", "actions", "start",
-    "stationary", "steps", "layout",
+    "format",
+    "version",
+    "name",
+    "notes",
+    "horizon",
+    "discount",
+    "states",
+    "actions",
+    "start",
+    "stationary",
+    "steps",
+    "layout",
 ];
 
 #[derive(Default)]
@@ -67,6 +77,7 @@ impl Accept for RawModel {
     }
 }
 
+/// An array of arrays, each level read leniently.
 type Table<T> = Lax<Vec<Lax<Vec<T>>>>;
 
 #[derive(Default)]
@@ -161,7 +172,7 @@ impl Accept for RawReward {
 
 #[derive(Default)]
 struct RawLayout {
-    positions: Option<Lax<Vec<Lax<Vec<Lax<f64>>>>>>,
+    positions: Option<Table<Lax<f64>>>,
     fields: Fields,
 }
 
@@ -200,7 +211,12 @@ pub fn parse_model_parts(text: &str) -> Result<MdpParts, Problems> {
     let raw: Lax<RawModel> =
         serde_json::from_str(text).map_err(|e| Problems::single("", syntax_problem(&e)))?;
     let mut problems = Problems::default();
-    let parts = convert(raw, &mut Reader { problems: &mut problems });
+    let parts = convert(
+        raw,
+        &mut Reader {
+            problems: &mut problems,
+        },
+    );
     match parts {
         Some(p) if problems.is_empty() => Ok(p),
         _ => Err(problems),
@@ -221,9 +237,9 @@ pub fn check_header(
     };
     if f != want {
         let hint = match f.as_str() {
-            "burnin-model" | "burnin-experiment" | "burnin-results" => {
-                format!(" (this is a {} file)", f.trim_start_matches("burnin-"))
-            }
+            "burnin-model" => " (this is a model file)".to_string(),
+            "burnin-experiment" => " (this is an experiment file)".to_string(),
+            "burnin-results" => " (this is a results file)".to_string(),
             _ => String::new(),
         };
         r.problems
@@ -348,10 +364,14 @@ fn layout(r: &mut Reader, l: Lax<RawLayout>) -> Option<Vec<[f64; 2]>> {
     let mut out = Vec::with_capacity(list.len());
     for (i, p) in list.into_iter().enumerate() {
         let path = format!("layout.positions[{i}]");
-        let xy = r.take(&path, p, "an [x, y] pair").and_then(|v| numbers(r, &path, v))?;
+        let xy = r
+            .take(&path, p, "an [x, y] pair")
+            .and_then(|v| numbers(r, &path, v))?;
         if xy.len() != 2 {
-            r.problems
-                .push(path, format!("expected an [x, y] pair, found {} numbers", xy.len()));
+            r.problems.push(
+                path,
+                format!("expected an [x, y] pair, found {} numbers", xy.len()),
+            );
             return None;
         }
         out.push([xy[0], xy[1]]);
@@ -380,8 +400,11 @@ fn table<T, U>(
     let mut ok = true;
     for (si, row) in rows.into_iter().enumerate() {
         let rp = format!("{path}[{si}]");
-        let Some(row) = r.take(&rp, row, &format!("an array of {a} entries (one per action)"))
-        else {
+        let Some(row) = r.take(
+            &rp,
+            row,
+            &format!("an array of {a} entries (one per action)"),
+        ) else {
             ok = false;
             continue;
         };
@@ -406,7 +429,8 @@ fn table<T, U>(
 
 fn step(r: &mut Reader, path: &str, st: Lax<RawStep>, s: usize, a: usize) -> Option<StepParts> {
     let st = r.take(path, st, "an object with \"transitions\" and \"rewards\"")?;
-    st.fields.finish(path, &["transitions", "rewards"], r.problems);
+    st.fields
+        .finish(path, &["transitions", "rewards"], r.problems);
     let transitions = table(
         r,
         &format!("{path}.transitions"),
@@ -422,7 +446,11 @@ fn step(r: &mut Reader, path: &str, st: Lax<RawStep>, s: usize, a: usize) -> Opt
     })
 }
 
-fn transition_row(r: &mut Reader, path: &str, v: Lax<Vec<Lax<RawEntry>>>) -> Option<Vec<(u32, f64)>> {
+fn transition_row(
+    r: &mut Reader,
+    path: &str,
+    v: Lax<Vec<Lax<RawEntry>>>,
+) -> Option<Vec<(u32, f64)>> {
     let list = r.take(path, v, "an array of [next_state, probability] pairs")?;
     let mut out = Vec::with_capacity(list.len());
     let mut ok = true;
@@ -435,14 +463,24 @@ fn transition_row(r: &mut Reader, path: &str, v: Lax<Vec<Lax<RawEntry>>>) -> Opt
         if e.len != 2 {
             r.problems.push(
                 ep,
-                format!("expected a [next_state, probability] pair, found {} elements", e.len),
+                format!(
+                    "expected a [next_state, probability] pair, found {} elements",
+                    e.len
+                ),
             );
             ok = false;
             continue;
         }
         let next = r
             .take(&format!("{ep}[0]"), e.next, "a state index")
-            .and_then(|n| r.whole(&format!("{ep}[0]"), n, u32::MAX as f64, "a state index (a whole number ≥ 0)"));
+            .and_then(|n| {
+                r.whole(
+                    &format!("{ep}[0]"),
+                    n,
+                    u32::MAX as f64,
+                    "a state index (a whole number ≥ 0)",
+                )
+            });
         let prob = r.take(&format!("{ep}[1]"), e.prob, "a probability");
         match (next, prob) {
             (Some(n), Some(p)) => out.push((n as u32, p)),
@@ -464,7 +502,8 @@ fn pair(r: &mut Reader, path: &str, v: Lax<Vec<Lax<f64>>>, what: &str) -> Option
 }
 
 fn reward(r: &mut Reader, path: &str, v: Lax<RawReward>) -> Option<Reward> {
-    const EXPECTED: &str = "a number or an object {\"bernoulli\": p}, {\"uniform\": [lo, hi]} or {\"beta\": [α, β]}";
+    const EXPECTED: &str =
+        "a number or an object {\"bernoulli\": p}, {\"uniform\": [lo, hi]} or {\"beta\": [α, β]}";
     match r.take(path, v, EXPECTED)? {
         RawReward::Fixed(x) => Some(Reward::Fixed(x)),
         RawReward::Empty => {
@@ -490,7 +529,9 @@ fn reward(r: &mut Reader, path: &str, v: Lax<RawReward>) -> Option<Reward> {
                 "bernoulli" => scalar
                     .and_then(|s| r.take(&kp, s, "a probability"))
                     .map(Reward::Bernoulli),
-                "uniform" => pair(r, &kp, value, "a pair [lo, hi]").map(|(a, b)| Reward::Uniform(a, b)),
+                "uniform" => {
+                    pair(r, &kp, value, "a pair [lo, hi]").map(|(a, b)| Reward::Uniform(a, b))
+                }
                 "beta" => pair(r, &kp, value, "a pair [α, β]").map(|(a, b)| Reward::Beta(a, b)),
                 _ => {
                     r.problems.push(
@@ -551,8 +592,14 @@ pub fn write_parts(m: &MdpParts) -> String {
     if let Some(g) = m.discount {
         o.push_str(&format!("  \"discount\": {},\n", num(g)));
     }
-    o.push_str(&format!("  \"states\": {},\n", list(&m.states, |s| string(s))));
-    o.push_str(&format!("  \"actions\": {},\n", list(&m.actions, |s| string(s))));
+    o.push_str(&format!(
+        "  \"states\": {},\n",
+        list(&m.states, |s| string(s))
+    ));
+    o.push_str(&format!(
+        "  \"actions\": {},\n",
+        list(&m.actions, |s| string(s))
+    ));
     o.push_str(&format!("  \"start\": {},\n", list(&m.start, |&p| num(p))));
     o.push_str(&format!("  \"stationary\": {},\n", m.stationary));
     o.push_str("  \"steps\": [\n");

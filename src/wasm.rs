@@ -1,0 +1,103 @@
+//! The wasm32 bindings: converts between JS values and core types, nothing
+//! more. Heavy arrays cross as typed arrays; problems as plain objects.
+//!
+//! **Invariant:** no logic lives here that a native test cannot reach; every
+//! function is a conversion around a core call.
+
+use js_sys::{Array, Float64Array, Object, Reflect, Uint32Array};
+use wasm_bindgen::prelude::*;
+
+use crate::model::{Mdp, Problems};
+
+fn set(obj: &Object, key: &str, value: impl Into<JsValue>) {
+    Reflect::set(obj, &JsValue::from_str(key), &value.into()).expect("setting a plain object");
+}
+
+/// `{ok: false, problems: [{path, message}], unlisted}`.
+fn problems_value(p: &Problems) -> JsValue {
+    let obj = Object::new();
+    set(&obj, "ok", false);
+    let list = Array::new();
+    for pr in p.list() {
+        let o = Object::new();
+        set(&o, "path", pr.path.as_str());
+        set(&o, "message", pr.message.as_str());
+        list.push(&o);
+    }
+    set(&obj, "problems", list);
+    set(&obj, "unlisted", p.unlisted() as u32);
+    obj.into()
+}
+
+fn summary(obj: &Object, m: &Mdp) {
+    set(obj, "ok", true);
+    set(obj, "name", m.name());
+    set(obj, "notes", m.notes().unwrap_or(""));
+    set(obj, "states", labels(m.states()));
+    set(obj, "actions", labels(m.actions()));
+    set(obj, "horizon", m.horizon() as u32);
+    set(obj, "stationary", m.is_stationary());
+    set(obj, "entries", m.entries() as u32);
+}
+
+fn labels(ls: &[String]) -> Array {
+    ls.iter().map(|s| JsValue::from_str(s)).collect()
+}
+
+/// Checks a model file's text: `{ok: true, name, states, actions, horizon,
+/// stationary, entries}` or `{ok: false, problems, unlisted}`.
+#[wasm_bindgen(js_name = checkModel)]
+pub fn check_model(text: &str) -> JsValue {
+    match crate::parse_model(text) {
+        Ok(m) => {
+            let obj = Object::new();
+            summary(&obj, &m);
+            obj.into()
+        }
+        Err(p) => problems_value(&p),
+    }
+}
+
+/// Solves a model file's text: the summary plus `optimal_value`, `v`
+/// (Float64Array, H·S, row-major [h][s]), `q` (Float64Array, H·S·A), `gaps`
+/// (Float64Array, H·S·A) and `policy` (Uint32Array, H·S); or the problems.
+#[wasm_bindgen(js_name = solveModel)]
+pub fn solve_model(text: &str) -> JsValue {
+    let m = match crate::parse_model(text) {
+        Ok(m) => m,
+        Err(p) => return problems_value(&p),
+    };
+    let sol = crate::solve::solve(&m);
+    let obj = Object::new();
+    summary(&obj, &m);
+    set(&obj, "optimal_value", sol.optimal_value);
+    let h = m.horizon();
+    let v = sol.v.slice(ndarray::s![..h, ..]);
+    let v: Vec<f64> = v.iter().copied().collect();
+    set(&obj, "v", Float64Array::from(v.as_slice()));
+    set(
+        &obj,
+        "q",
+        Float64Array::from(sol.q.as_slice().expect("contiguous")),
+    );
+    set(
+        &obj,
+        "gaps",
+        Float64Array::from(sol.gaps().as_slice().expect("contiguous")),
+    );
+    set(
+        &obj,
+        "policy",
+        Uint32Array::from(sol.policy.as_slice().expect("contiguous")),
+    );
+    obj.into()
+}
+
+/// The canonical text of a model file (what saving writes).
+#[wasm_bindgen(js_name = formatModel)]
+pub fn format_model(text: &str) -> JsValue {
+    match crate::parse_model(text) {
+        Ok(m) => JsValue::from_str(&crate::write_model(&m)),
+        Err(p) => problems_value(&p),
+    }
+}
