@@ -1,0 +1,264 @@
+//! The `burnin` binary: exit codes, messages and outputs, run as a user would.
+
+mod common;
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output, Stdio};
+
+/// A scratch folder removed when dropped.
+struct Scratch(PathBuf);
+
+impl Scratch {
+    fn new(tag: &str) -> Scratch {
+        let p = std::env::temp_dir().join(format!("burnin-cli-{tag}-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&p);
+        std::fs::create_dir_all(&p).unwrap();
+        Scratch(p)
+    }
+    fn file(&self, name: &str, text: &str) -> PathBuf {
+        let p = self.0.join(name);
+        std::fs::write(&p, text).unwrap();
+        p
+    }
+}
+
+impl Drop for Scratch {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
+}
+
+struct Run {
+    code: i32,
+    stdout: String,
+    stderr: String,
+}
+
+fn burnin(args: &[&str]) -> Run {
+    let out: Output = Command::new(env!("CARGO_BIN_EXE_burnin"))
+        .args(args)
+        .stdin(Stdio::null())
+        .output()
+        .expect("the binary runs");
+    Run {
+        code: out.status.code().expect("exited, not killed by a signal"),
+        stdout: String::from_utf8(out.stdout).unwrap(),
+        stderr: String::from_utf8(out.stderr).unwrap(),
+    }
+}
+
+fn p(path: &Path) -> &str {
+    path.to_str().unwrap()
+}
+
+#[test]
+fn every_demo_model_validates_and_solves() {
+    let demos = common::demo_files();
+    assert!(demos.len() >= 4, "at least four demo models");
+    for f in demos {
+        let v = burnin(&["validate", p(&f)]);
+        assert_eq!(v.code, 0, "{}: {}", f.display(), v.stderr);
+        assert!(v.stdout.starts_with("ok: "), "{}", v.stdout);
+        let s = burnin(&["solve", "--json", p(&f)]);
+        assert_eq!(s.code, 0);
+        let j: serde_json::Value = serde_json::from_str(&s.stdout).unwrap();
+        let m = burnin::parse_model(&std::fs::read_to_string(&f).unwrap()).unwrap();
+        let sol = burnin::solve::solve(&m);
+        assert_eq!(j["optimal_value"].as_f64().unwrap(), sol.optimal_value);
+        assert_eq!(j["v"].as_array().unwrap().len(), m.horizon());
+        assert_eq!(j["q"][0].as_array().unwrap().len(), m.n_states());
+        assert_eq!(j["q"][0][0].as_array().unwrap().len(), m.n_actions());
+        assert_eq!(j["policy"][0].as_array().unwrap().len(), m.n_states());
+        assert!(
+            m.notes().is_some_and(|n| !n.is_empty()),
+            "demo models carry a description"
+        );
+        // Canonical layout: tidy changes nothing.
+        let t = burnin(&["tidy", p(&f)]);
+        assert_eq!(
+            t.stdout,
+            std::fs::read_to_string(&f).unwrap(),
+            "{} is tidy",
+            f.display()
+        );
+    }
+}
+
+#[test]
+fn validate_prints_a_summary_line() {
+    let demo = common::demo_files()
+        .into_iter()
+        .find(|f| f.ends_with("seed-trial.json"))
+        .unwrap();
+    let r = burnin(&["validate", p(&demo)]);
+    assert_eq!(
+        r.stdout,
+        "ok: \"Seed trial\": S=1 A=6 H=1, 1 step table (stationary), 6 transition entries\n"
+    );
+}
+
+#[test]
+fn invalid_files_exit_1_with_one_line_per_problem() {
+    let d = Scratch::new("invalid");
+    let f = d.file(
+        "bad.json",
+        r#"{"format": "burnin-model", "version": 1, "horizon": 2,
+            "states": ["a", "b"], "actions": ["x"], "start": [0.5, 0.4],
+            "steps": [{"transitions": [[[[0, 0.97]]], [[[5, 1.0]]]], "rewards": [[0.5], [2]]}]}"#,
+    );
+    let r = burnin(&["validate", p(&f)]);
+    assert_eq!(r.code, 1);
+    assert_eq!(
+        r.stderr,
+        "start: probabilities sum to 0.9000, expected 1\n\
+         steps[0].transitions[0][0]: probabilities sum to 0.9700, expected 1\n\
+         steps[0].transitions[1][0][0][0]: state index 5 is out of range (S = 2, indices 0..1)\n"
+    );
+    assert_eq!(burnin(&["solve", p(&f)]).code, 1);
+    let g = d.file("garbage.json", "\u{1}not json");
+    let r = burnin(&["solve", "--json", p(&g)]);
+    assert_eq!(r.code, 1);
+    assert!(
+        r.stderr.starts_with("not valid JSON: line 1, column 1:"),
+        "{}",
+        r.stderr
+    );
+    let bin = d.0.join("bytes.json");
+    std::fs::write(&bin, [0xff, 0xfe, 0x00]).unwrap();
+    let r = burnin(&["validate", p(&bin)]);
+    assert_eq!(r.code, 1);
+    assert!(r.stderr.contains("not UTF-8 text"), "{}", r.stderr);
+}
+
+#[test]
+fn usage_and_unreadable_files_exit_2() {
+    assert_eq!(burnin(&[]).code, 2);
+    assert_eq!(burnin(&["solve"]).code, 2);
+    assert_eq!(burnin(&["frobnicate"]).code, 2);
+    let r = burnin(&["validate", "/nonexistent/model.json"]);
+    assert_eq!(r.code, 2);
+    assert!(
+        r.stderr
+            .starts_with("burnin: cannot read /nonexistent/model.json:")
+    );
+    assert_eq!(burnin(&["--help"]).code, 0);
+}
+
+#[test]
+fn solve_prints_a_readable_table() {
+    let demo = common::demo_files()
+        .into_iter()
+        .find(|f| f.ends_with("seed-trial.json"))
+        .unwrap();
+    let r = burnin(&["solve", p(&demo)]);
+    assert_eq!(r.code, 0);
+    let lines: Vec<&str> = r.stdout.lines().collect();
+    assert_eq!(lines[1], "optimal value  0.550000");
+    assert!(lines[3].contains("best action"));
+    // One row: step 1, the single state, V* = 0.55, best arm fen millet.
+    assert!(lines[4].starts_with("   1  plot"));
+    assert!(lines[4].contains("0.550000  fen millet"));
+}
+
+#[test]
+fn generate_lists_its_kinds_and_every_kind_writes_a_valid_model() {
+    let help = burnin(&["generate", "--help"]);
+    assert_eq!(help.code, 0);
+    for kind in ["random", "river", "grid", "lock", "lower-bound", "bandit"] {
+        assert!(help.stdout.contains(kind), "help lists {kind}");
+    }
+    let d = Scratch::new("generate");
+    let cases: &[&[&str]] = &[
+        &[
+            "random",
+            "--states",
+            "8",
+            "--successors",
+            "2",
+            "--time-dependent",
+        ],
+        &["river", "--states", "4"],
+        &["grid", "--width", "3", "--height", "2", "--slip", "0.2"],
+        &["lock", "--horizon", "4", "--time-dependent"],
+        &["lower-bound", "--depth", "1", "--horizon", "8"],
+        &["bandit", "--means", "0.1,0.9"],
+    ];
+    for args in cases {
+        let out = d.0.join(format!("{}.json", args[0]));
+        let mut a = vec!["generate"];
+        a.extend_from_slice(args);
+        a.extend_from_slice(&["--seed", "4", "--output", p(&out)]);
+        let r = burnin(&a);
+        assert_eq!(r.code, 0, "{args:?}: {}", r.stderr);
+        assert_eq!(burnin(&["validate", p(&out)]).code, 0, "{args:?}");
+        // Same seed, same file on stdout.
+        let mut b = vec!["generate"];
+        b.extend_from_slice(args);
+        b.extend_from_slice(&["--seed", "4"]);
+        assert_eq!(burnin(&b).stdout, std::fs::read_to_string(&out).unwrap());
+    }
+    let r = burnin(&["generate", "bandit", "--means", "0.1,0.9"]);
+    assert_eq!(
+        serde_json::from_str::<serde_json::Value>(&r.stdout).unwrap()["actions"],
+        serde_json::json!(["arm 0", "arm 1"])
+    );
+}
+
+#[test]
+fn bad_generator_parameters_name_the_option() {
+    let r = burnin(&["generate", "random", "--states", "3", "--successors", "5"]);
+    assert_eq!(r.code, 1);
+    assert_eq!(r.stderr, "--successors: 5 is outside 1..=3\n");
+    let r = burnin(&["generate", "river", "--p-forward", "0.8", "--p-back", "0.5"]);
+    assert_eq!(r.stderr, "--p-back: p_forward + p_back must be at most 1\n");
+    assert_eq!(burnin(&["generate", "grid", "--width", "two"]).code, 2);
+}
+
+#[test]
+fn standard_input_is_read_for_dash() {
+    let demo = &common::demo_files()[0];
+    let out = Command::new(env!("CARGO_BIN_EXE_burnin"))
+        .args(["validate", "-"])
+        .stdin(std::fs::File::open(demo).unwrap())
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+}
+
+/// No input, however broken, makes the reader panic: every prefix of a demo
+/// file, and the file with each of many bytes replaced, reads to Ok or to
+/// problems (common practice: truncation and byte-flip mutation).
+#[test]
+fn broken_files_never_panic() {
+    let text = std::fs::read_to_string(
+        common::demo_files()
+            .into_iter()
+            .find(|f| f.ends_with("night-ferry.json"))
+            .unwrap(),
+    )
+    .unwrap();
+    let bytes = text.as_bytes();
+    for cut in 0..text.trim_end().len() {
+        if let Ok(s) = std::str::from_utf8(&bytes[..cut]) {
+            assert!(
+                burnin::parse_model(s).is_err(),
+                "a strict prefix is never a whole model"
+            );
+        }
+    }
+    let subs = [
+        b'0', b'9', b'-', b'[', b']', b'{', b'}', b',', b'"', b'e', b'.', b' ',
+    ];
+    let mut changed = 0;
+    for (i, _) in bytes.iter().enumerate().step_by(3) {
+        for &c in &subs {
+            let mut b = bytes.to_vec();
+            b[i] = c;
+            if let Ok(s) = std::str::from_utf8(&b) {
+                let _ = burnin::parse_model(s).map(|m| burnin::solve::solve(&m));
+                changed += 1;
+            }
+        }
+    }
+    assert!(changed > 10_000);
+}
