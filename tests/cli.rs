@@ -85,6 +85,27 @@ fn every_demo_model_validates_and_solves() {
 }
 
 #[test]
+fn the_demo_index_lists_every_demo_model_and_opens_one() {
+    let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models");
+    let index: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.join("index.json")).unwrap()).unwrap();
+    let mut listed: Vec<String> = index["models"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v.as_str().unwrap().to_owned())
+        .collect();
+    assert!(listed.contains(&index["default"].as_str().unwrap().to_owned()));
+    listed.sort();
+    let mut files: Vec<String> = common::demo_files()
+        .iter()
+        .map(|p| p.file_name().unwrap().to_string_lossy().into_owned())
+        .collect();
+    files.sort();
+    assert_eq!(listed, files);
+}
+
+#[test]
 fn validate_prints_a_summary_line() {
     let demo = common::demo_files()
         .into_iter()

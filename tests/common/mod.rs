@@ -72,13 +72,13 @@ pub fn random_model(seed: u64, reward_lo: f64) -> Mdp {
     .expect("the random test model is valid")
 }
 
-/// The repository's `demo-models/*.json` files.
+/// The repository's demo model files (`demo-models/*.json` but the index).
 pub fn demo_files() -> Vec<std::path::PathBuf> {
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models");
     let mut v: Vec<_> = std::fs::read_dir(dir)
         .expect("demo-models/ exists")
         .map(|e| e.unwrap().path())
-        .filter(|p| p.extension().is_some_and(|e| e == "json"))
+        .filter(|p| p.extension().is_some_and(|e| e == "json") && !p.ends_with("index.json"))
         .collect();
     v.sort();
     v

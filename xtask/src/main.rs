@@ -1,1 +1,252 @@
-fn main() {}
+//! Build, serve and test automation, written once and called by the README
+//! and by `.ci/run`:
+//!
+//! - `cargo xtask serve [--port N]`: build the wasm core into `www/pkg`, copy
+//!   the demo models into `www/demo-models`, and serve `www/` on 127.0.0.1.
+//! - `cargo xtask test`: formatting, clippy, every cargo test, the wasm
+//!   build, and the headless-Chromium checks of the page.
+//! - `cargo xtask wasm`: only the wasm build.
+//!
+//! Missing tools are installed when possible: the wasm32 target (rustup), the
+//! wasm-bindgen CLI pinned to the crate's version (cargo install), Chromium
+//! (apt-get, as root), and the browser test's npm packages (npm ci).
+
+mod serve;
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, ExitCode};
+
+/// Must equal the `wasm-bindgen` pin in the root Cargo.toml (checked by a test below).
+const WASM_BINDGEN_VERSION: &str = "0.2.130";
+const WASM_TARGET: &str = "wasm32-unknown-unknown";
+
+type Result<T> = std::result::Result<T, String>;
+
+fn main() -> ExitCode {
+    let args: Vec<String> = std::env::args().skip(1).collect();
+    let res = match args.first().map(String::as_str) {
+        Some("serve") => serve_cmd(&args[1..]),
+        Some("test") => test_cmd(),
+        Some("wasm") => build_wasm().map(|_| ()),
+        _ => {
+            eprintln!("usage: cargo xtask serve [--port N] | test | wasm");
+            return ExitCode::from(2);
+        }
+    };
+    match res {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(e) => {
+            eprintln!("xtask: {e}");
+            ExitCode::FAILURE
+        }
+    }
+}
+
+fn root() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .parent()
+        .expect("xtask lives in the repository")
+        .to_path_buf()
+}
+
+fn step(title: &str) {
+    eprintln!("\n== {title}");
+}
+
+/// Runs a command in the repository root, failing on a non-zero exit.
+fn run(cmd: &mut Command) -> Result<()> {
+    run_in(&root(), cmd)
+}
+
+/// Runs a command in `dir`, failing on a non-zero exit.
+fn run_in(dir: &Path, cmd: &mut Command) -> Result<()> {
+    let shown = format!("{cmd:?}");
+    let status = cmd
+        .current_dir(dir)
+        .status()
+        .map_err(|e| format!("cannot start {shown}: {e}"))?;
+    if status.success() {
+        Ok(())
+    } else {
+        Err(format!("{shown} failed ({status})"))
+    }
+}
+
+fn output(cmd: &mut Command) -> Option<String> {
+    let out = cmd.current_dir(root()).output().ok()?;
+    out.status
+        .success()
+        .then(|| String::from_utf8_lossy(&out.stdout).into_owned())
+}
+
+fn cargo() -> Command {
+    Command::new(std::env::var("CARGO").unwrap_or_else(|_| "cargo".into()))
+}
+
+fn ensure_wasm_tools() -> Result<()> {
+    let targets = output(Command::new("rustup").args(["target", "list", "--installed"]));
+    if targets.is_none_or(|t| !t.lines().any(|l| l.trim() == WASM_TARGET)) {
+        step("installing the wasm32 target");
+        run(Command::new("rustup").args(["target", "add", WASM_TARGET]))?;
+    }
+    let have = output(Command::new("wasm-bindgen").arg("--version"));
+    if have.is_none_or(|v| v.trim() != format!("wasm-bindgen {WASM_BINDGEN_VERSION}")) {
+        step(&format!(
+            "installing wasm-bindgen-cli {WASM_BINDGEN_VERSION} (a few minutes)"
+        ));
+        // Without --locked: a locked dependency version is missing from the registry.
+        run(cargo().args([
+            "install",
+            "wasm-bindgen-cli",
+            "--version",
+            WASM_BINDGEN_VERSION,
+        ]))?;
+    }
+    Ok(())
+}
+
+/// Builds the core for wasm32 and generates the JS glue in `www/pkg`; copies
+/// the demo models into `www/demo-models`. Returns the `www` folder.
+fn build_wasm() -> Result<PathBuf> {
+    ensure_wasm_tools()?;
+    step("building the wasm core");
+    run(cargo().args(["build", "--lib", "--release", "--target", WASM_TARGET]))?;
+    let wasm = root().join(format!("target/{WASM_TARGET}/release/burnin.wasm"));
+    let www = root().join("www");
+    run(Command::new("wasm-bindgen")
+        .args(["--target", "web", "--no-typescript", "--out-dir"])
+        .arg(www.join("pkg"))
+        .arg(&wasm))?;
+    let demos = www.join("demo-models");
+    let _ = std::fs::remove_dir_all(&demos);
+    std::fs::create_dir_all(&demos).map_err(|e| e.to_string())?;
+    for e in std::fs::read_dir(root().join("demo-models")).map_err(|e| e.to_string())? {
+        let p = e.map_err(|e| e.to_string())?.path();
+        if p.extension().is_some_and(|x| x == "json") {
+            std::fs::copy(&p, demos.join(p.file_name().unwrap())).map_err(|e| e.to_string())?;
+        }
+    }
+    Ok(www)
+}
+
+fn serve_cmd(args: &[String]) -> Result<()> {
+    let port: u16 = match args {
+        [] => 8000,
+        [flag, n] if flag == "--port" => n.parse().map_err(|_| format!("bad port {n:?}"))?,
+        _ => return Err("usage: cargo xtask serve [--port N]".into()),
+    };
+    let www = build_wasm()?;
+    let server = serve::Server::start(www, port).map_err(|e| format!("cannot listen: {e}"))?;
+    eprintln!(
+        "\nBurnin workbench: {}/  (a demo model opens; Ctrl-C stops)",
+        server.url()
+    );
+    server.wait();
+    Ok(())
+}
+
+fn test_cmd() -> Result<()> {
+    step("cargo fmt --check");
+    run(cargo().args(["fmt", "--all", "--check"]))?;
+    step("cargo clippy");
+    run(cargo().args([
+        "clippy",
+        "--workspace",
+        "--all-targets",
+        "--",
+        "-D",
+        "warnings",
+    ]))?;
+    step("cargo test");
+    run(cargo().args(["test", "--workspace"]))?;
+    let www = build_wasm()?;
+    step("browser checks (headless Chromium)");
+    browser_checks(www)
+}
+
+fn chromium() -> Result<PathBuf> {
+    if let Ok(p) = std::env::var("BURNIN_CHROMIUM") {
+        return Ok(PathBuf::from(p));
+    }
+    let p = PathBuf::from("/usr/bin/chromium");
+    if p.exists() {
+        return Ok(p);
+    }
+    let root_user = output(Command::new("id").arg("-u")).is_some_and(|u| u.trim() == "0");
+    if !root_user {
+        return Err(
+            "Chromium is missing: install Debian's `chromium` package (sudo apt-get install chromium) or set BURNIN_CHROMIUM".into(),
+        );
+    }
+    step("installing Chromium (apt-get)");
+    run(Command::new("apt-get").arg("update"))?;
+    run(Command::new("apt-get")
+        .args(["install", "-y", "--no-install-recommends", "chromium"])
+        .env("DEBIAN_FRONTEND", "noninteractive"))?;
+    Ok(p)
+}
+
+fn browser_checks(www: PathBuf) -> Result<()> {
+    let chrome = chromium()?;
+    let dir = root().join("tests/browser");
+    if !dir.join("node_modules/playwright-core").exists() {
+        step("installing the browser test's npm packages (npm ci)");
+        run_in(
+            &dir,
+            Command::new("npm").args(["ci", "--no-audit", "--no-fund"]),
+        )?;
+    }
+    // Expected values come from the CLI, on the same files the page loads.
+    run(cargo().args(["build", "--bin", "burnin"]))?;
+    let cli = root().join("target/debug/burnin");
+    let mut expected = String::from("{");
+    let demos = root().join("demo-models");
+    let mut names: Vec<_> = std::fs::read_dir(&demos)
+        .map_err(|e| e.to_string())?
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.extension().is_some_and(|x| x == "json") && !p.ends_with("index.json"))
+        .collect();
+    names.sort();
+    for (i, p) in names.iter().enumerate() {
+        let json = output(Command::new(&cli).args(["solve", "--json"]).arg(p))
+            .ok_or_else(|| format!("burnin solve failed on {}", p.display()))?;
+        let value = json
+            .lines()
+            .find_map(|l| l.trim().strip_prefix("\"optimal_value\": "))
+            .ok_or("no optimal_value in burnin solve --json")?
+            .trim_end_matches(',');
+        let name = p.file_name().unwrap().to_string_lossy();
+        expected.push_str(&format!(
+            "{}\"{name}\": {value}",
+            if i == 0 { "" } else { ", " }
+        ));
+    }
+    expected.push('}');
+    let server = serve::Server::start(www, 0).map_err(|e| format!("cannot listen: {e}"))?;
+    let status = Command::new("node")
+        .arg(dir.join("check.mjs"))
+        .env("BURNIN_URL", server.url())
+        .env("BURNIN_CHROMIUM", &chrome)
+        .env("BURNIN_EXPECTED", expected)
+        .env("BURNIN_OUT", dir.join("out"))
+        .current_dir(&dir)
+        .status()
+        .map_err(|e| format!("cannot start node: {e}"))?;
+    if status.success() {
+        Ok(())
+    } else {
+        Err(format!("browser checks failed ({status})"))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    /// The CLI that generates the glue must match the crate that the wasm
+    /// build links, or the page fails to load.
+    #[test]
+    fn wasm_bindgen_pin_matches_the_root_manifest() {
+        let manifest = std::fs::read_to_string(super::root().join("Cargo.toml")).unwrap();
+        let pin = format!("wasm-bindgen = \"={}\"", super::WASM_BINDGEN_VERSION);
+        assert!(manifest.contains(&pin), "root Cargo.toml must pin {pin}");
+    }
+}

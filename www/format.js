@@ -1,0 +1,25 @@
+// Number formatting and colour scales shared by the views.
+
+/** A value for a table cell: 4 decimals, a minus sign that reads as one. */
+export function cell(x) {
+  if (!Number.isFinite(x)) return String(x);
+  const s = Math.abs(x) >= 1e5 || (x !== 0 && Math.abs(x) < 1e-4) ? x.toExponential(3) : x.toFixed(4);
+  return s.replace('-', '−');
+}
+
+/** The headline optimal value: 6 decimals, as `burnin solve` prints it. */
+export function headline(x) {
+  return x.toFixed(6).replace('-', '−');
+}
+
+/** Paper (t = 0) to teal (t = 1). */
+export function valueColour(t) {
+  const a = [247, 243, 234], b = [47, 111, 115];
+  const c = a.map((v, i) => Math.round(v + (b[i] - v) * Math.min(1, Math.max(0, t))));
+  return `rgb(${c[0]}, ${c[1]}, ${c[2]})`;
+}
+
+/** Text colour that stays readable on valueColour(t). */
+export function inkOn(t) {
+  return t > 0.55 ? '#fffdf8' : '#1e282d';
+}
