@@ -5,10 +5,15 @@
 //! clock, threads or an unseeded random generator; every random draw comes
 //! from a generator passed in by the caller.
 
+pub mod experiment;
 pub mod generate;
 pub mod lax;
+pub mod learn;
 pub mod model;
+pub mod sample;
 pub mod solve;
+pub mod stats;
+pub mod theory;
 
 #[cfg(target_arch = "wasm32")]
 pub mod wasm;

@@ -286,3 +286,58 @@ pub fn solution_json(m: &Mdp, sol: &Solution) -> String {
         cube(&sol.gaps()),
     )
 }
+
+/// Exact start values Σ_s ρ(s)·V^π_0(s) of the policies learners follow,
+/// with reusable buffers (no allocation per call).
+#[derive(Debug, Clone)]
+pub struct Evaluator {
+    v: Vec<f64>,
+    v_next: Vec<f64>,
+}
+
+impl Evaluator {
+    pub fn new(m: &Mdp) -> Evaluator {
+        Evaluator {
+            v: vec![0.0; m.n_states()],
+            v_next: vec![0.0; m.n_states()],
+        }
+    }
+
+    /// The value of the policy that takes `greedy[h·S + s]` with probability
+    /// 1 − ε and a uniformly random action with probability ε (ε = 0:
+    /// deterministic; `greedy` = None: uniform, ε ignored).
+    pub fn value(&mut self, m: &Mdp, greedy: Option<&[u32]>, epsilon: f64) -> f64 {
+        let (h_n, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
+        let gamma = m.discount();
+        let (w_greedy, w_each) = match greedy {
+            Some(_) => (1.0 - epsilon, epsilon / a_n as f64),
+            None => (0.0, 1.0 / a_n as f64),
+        };
+        self.v_next.iter_mut().for_each(|x| *x = 0.0);
+        for h in (0..h_n).rev() {
+            let step = m.step(h);
+            let r = step.mean_rewards();
+            for s in 0..s_n {
+                let q = |a: usize| {
+                    let row = s * a_n + a;
+                    let (next, prob) = step.row(row);
+                    r[row] + gamma * expect(next, prob, &self.v_next)
+                };
+                let mut x = 0.0;
+                if w_each > 0.0 {
+                    for a in 0..a_n {
+                        x += w_each * q(a);
+                    }
+                }
+                if let Some(g) = greedy
+                    && w_greedy > 0.0
+                {
+                    x += w_greedy * q(g[h * s_n + s] as usize);
+                }
+                self.v[s] = x;
+            }
+            std::mem::swap(&mut self.v, &mut self.v_next);
+        }
+        start_value(m, &self.v_next)
+    }
+}

@@ -283,3 +283,100 @@ fn broken_files_never_panic() {
     }
     assert!(changed > 10_000);
 }
+
+fn experiment_file(d: &Scratch, learners: &str, episodes: u64) -> PathBuf {
+    let model = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/night-ferry.json");
+    std::fs::copy(&model, d.0.join("night-ferry.json")).unwrap();
+    d.file(
+        "exp.json",
+        &format!(
+            r#"{{"format": "burnin-experiment", "version": 1, "model_path": "night-ferry.json",
+                "episodes": {episodes}, "seeds": 3, "seed": 5, "learners": {learners}}}"#
+        ),
+    )
+}
+
+#[test]
+fn run_gives_identical_results_for_any_thread_count() {
+    let d = Scratch::new("run-threads");
+    let f = experiment_file(
+        &d,
+        r#"[{"algorithm": "mvp", "bonus_scale": 0.01}, {"algorithm": "psrl"},
+            {"algorithm": "q-ucb-hoeffding", "bonus_scale": 0.05}, {"algorithm": "uniform"}]"#,
+        400,
+    );
+    let one = burnin(&["run", "--json", "--threads", "1", p(&f)]);
+    assert_eq!(one.code, 0, "{}", one.stderr);
+    let two = burnin(&["run", "--json", "--threads", "2", p(&f)]);
+    assert_eq!(one.stdout, two.stdout);
+    let again = burnin(&["run", "--json", p(&f)]);
+    assert_eq!(one.stdout, again.stdout);
+    let r: serde_json::Value = serde_json::from_str(&one.stdout).unwrap();
+    assert_eq!(r["format"], "burnin-results");
+    assert_eq!(r["learners"].as_array().unwrap().len(), 4);
+    assert_eq!(
+        r["learners"][0]["final_regret"].as_array().unwrap().len(),
+        3
+    );
+    assert_eq!(
+        *r["learners"][0]["checkpoints"]
+            .as_array()
+            .unwrap()
+            .last()
+            .unwrap(),
+        400
+    );
+    // Progress went to stderr, never to stdout.
+    assert!(
+        one.stderr.contains("100% (4800/4800 episodes"),
+        "{}",
+        one.stderr
+    );
+}
+
+#[test]
+fn run_prints_a_table_and_writes_csv() {
+    let d = Scratch::new("run-csv");
+    let f = experiment_file(
+        &d,
+        r#"[{"algorithm": "uniform", "label": "coin, flips"}]"#,
+        50,
+    );
+    let csv = d.0.join("out.csv");
+    let r = burnin(&["run", "--csv", p(&csv), p(&f)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    assert!(r.stdout.contains("regret at K"));
+    assert!(r.stdout.lines().any(|l| l.starts_with("coin, flips")));
+    let text = std::fs::read_to_string(&csv).unwrap();
+    let mut lines = text.lines();
+    assert_eq!(
+        lines.next().unwrap(),
+        "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,return_mean,bound,lower_bound"
+    );
+    let first = lines.next().unwrap();
+    assert!(first.starts_with("\"coin, flips\",uniform,1,"), "{first}");
+}
+
+#[test]
+fn run_reports_bad_experiments_with_exit_1() {
+    let d = Scratch::new("run-bad");
+    let f = experiment_file(&d, r#"[{"algorithm": "mvp", "bonus_scale": -1}]"#, 10);
+    let r = burnin(&["run", p(&f)]);
+    assert_eq!(r.code, 1);
+    assert_eq!(
+        r.stderr,
+        "learners[0].bonus_scale: expected a number > 0, found -1\n"
+    );
+    let missing = d.file(
+        "exp2.json",
+        r#"{"format": "burnin-experiment", "version": 1, "model_path": "nope.json",
+            "episodes": 10, "learners": [{"algorithm": "uniform"}]}"#,
+    );
+    let r = burnin(&["run", p(&missing)]);
+    assert_eq!(r.code, 1);
+    assert!(
+        r.stderr.starts_with("model_path: cannot read "),
+        "{}",
+        r.stderr
+    );
+}

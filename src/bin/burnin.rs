@@ -38,6 +38,21 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Run a regret experiment (burnin-experiment v1): every learner for K
+    /// episodes over each seed.
+    Run {
+        /// Experiment file, or - for standard input.
+        file: PathBuf,
+        /// Print the results as JSON (burnin-results v1) instead of a table.
+        #[arg(long)]
+        json: bool,
+        /// Also write the curves as CSV to this file.
+        #[arg(long, value_name = "FILE")]
+        csv: Option<PathBuf>,
+        /// Runs in parallel (default: the machine's cores); results do not depend on it.
+        #[arg(long, value_name = "N")]
+        threads: Option<usize>,
+    },
     /// Rewrite a model file in the canonical layout (fields in order, one
     /// transition row per line) on standard output.
     Tidy {
@@ -188,6 +203,12 @@ fn main() -> ExitCode {
     let result = match cli.command {
         Command::Validate { file } => validate(&file),
         Command::Solve { file, json } => solve(&file, json),
+        Command::Run {
+            file,
+            json,
+            csv,
+            threads,
+        } => run(&file, json, csv.as_deref(), threads),
         Command::Tidy { file } => load(&file).and_then(|m| emit(&burnin::write_model(&m))),
         Command::Generate { kind, seed, output } => generate(kind, seed, output.as_deref()),
     };
@@ -403,4 +424,181 @@ fn generate(kind: Kind, seed: u64, output: Option<&Path>) -> Result<(), Failure>
             .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display()))),
         None => emit(&text),
     }
+}
+
+fn run(path: &Path, json: bool, csv: Option<&Path>, threads: Option<usize>) -> Result<(), Failure> {
+    use burnin::experiment::{Context, Run, parse_experiment, summarise};
+    use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering};
+    use std::sync::{Arc, Mutex};
+
+    let text = read_text(path)?;
+    let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
+    let loader = move |rel: &str| -> Result<String, String> {
+        let p = base.join(rel);
+        let bytes = std::fs::read(&p).map_err(|e| format!("cannot read {}: {e}", p.display()))?;
+        String::from_utf8(bytes).map_err(|_| format!("{} is not UTF-8 text", p.display()))
+    };
+    let exp = parse_experiment(&text, Some(&loader)).map_err(invalid)?;
+    let ctx = Context::new(exp);
+    let runs = ctx.runs();
+    let threads = threads
+        .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
+        .clamp(1, runs.max(1));
+    let next = AtomicUsize::new(0);
+    let done_episodes = AtomicU64::new(0);
+    let records = Mutex::new(Vec::with_capacity(runs));
+    let progress = Progress::new(ctx.total_episodes());
+    std::thread::scope(|scope| {
+        for _ in 0..threads {
+            scope.spawn(|| {
+                loop {
+                    let i = next.fetch_add(1, Ordering::Relaxed);
+                    if i >= runs {
+                        break;
+                    }
+                    let mut r = Run::new(Arc::clone(&ctx), i);
+                    const CHUNK: u64 = 512;
+                    loop {
+                        let before = r.episodes_done();
+                        let finished = r.advance(CHUNK);
+                        let total = done_episodes
+                            .fetch_add(r.episodes_done() - before, Ordering::Relaxed)
+                            + (r.episodes_done() - before);
+                        progress.show(total);
+                        if finished {
+                            break;
+                        }
+                    }
+                    records.lock().expect("no thread panicked").push(r.finish());
+                }
+            });
+        }
+    });
+    progress.clear();
+    let results = summarise(&ctx, records.into_inner().expect("no thread panicked"));
+    if let Some(p) = csv {
+        std::fs::write(p, results.to_csv())
+            .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display())))?;
+    }
+    if json {
+        emit(&results.to_json())
+    } else {
+        emit(&results_table(&results))
+    }
+}
+
+/// A progress line on stderr: a bar when stderr is a terminal, otherwise a
+/// line at every tenth of the work.
+struct Progress {
+    total: u64,
+    tty: bool,
+    shown: std::sync::Mutex<(u64, std::time::Instant)>,
+    start: std::time::Instant,
+}
+
+impl Progress {
+    fn new(total: u64) -> Progress {
+        use std::io::IsTerminal;
+        let now = std::time::Instant::now();
+        Progress {
+            total: total.max(1),
+            tty: std::io::stderr().is_terminal(),
+            shown: std::sync::Mutex::new((0, now)),
+            start: now,
+        }
+    }
+
+    fn show(&self, done: u64) {
+        let Ok(mut last) = self.shown.lock() else {
+            return;
+        };
+        let tenth = done * 10 / self.total;
+        let now = std::time::Instant::now();
+        let due = if self.tty {
+            now.duration_since(last.1).as_millis() >= 100 || done == self.total
+        } else {
+            tenth > last.0 * 10 / self.total
+        };
+        if !due {
+            return;
+        }
+        *last = (done, now);
+        let secs = now.duration_since(self.start).as_secs_f64().max(1e-9);
+        let rate = done as f64 / secs;
+        let left = (self.total - done) as f64 / rate.max(1e-9);
+        let mut err = std::io::stderr().lock();
+        if self.tty {
+            let width = 30;
+            let fill = (done * width / self.total) as usize;
+            let _ = write!(
+                err,
+                "\r[{}{}] {done}/{} episodes, {:.0}/s, {:.0}s left ",
+                "#".repeat(fill),
+                ".".repeat(width as usize - fill),
+                self.total,
+                rate,
+                left
+            );
+        } else {
+            let _ = writeln!(
+                err,
+                "{}% ({done}/{} episodes, {:.0}/s)",
+                tenth * 10,
+                self.total,
+                rate
+            );
+        }
+    }
+
+    fn clear(&self) {
+        if self.tty {
+            let _ = write!(std::io::stderr(), "\r{}\r", " ".repeat(78));
+        }
+    }
+}
+
+fn results_table(r: &burnin::experiment::Results) -> String {
+    use std::fmt::Write as _;
+    let mut o = String::new();
+    let _ = writeln!(
+        o,
+        "{:?}: S={} A={} H={}, K={} episodes × {} seeds, V* = {:.6}",
+        r.model_name, r.states, r.actions, r.horizon, r.episodes, r.seeds, r.optimal_value
+    );
+    let lw = r
+        .learners
+        .iter()
+        .map(|l| l.label.chars().count())
+        .max()
+        .unwrap_or(7)
+        .max(7);
+    let _ = writeln!(
+        o,
+        "\n{:<lw$}  {:>12}  {:>21}  {:>6}  {:>9}  {:>10}",
+        "learner", "regret at K", "95% interval", "slope", "burn-in", "updates"
+    );
+    for l in &r.learners {
+        let last = l.regret_mean.len() - 1;
+        let upd = burnin::stats::mean(
+            &l.model_updates
+                .iter()
+                .map(|&x| x as f64)
+                .collect::<Vec<_>>(),
+        );
+        let _ = writeln!(
+            o,
+            "{:<lw$}  {:>12.3}  {:>21}  {:>6}  {:>9}  {:>10.1}",
+            l.label,
+            l.regret_mean[last],
+            format!("[{:.3}, {:.3}]", l.regret_lo[last], l.regret_hi[last]),
+            l.slope.map_or("—".into(), |s| format!("{s:.3}")),
+            l.burn_in.map_or("—".into(), |b| b.to_string()),
+            upd
+        );
+    }
+    let _ = writeln!(
+        o,
+        "\nslope: least squares of ln regret on ln k over the last decade; burn-in: first checkpoint after which the local slope stays ≤ 0.6."
+    );
+    o
 }

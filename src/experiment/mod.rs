@@ -1,0 +1,243 @@
+//! Regret experiments: seeds × learners × episodes on one model, with the
+//! exact expected regret of every episode.
+//!
+//! The regret of episode k is V*₁(ρ) − V^{πₖ}₁(ρ), with πₖ the policy the
+//! learner follows in that episode, evaluated exactly on the true model (a
+//! stochastic policy by its exact mixture), and cached while the learner's
+//! policy version is unchanged.
+//!
+//! A run is one (learner, seed) pair; runs are independent, so they can be
+//! done in any order or in parallel with identical results. [`Run::advance`]
+//! steps a run a few episodes at a time, for a worker that must stay
+//! responsive.
+
+mod results;
+mod spec;
+
+pub use results::{
+    EpsResult, LearnerResult, RESULTS_FORMAT, RESULTS_VERSION, Results, SETTLED_SLOPE, burn_in,
+    summarise, tail_slope,
+};
+pub use spec::{
+    EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, LearnerSpec, ModelLoader, check_learnable,
+    parse_experiment,
+};
+
+use std::sync::Arc;
+
+use rand::SeedableRng;
+
+use crate::learn::{LearnRng, Learner, PolicyView};
+use crate::sample::{self, Sampler};
+use crate::solve::{Evaluator, solve};
+
+/// SplitMix64's output function (Steele, Lea & Flood, "Fast splittable
+/// pseudorandom number generators", OOPSLA 2014).
+fn splitmix(mut z: u64) -> u64 {
+    z = z.wrapping_add(0x9E37_79B9_7F4A_7C15);
+    z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+    z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+    z ^ (z >> 31)
+}
+
+/// The seed of run (learner i, seed j) of an experiment with base seed `base`.
+pub fn run_seed(base: u64, learner: usize, seed: u64) -> u64 {
+    splitmix(splitmix(base ^ splitmix(seed)) ^ (learner as u64).wrapping_mul(0xD1B5_4A32_D192_ED03))
+}
+
+/// About `n` log-spaced episode numbers in 1..=K: round(K^(i/(n−1))),
+/// deduplicated, always including 1 and K.
+pub fn checkpoints(k: u64, n: u64) -> Vec<u64> {
+    let mut out: Vec<u64> = (0..n)
+        .map(|i| libm::round(libm::pow(k as f64, i as f64 / (n - 1) as f64)) as u64)
+        .map(|x| x.clamp(1, k))
+        .collect();
+    out.push(k);
+    out.sort_unstable();
+    out.dedup();
+    out
+}
+
+/// What every run of an experiment shares.
+#[derive(Debug)]
+pub struct Context {
+    pub exp: Experiment,
+    pub sampler: Sampler,
+    /// V*₁(ρ).
+    pub optimal_value: f64,
+    pub checkpoints: Vec<u64>,
+}
+
+impl Context {
+    pub fn new(exp: Experiment) -> Arc<Context> {
+        let optimal_value = solve(&exp.model).optimal_value;
+        Arc::new(Context {
+            sampler: Sampler::new(&exp.model),
+            checkpoints: checkpoints(exp.episodes, exp.checkpoints),
+            optimal_value,
+            exp,
+        })
+    }
+
+    /// Number of runs: learners × seeds, numbered learner-major.
+    pub fn runs(&self) -> usize {
+        self.exp.learners.len() * self.exp.seeds as usize
+    }
+
+    /// Total episodes over all runs.
+    pub fn total_episodes(&self) -> u64 {
+        self.runs() as u64 * self.exp.episodes
+    }
+}
+
+/// The record of one finished run.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RunRecord {
+    pub learner: usize,
+    pub seed_index: u64,
+    pub seed: u64,
+    /// Cumulative expected regret at each checkpoint.
+    pub regret: Vec<f64>,
+    /// Expected regret of the checkpoint's own episode.
+    pub episode_regret: Vec<f64>,
+    /// Cumulative realised return at each checkpoint.
+    pub returns: Vec<f64>,
+    pub model_updates: u64,
+    /// For each ε target: the last episode whose expected regret exceeded ε
+    /// (0 if none did).
+    pub last_above: Vec<u64>,
+    /// Visits of each (h, s), `[h·S + s]`.
+    pub visits: Vec<u64>,
+}
+
+/// One (learner, seed) run in progress.
+pub struct Run {
+    ctx: Arc<Context>,
+    learner: Box<dyn Learner>,
+    rng: LearnRng,
+    eval: Evaluator,
+    done: u64,
+    cum_regret: f64,
+    cum_return: f64,
+    cached: Option<(u64, f64)>,
+    next_cp: usize,
+    record: RunRecord,
+}
+
+impl Run {
+    /// Starts run number `index` (learner-major: learner = index / seeds).
+    pub fn new(ctx: Arc<Context>, index: usize) -> Run {
+        let seeds = ctx.exp.seeds as usize;
+        let (li, si) = (index / seeds, (index % seeds) as u64);
+        let seed = run_seed(ctx.exp.seed, li, si);
+        let learner = ctx.exp.learners[li]
+            .algorithm
+            .build(&ctx.exp.setting())
+            .expect("learners were checked against the model when the experiment was read");
+        let m = &ctx.exp.model;
+        let record = RunRecord {
+            learner: li,
+            seed_index: si,
+            seed,
+            regret: Vec::with_capacity(ctx.checkpoints.len()),
+            episode_regret: Vec::with_capacity(ctx.checkpoints.len()),
+            returns: Vec::with_capacity(ctx.checkpoints.len()),
+            model_updates: 0,
+            last_above: vec![0; ctx.exp.eps_targets.len()],
+            visits: vec![0; m.horizon() * m.n_states()],
+        };
+        Run {
+            eval: Evaluator::new(m),
+            learner,
+            rng: LearnRng::seed_from_u64(seed),
+            done: 0,
+            cum_regret: 0.0,
+            cum_return: 0.0,
+            cached: None,
+            next_cp: 0,
+            record,
+            ctx,
+        }
+    }
+
+    /// Episodes finished so far.
+    pub fn episodes_done(&self) -> u64 {
+        self.done
+    }
+
+    /// Runs up to `max` more episodes; true when the run is complete.
+    pub fn advance(&mut self, max: u64) -> bool {
+        let ctx = Arc::clone(&self.ctx);
+        let m = &ctx.exp.model;
+        let (h_n, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
+        let k_total = ctx.exp.episodes;
+        let end = (self.done + max).min(k_total);
+        while self.done < end {
+            self.learner.begin_episode(&mut self.rng);
+            let version = self.learner.policy_version();
+            let regret = match self.cached {
+                Some((v, r)) if v == version => r,
+                _ => {
+                    let value = match self.learner.policy() {
+                        PolicyView::Greedy(p) => self.eval.value(m, Some(p), 0.0),
+                        PolicyView::Mixed { greedy, epsilon } => {
+                            self.eval.value(m, Some(greedy), epsilon)
+                        }
+                        PolicyView::Uniform => self.eval.value(m, None, 0.0),
+                    };
+                    let r = (ctx.optimal_value - value).max(0.0);
+                    self.cached = Some((version, r));
+                    r
+                }
+            };
+            let mut s = ctx.sampler.start(&mut self.rng);
+            let mut ret = 0.0;
+            for h in 0..h_n {
+                let a = self.learner.act(h, s, &mut self.rng);
+                debug_assert!(a < a_n);
+                let row = s * a_n + a;
+                let r = sample::reward(&mut self.rng, m.step(h).reward(row));
+                let next = ctx.sampler.next(&mut self.rng, h, row);
+                self.learner.observe(h, s, a, r, next, &mut self.rng);
+                self.record.visits[h * s_n + s] += 1;
+                ret += r;
+                s = next;
+            }
+            self.learner.end_episode(&mut self.rng);
+            self.done += 1;
+            self.cum_regret += regret;
+            self.cum_return += ret;
+            for (e, &eps) in ctx.exp.eps_targets.iter().enumerate() {
+                if regret > eps {
+                    self.record.last_above[e] = self.done;
+                }
+            }
+            if ctx.checkpoints.get(self.next_cp) == Some(&self.done) {
+                self.record.regret.push(self.cum_regret);
+                self.record.episode_regret.push(regret);
+                self.record.returns.push(self.cum_return);
+                self.next_cp += 1;
+            }
+        }
+        self.done == k_total
+    }
+
+    /// The record of the finished run.
+    pub fn finish(mut self) -> RunRecord {
+        assert_eq!(self.done, self.ctx.exp.episodes, "the run is complete");
+        self.record.model_updates = self.learner.model_updates();
+        self.record
+    }
+}
+
+/// Runs every run one after another (the CLI runs them on threads; the
+/// results are the same).
+pub fn run_all(ctx: &Arc<Context>) -> Vec<RunRecord> {
+    (0..ctx.runs())
+        .map(|i| {
+            let mut r = Run::new(Arc::clone(ctx), i);
+            r.advance(u64::MAX);
+            r.finish()
+        })
+        .collect()
+}

@@ -1,0 +1,267 @@
+//! Results format v1 (`"format": "burnin-results"`): summaries across seeds,
+//! the published bounds beside them, JSON and CSV.
+
+use serde::{Deserialize, Serialize};
+
+use super::{Context, RunRecord};
+use crate::stats::{interval95, ls_slope, mean};
+use crate::theory::{self, Bound, Sizes};
+
+pub const RESULTS_FORMAT: &str = "burnin-results";
+pub const RESULTS_VERSION: u64 = 1;
+
+/// The local log-log slope at or below which regret counts as settled into
+/// its √K regime (burn-in; see [`burn_in`]).
+pub const SETTLED_SLOPE: f64 = 0.6;
+
+/// The empirical sample complexity for one ε.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EpsResult {
+    pub epsilon: f64,
+    /// Per seed: the first episode after which every episode's expected
+    /// regret stays at or below ε (0: from the start); null when the last
+    /// episode was still above ε.
+    pub episodes: Vec<Option<u64>>,
+    /// S·A·H³/ε², the order of the PAC bound.
+    pub pac_order: f64,
+}
+
+/// One learner's summary.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct LearnerResult {
+    pub label: String,
+    pub algorithm: String,
+    pub checkpoints: Vec<u64>,
+    /// Mean cumulative expected regret across seeds at each checkpoint.
+    pub regret_mean: Vec<f64>,
+    /// 95% Student-t interval of that mean.
+    pub regret_lo: Vec<f64>,
+    pub regret_hi: Vec<f64>,
+    /// Mean expected regret of the checkpoint's own episode.
+    pub episode_regret_mean: Vec<f64>,
+    /// Mean cumulative realised return.
+    pub return_mean: Vec<f64>,
+    pub final_regret: Vec<f64>,
+    pub model_updates: Vec<u64>,
+    pub run_seeds: Vec<u64>,
+    /// Least-squares slope of ln(mean regret) on ln k over the last decade
+    /// of checkpoints (k ≥ K/10).
+    pub slope: Option<f64>,
+    /// The first checkpoint after which the local slope stays ≤ 0.6.
+    pub burn_in: Option<u64>,
+    pub episodes_to_eps: Vec<EpsResult>,
+    /// Mean visits of each (h, s) per run, `[h][s]`.
+    pub visits: Vec<Vec<f64>>,
+    /// The learner's published regret bound, as an order.
+    pub bound: Option<Bound>,
+}
+
+/// The results of an experiment.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Results {
+    pub format: String,
+    pub version: u64,
+    pub name: String,
+    pub model_name: String,
+    pub states: usize,
+    pub actions: usize,
+    pub horizon: usize,
+    pub optimal_value: f64,
+    pub episodes: u64,
+    pub seeds: u64,
+    pub seed: u64,
+    pub delta: f64,
+    /// The minimax lower-bound shape at the checkpoints.
+    pub lower_bound: Bound,
+    pub learners: Vec<LearnerResult>,
+}
+
+/// The first checkpoint k_j such that every local slope
+/// (ln R_{i+1} − ln R_i)/(ln k_{i+1} − ln k_i) for i ≥ j is ≤ [`SETTLED_SLOPE`],
+/// over the checkpoints where the mean regret R is positive; None when the
+/// last segment is steeper or fewer than two such checkpoints exist.
+///
+/// Our operational definition (the papers define burn-in through their
+/// bounds, not through data).
+pub fn burn_in(ks: &[u64], regret: &[f64]) -> Option<u64> {
+    let pts: Vec<(f64, f64, u64)> = ks
+        .iter()
+        .zip(regret)
+        .filter(|(_, r)| **r > 0.0)
+        .map(|(&k, &r)| (libm::log(k as f64), libm::log(r), k))
+        .collect();
+    if pts.len() < 2 {
+        return None;
+    }
+    let mut start = None;
+    for w in pts.windows(2).rev() {
+        let slope = (w[1].1 - w[0].1) / (w[1].0 - w[0].0);
+        if slope <= SETTLED_SLOPE {
+            start = Some(w[0].2);
+        } else {
+            break;
+        }
+    }
+    start
+}
+
+/// Least-squares slope over the last decade of checkpoints (k ≥ K/10) with
+/// positive regret.
+pub fn tail_slope(ks: &[u64], regret: &[f64]) -> Option<f64> {
+    let k_max = *ks.last()? as f64;
+    let (x, y): (Vec<f64>, Vec<f64>) = ks
+        .iter()
+        .zip(regret)
+        .filter(|(k, r)| **k as f64 >= k_max / 10.0 && **r > 0.0)
+        .map(|(&k, &r)| (libm::log(k as f64), libm::log(r)))
+        .unzip();
+    if x.len() < 2 {
+        return None;
+    }
+    let s = ls_slope(&x, &y);
+    s.is_finite().then_some(s)
+}
+
+/// Summarises finished runs (any order) into results.
+pub fn summarise(ctx: &Context, mut records: Vec<RunRecord>) -> Results {
+    records.sort_by_key(|r| (r.learner, r.seed_index));
+    let exp = &ctx.exp;
+    let m = &exp.model;
+    let ks = &ctx.checkpoints;
+    let z = Sizes {
+        s: m.n_states() as f64,
+        a: m.n_actions() as f64,
+        h: m.horizon() as f64,
+        delta: exp.delta,
+    };
+    let column = |runs: &[&RunRecord], c: usize, f: fn(&RunRecord) -> &Vec<f64>| -> Vec<f64> {
+        runs.iter().map(|r| f(r)[c]).collect()
+    };
+    let learners = exp
+        .learners
+        .iter()
+        .enumerate()
+        .map(|(li, spec)| {
+            let runs: Vec<&RunRecord> = records.iter().filter(|r| r.learner == li).collect();
+            let n = ks.len();
+            let (mut mean_r, mut lo, mut hi, mut ep, mut ret) = (
+                Vec::with_capacity(n),
+                Vec::with_capacity(n),
+                Vec::with_capacity(n),
+                Vec::with_capacity(n),
+                Vec::with_capacity(n),
+            );
+            for c in 0..n {
+                let xs = column(&runs, c, |r| &r.regret);
+                let (l, h) = interval95(&xs);
+                mean_r.push(mean(&xs));
+                lo.push(l);
+                hi.push(h);
+                ep.push(mean(&column(&runs, c, |r| &r.episode_regret)));
+                ret.push(mean(&column(&runs, c, |r| &r.returns)));
+            }
+            let episodes_to_eps = exp
+                .eps_targets
+                .iter()
+                .enumerate()
+                .map(|(e, &eps)| EpsResult {
+                    epsilon: eps,
+                    episodes: runs
+                        .iter()
+                        .map(|r| (r.last_above[e] < exp.episodes).then_some(r.last_above[e]))
+                        .collect(),
+                    pac_order: theory::pac_episodes(z, eps),
+                })
+                .collect();
+            let (hh, ss) = (m.horizon(), m.n_states());
+            let visits = (0..hh)
+                .map(|h| {
+                    (0..ss)
+                        .map(|s| {
+                            runs.iter()
+                                .map(|r| r.visits[h * ss + s] as f64)
+                                .sum::<f64>()
+                                / runs.len() as f64
+                        })
+                        .collect()
+                })
+                .collect();
+            LearnerResult {
+                label: spec.label.clone(),
+                algorithm: spec.algorithm.key().to_owned(),
+                checkpoints: ks.clone(),
+                slope: tail_slope(ks, &mean_r),
+                burn_in: burn_in(ks, &mean_r),
+                regret_mean: mean_r,
+                regret_lo: lo,
+                regret_hi: hi,
+                episode_regret_mean: ep,
+                return_mean: ret,
+                final_regret: runs.iter().map(|r| *r.regret.last().unwrap()).collect(),
+                model_updates: runs.iter().map(|r| r.model_updates).collect(),
+                run_seeds: runs.iter().map(|r| r.seed).collect(),
+                episodes_to_eps,
+                visits,
+                bound: theory::bound(spec.algorithm.key(), z, ks),
+            }
+        })
+        .collect();
+    Results {
+        format: RESULTS_FORMAT.into(),
+        version: RESULTS_VERSION,
+        name: exp.name.clone(),
+        model_name: m.name().to_owned(),
+        states: m.n_states(),
+        actions: m.n_actions(),
+        horizon: m.horizon(),
+        optimal_value: ctx.optimal_value,
+        episodes: exp.episodes,
+        seeds: exp.seeds,
+        seed: exp.seed,
+        delta: exp.delta,
+        lower_bound: theory::lower_bound(z, ks),
+        learners,
+    }
+}
+
+impl Results {
+    /// The results as JSON (format v1).
+    pub fn to_json(&self) -> String {
+        serde_json::to_string_pretty(self).expect("results hold no non-finite numbers") + "\n"
+    }
+
+    /// One row per (learner, checkpoint).
+    pub fn to_csv(&self) -> String {
+        let mut o = String::from(
+            "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,return_mean,bound,lower_bound\n",
+        );
+        let q = |s: &str| {
+            if s.contains([',', '"', '\n', '\r']) {
+                format!("\"{}\"", s.replace('"', "\"\""))
+            } else {
+                s.to_owned()
+            }
+        };
+        for l in &self.learners {
+            for (c, k) in l.checkpoints.iter().enumerate() {
+                let bound = l
+                    .bound
+                    .as_ref()
+                    .map(|b| b.values[c].to_string())
+                    .unwrap_or_default();
+                o.push_str(&format!(
+                    "{},{},{k},{},{},{},{},{},{bound},{}\n",
+                    q(&l.label),
+                    l.algorithm,
+                    l.regret_mean[c],
+                    l.regret_lo[c],
+                    l.regret_hi[c],
+                    l.episode_regret_mean[c],
+                    l.return_mean[c],
+                    self.lower_bound.values[c],
+                ));
+            }
+        }
+        o
+    }
+}

@@ -1,0 +1,534 @@
+//! Experiment format v1 (`"format": "burnin-experiment"`): reading and checks.
+
+use serde::de::MapAccess;
+use serde_json::value::RawValue;
+
+use crate::lax::{Accept, Fields, Lax, Reader, syntax_problem};
+use crate::learn::{Algorithm, Setting};
+use crate::model::json::{check_header, parse_model};
+use crate::model::{Mdp, Problems};
+
+pub const EXPERIMENT_FORMAT: &str = "burnin-experiment";
+pub const EXPERIMENT_VERSION: u64 = 1;
+
+/// Most episodes per run.
+pub const MAX_EPISODES: u64 = 1_000_000_000;
+/// Most seeds per learner.
+pub const MAX_SEEDS: u64 = 10_000;
+/// Most learners per experiment.
+pub const MAX_LEARNERS: usize = 64;
+/// Most checkpoints per curve.
+pub const MAX_CHECKPOINTS: u64 = 2_000;
+/// Largest seed (seeds travel as JSON numbers, exact up to 2^53).
+pub const MAX_SEED: u64 = 1 << 53;
+
+const FIELDS: &[&str] = &[
+    "format",
+    "version",
+    "name",
+    "model",
+    "model_path",
+    "episodes",
+    "seeds",
+    "seed",
+    "delta",
+    "checkpoints",
+    "eps_targets",
+    "learners",
+];
+const LEARNER_FIELDS: &[&str] = &["algorithm", "label", "bonus_scale", "epsilon", "prior"];
+
+/// One learner of an experiment: its algorithm and a unique label.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LearnerSpec {
+    pub label: String,
+    pub algorithm: Algorithm,
+}
+
+/// A checked experiment, ready to run.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Experiment {
+    pub name: String,
+    pub model: Mdp,
+    /// K, episodes per run.
+    pub episodes: u64,
+    /// Runs per learner.
+    pub seeds: u64,
+    /// Base seed; run seeds derive from it (see [`super::run_seed`]).
+    pub seed: u64,
+    /// δ given to confidence-based learners.
+    pub delta: f64,
+    /// Requested number of log-spaced checkpoints.
+    pub checkpoints: u64,
+    /// The ε of the empirical sample complexity (default H/10 and H/20).
+    pub eps_targets: Vec<f64>,
+    pub learners: Vec<LearnerSpec>,
+}
+
+impl Experiment {
+    /// What the learners are told.
+    pub fn setting(&self) -> Setting {
+        Setting {
+            states: self.model.n_states(),
+            actions: self.model.n_actions(),
+            horizon: self.model.horizon(),
+            episodes: self.episodes,
+            delta: self.delta,
+        }
+    }
+}
+
+#[derive(Default)]
+struct RawExperiment {
+    format: Option<Lax<String>>,
+    version: Option<Lax<f64>>,
+    name: Option<Lax<String>>,
+    model: Option<Box<RawValue>>,
+    model_path: Option<Lax<String>>,
+    episodes: Option<Lax<f64>>,
+    seeds: Option<Lax<f64>>,
+    seed: Option<Lax<f64>>,
+    delta: Option<Lax<f64>>,
+    checkpoints: Option<Lax<f64>>,
+    eps_targets: Option<Lax<Vec<Lax<f64>>>>,
+    learners: Option<Lax<Vec<Lax<RawLearner>>>>,
+    fields: Fields,
+}
+
+impl Accept for RawExperiment {
+    fn map<'de, M: MapAccess<'de>>(mut map: M) -> Result<Option<Self>, M::Error> {
+        let mut e = RawExperiment::default();
+        while let Some(key) = map.next_key::<String>()? {
+            let f = &mut e.fields;
+            match key.as_str() {
+                "format" => f.store(&mut map, &key, &mut e.format)?,
+                "version" => f.store(&mut map, &key, &mut e.version)?,
+                "name" => f.store(&mut map, &key, &mut e.name)?,
+                "model" => f.store(&mut map, &key, &mut e.model)?,
+                "model_path" => f.store(&mut map, &key, &mut e.model_path)?,
+                "episodes" => f.store(&mut map, &key, &mut e.episodes)?,
+                "seeds" => f.store(&mut map, &key, &mut e.seeds)?,
+                "seed" => f.store(&mut map, &key, &mut e.seed)?,
+                "delta" => f.store(&mut map, &key, &mut e.delta)?,
+                "checkpoints" => f.store(&mut map, &key, &mut e.checkpoints)?,
+                "eps_targets" => f.store(&mut map, &key, &mut e.eps_targets)?,
+                "learners" => f.store(&mut map, &key, &mut e.learners)?,
+                _ => f.skip(&mut map, key)?,
+            }
+        }
+        Ok(Some(e))
+    }
+}
+
+#[derive(Default)]
+struct RawLearner {
+    algorithm: Option<Lax<String>>,
+    label: Option<Lax<String>>,
+    bonus_scale: Option<Lax<f64>>,
+    epsilon: Option<Lax<f64>>,
+    prior: Option<Lax<f64>>,
+    fields: Fields,
+}
+
+impl Accept for RawLearner {
+    fn map<'de, M: MapAccess<'de>>(mut map: M) -> Result<Option<Self>, M::Error> {
+        let mut l = RawLearner::default();
+        while let Some(key) = map.next_key::<String>()? {
+            let f = &mut l.fields;
+            match key.as_str() {
+                "algorithm" => f.store(&mut map, &key, &mut l.algorithm)?,
+                "label" => f.store(&mut map, &key, &mut l.label)?,
+                "bonus_scale" => f.store(&mut map, &key, &mut l.bonus_scale)?,
+                "epsilon" => f.store(&mut map, &key, &mut l.epsilon)?,
+                "prior" => f.store(&mut map, &key, &mut l.prior)?,
+                _ => f.skip(&mut map, key)?,
+            }
+        }
+        Ok(Some(l))
+    }
+}
+
+/// Resolves an experiment's `model_path` (as written in the file) to the
+/// model file's text, or a message saying why it cannot be read.
+pub type ModelLoader<'a> = &'a dyn Fn(&str) -> Result<String, String>;
+
+/// Copies `p` into `into` with every path put under `prefix`.
+fn prefixed(prefix: &str, p: &Problems, into: &mut Problems) {
+    for pr in p.list() {
+        let path = if pr.path.is_empty() {
+            prefix.to_owned()
+        } else {
+            format!("{prefix}.{}", pr.path)
+        };
+        into.push(path, pr.message.clone());
+    }
+    if p.unlisted() > 0 {
+        into.push(
+            prefix,
+            format!("… and {} more problems in the model", p.unlisted()),
+        );
+    }
+}
+
+/// Whether learners can run on `m`: undiscounted, and every reward supported
+/// in [0, 1].
+pub fn check_learnable(m: &Mdp) -> Result<(), Problems> {
+    let mut p = Problems::default();
+    if m.discount() < 1.0 {
+        p.push(
+            "discount",
+            format!(
+                "learners work in the undiscounted episodic setting; remove the discount or set it to 1 (found {})",
+                m.discount()
+            ),
+        );
+    }
+    let a_n = m.n_actions();
+    for (i, st) in m.step_tables().iter().enumerate() {
+        for row in 0..m.n_states() * a_n {
+            let (lo, hi) = st.reward(row).support();
+            if lo < 0.0 || hi > 1.0 {
+                p.push(
+                    format!("steps[{i}].rewards[{}][{}]", row / a_n, row % a_n),
+                    format!(
+                        "learners need every reward in [0, 1]; this one ranges over [{lo}, {hi}]"
+                    ),
+                );
+            }
+        }
+    }
+    p.into_result()
+}
+
+fn whole_in(
+    r: &mut Reader,
+    path: &str,
+    v: Option<Lax<f64>>,
+    default: Option<u64>,
+    lo: u64,
+    hi: u64,
+) -> Option<u64> {
+    let Some(v) = v else {
+        if default.is_none() {
+            r.problems.push(
+                path,
+                format!("missing; expected a whole number in {lo}..={hi}"),
+            );
+        }
+        return default;
+    };
+    let x = r.take(path, v, &format!("a whole number in {lo}..={hi}"))?;
+    if x.fract() == 0.0 && x >= lo as f64 && x <= hi as f64 {
+        Some(x as u64)
+    } else {
+        r.problems.push(
+            path,
+            format!("expected a whole number in {lo}..={hi}, found {x}"),
+        );
+        None
+    }
+}
+
+/// An optional number at `path` with a default and a range check.
+fn number(
+    r: &mut Reader,
+    path: &str,
+    v: Option<Lax<f64>>,
+    default: f64,
+    ok: impl Fn(f64) -> bool,
+    want: &str,
+) -> Option<f64> {
+    let Some(v) = v else { return Some(default) };
+    let x = r.take(path, v, "a number")?;
+    if ok(x) {
+        Some(x)
+    } else {
+        r.problems.push(path, format!("expected {want}, found {x}"));
+        None
+    }
+}
+
+fn learner(r: &mut Reader, path: &str, raw: RawLearner) -> Option<LearnerSpec> {
+    raw.fields.finish(path, LEARNER_FIELDS, r.problems);
+    let key = r.require(
+        &format!("{path}.algorithm"),
+        raw.algorithm,
+        &format!("one of {}", Algorithm::KEYS.join(", ")),
+    )?;
+    let positive = |x: f64| x.is_finite() && x > 0.0;
+    // Which parameters each algorithm takes.
+    let takes: &[&str] = match key.as_str() {
+        "mvp" | "ucbvi-hoeffding" | "ucbvi-bernstein" | "q-ucb-hoeffding" | "ucb1" => {
+            &["bonus_scale"]
+        }
+        "psrl" => &["prior"],
+        "eps-greedy" => &["epsilon"],
+        "uniform" => &[],
+        other => {
+            r.problems.push(
+                format!("{path}.algorithm"),
+                format!(
+                    "unknown algorithm {other:?}; known ones are {}",
+                    Algorithm::KEYS.join(", ")
+                ),
+            );
+            return None;
+        }
+    };
+    for (name, given) in [
+        ("bonus_scale", raw.bonus_scale.is_some()),
+        ("epsilon", raw.epsilon.is_some()),
+        ("prior", raw.prior.is_some()),
+    ] {
+        if given && !takes.contains(&name) {
+            r.problems
+                .push(format!("{path}.{name}"), format!("{key} takes no {name}"));
+        }
+    }
+    let bonus_scale = number(
+        r,
+        &format!("{path}.bonus_scale"),
+        raw.bonus_scale,
+        1.0,
+        positive,
+        "a number > 0",
+    )?;
+    let epsilon = number(
+        r,
+        &format!("{path}.epsilon"),
+        raw.epsilon,
+        0.1,
+        |x| (0.0..=1.0).contains(&x),
+        "a probability in [0, 1]",
+    )?;
+    let prior = number(
+        r,
+        &format!("{path}.prior"),
+        raw.prior,
+        1.0,
+        positive,
+        "a number > 0",
+    )?;
+    let algorithm = match key.as_str() {
+        "mvp" => Algorithm::Mvp { bonus_scale },
+        "ucbvi-hoeffding" => Algorithm::UcbviHoeffding { bonus_scale },
+        "ucbvi-bernstein" => Algorithm::UcbviBernstein { bonus_scale },
+        "q-ucb-hoeffding" => Algorithm::QUcbHoeffding { bonus_scale },
+        "ucb1" => Algorithm::Ucb1 { bonus_scale },
+        "psrl" => Algorithm::Psrl { prior },
+        "eps-greedy" => Algorithm::EpsGreedy { epsilon },
+        _ => Algorithm::Uniform,
+    };
+    let label = match raw.label {
+        Some(l) => r.take(&format!("{path}.label"), l, "a string")?,
+        None => algorithm.default_label(),
+    };
+    if label.trim().is_empty() || label.chars().count() > 200 {
+        r.problems.push(
+            format!("{path}.label"),
+            "expected a non-blank label of at most 200 characters",
+        );
+        return None;
+    }
+    Some(LearnerSpec { label, algorithm })
+}
+
+/// Reads and checks an experiment file. `load` resolves `model_path`; the
+/// page passes None (it has no files to read) and needs the model inline.
+pub fn parse_experiment(text: &str, load: Option<ModelLoader>) -> Result<Experiment, Problems> {
+    if text.len() > crate::model::limits::MAX_FILE_BYTES {
+        return Err(Problems::single(
+            "",
+            format!(
+                "file is over the limit of {} bytes",
+                crate::model::limits::MAX_FILE_BYTES
+            ),
+        ));
+    }
+    let raw: Lax<RawExperiment> =
+        serde_json::from_str(text).map_err(|e| Problems::single("", syntax_problem(&e)))?;
+    let mut problems = Problems::default();
+    let exp = convert(
+        raw,
+        &mut Reader {
+            problems: &mut problems,
+        },
+        load,
+    );
+    match exp {
+        Some(e) if problems.is_empty() => Ok(e),
+        _ => Err(problems),
+    }
+}
+
+fn model_of(
+    r: &mut Reader,
+    inline: Option<Box<RawValue>>,
+    path: Option<Lax<String>>,
+    load: Option<ModelLoader>,
+) -> Option<Mdp> {
+    let (text, prefix) = match (inline, path) {
+        (Some(_), Some(_)) => {
+            r.problems.push(
+                "model_path",
+                "give either \"model\" or \"model_path\", not both",
+            );
+            return None;
+        }
+        (None, None) => {
+            r.problems.push(
+                "model",
+                "missing; expected an inline burnin-model object (or \"model_path\" in the CLI)",
+            );
+            return None;
+        }
+        (Some(raw), None) => (raw.get().to_owned(), "model".to_owned()),
+        (None, Some(p)) => {
+            let p = r.take("model_path", p, "a file path")?;
+            let Some(load) = load else {
+                r.problems.push(
+                    "model_path",
+                    "model files cannot be read here; put the model inline as \"model\"",
+                );
+                return None;
+            };
+            match load(&p) {
+                Ok(t) => (t, format!("model_path ({p})")),
+                Err(msg) => {
+                    r.problems.push("model_path", msg);
+                    return None;
+                }
+            }
+        }
+    };
+    let m = match parse_model(&text) {
+        Ok(m) => m,
+        Err(p) => {
+            prefixed(&prefix, &p, r.problems);
+            return None;
+        }
+    };
+    if let Err(p) = check_learnable(&m) {
+        prefixed(&prefix, &p, r.problems);
+        return None;
+    }
+    Some(m)
+}
+
+fn convert(
+    raw: Lax<RawExperiment>,
+    r: &mut Reader,
+    load: Option<ModelLoader>,
+) -> Option<Experiment> {
+    let e = r.take("", raw, "a JSON object (a burnin-experiment file)")?;
+    if !check_header(
+        r,
+        e.format,
+        e.version,
+        EXPERIMENT_FORMAT,
+        EXPERIMENT_VERSION,
+    ) {
+        return None;
+    }
+    e.fields.finish("", FIELDS, r.problems);
+    let name = match e.name {
+        Some(n) => r.take("name", n, "a string"),
+        None => Some(String::new()),
+    };
+    let model = model_of(r, e.model, e.model_path, load);
+    let episodes = whole_in(r, "episodes", e.episodes, None, 1, MAX_EPISODES);
+    let seeds = whole_in(r, "seeds", e.seeds, Some(1), 1, MAX_SEEDS);
+    let seed = whole_in(r, "seed", e.seed, Some(1), 0, MAX_SEED);
+    let delta = number(
+        r,
+        "delta",
+        e.delta,
+        0.05,
+        |d| d > 0.0 && d < 1.0,
+        "0 < delta < 1",
+    );
+    let checkpoints = whole_in(
+        r,
+        "checkpoints",
+        e.checkpoints,
+        Some(64),
+        2,
+        MAX_CHECKPOINTS,
+    );
+    let eps_targets = match e.eps_targets {
+        None => Some(None),
+        Some(v) => r
+            .take("eps_targets", v, "an array of numbers > 0")
+            .map(|list| {
+                let mut out = Vec::with_capacity(list.len());
+                for (i, x) in list.into_iter().enumerate() {
+                    let p = format!("eps_targets[{i}]");
+                    if let Some(x) = r.take(&p, x, "a number") {
+                        if x.is_finite() && x > 0.0 {
+                            out.push(x);
+                        } else {
+                            r.problems
+                                .push(p, format!("expected a number > 0, found {x}"));
+                        }
+                    }
+                }
+                Some(out)
+            }),
+    };
+    let learners = r.require("learners", e.learners, "an array of learners")?;
+    if learners.is_empty() || learners.len() > MAX_LEARNERS {
+        r.problems.push(
+            "learners",
+            format!(
+                "expected 1 to {MAX_LEARNERS} learners, found {}",
+                learners.len()
+            ),
+        );
+        return None;
+    }
+    let mut specs: Vec<LearnerSpec> = Vec::new();
+    for (i, l) in learners.into_iter().enumerate() {
+        let path = format!("learners[{i}]");
+        let Some(raw) = r.take(&path, l, "an object with \"algorithm\"") else {
+            continue;
+        };
+        let Some(spec) = learner(r, &path, raw) else {
+            continue;
+        };
+        if specs.iter().any(|s| s.label == spec.label) {
+            r.problems.push(
+                format!("{path}.label"),
+                format!(
+                    "duplicate label {:?}; give each learner its own \"label\"",
+                    spec.label
+                ),
+            );
+        }
+        if let Some(m) = &model {
+            let set = Setting {
+                states: m.n_states(),
+                actions: m.n_actions(),
+                horizon: m.horizon(),
+                episodes: 1,
+                delta: 0.5,
+            };
+            if let Err(msg) = spec.algorithm.check_setting(&set) {
+                r.problems.push(format!("{path}.algorithm"), msg);
+            }
+        }
+        specs.push(spec);
+    }
+    let model = model?;
+    let hh = model.horizon() as f64;
+    Some(Experiment {
+        name: name?,
+        eps_targets: eps_targets?.unwrap_or_else(|| vec![hh / 10.0, hh / 20.0]),
+        model,
+        episodes: episodes?,
+        seeds: seeds?,
+        seed: seed?,
+        delta: delta?,
+        checkpoints: checkpoints?,
+        learners: specs,
+    })
+}

@@ -1,0 +1,121 @@
+//! Baselines: ε-greedy on the empirical model, and uniformly random actions.
+//!
+//! ε-greedy replans every episode by backward induction on the empirical
+//! model (mean rewards r̂ and transitions P̂ of the visits so far; a pair
+//! never visited is worth 0), then in each step takes a uniformly random
+//! action with probability ε and the greedy one otherwise. Both are common
+//! practice baselines with no single source.
+
+use rand::Rng;
+
+use super::{LearnRng, Learner, PolicyView, RowCounts, Setting, plan};
+
+pub struct EpsGreedy {
+    set: Setting,
+    epsilon: f64,
+    counts: Vec<RowCounts>,
+    v: Vec<f64>,
+    greedy: Vec<u32>,
+    version: u64,
+    updates: u64,
+}
+
+impl EpsGreedy {
+    pub fn new(set: Setting, epsilon: f64) -> EpsGreedy {
+        EpsGreedy {
+            set,
+            epsilon,
+            counts: vec![RowCounts::default(); set.rows()],
+            v: vec![0.0; (set.horizon + 1) * set.states],
+            greedy: vec![u32::MAX; set.horizon * set.states],
+            version: 0,
+            updates: 0,
+        }
+    }
+}
+
+impl Learner for EpsGreedy {
+    fn begin_episode(&mut self, rng: &mut LearnRng) {
+        let set = self.set;
+        let counts = &self.counts;
+        let changed = plan(
+            &set,
+            &mut self.v,
+            &mut self.greedy,
+            rng,
+            |h, s, a, v_next, _| {
+                let c = &counts[set.row(h, s, a)];
+                if c.n == 0 {
+                    0.0
+                } else {
+                    c.mean_reward() + c.mean(v_next)
+                }
+            },
+        );
+        self.updates += 1;
+        if changed {
+            self.version += 1;
+        }
+    }
+
+    fn policy(&self) -> PolicyView<'_> {
+        PolicyView::Mixed {
+            greedy: &self.greedy,
+            epsilon: self.epsilon,
+        }
+    }
+
+    fn policy_version(&self) -> u64 {
+        self.version
+    }
+
+    fn act(&mut self, h: usize, s: usize, rng: &mut LearnRng) -> usize {
+        if rng.random::<f64>() < self.epsilon {
+            rng.random_range(0..self.set.actions as u32) as usize
+        } else {
+            self.greedy[h * self.set.states + s] as usize
+        }
+    }
+
+    fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
+        self.counts[self.set.row(h, s, a)].add(r, next);
+    }
+
+    fn model_updates(&self) -> u64 {
+        self.updates
+    }
+}
+
+pub struct Uniform {
+    actions: u32,
+}
+
+impl Uniform {
+    pub fn new(actions: usize) -> Uniform {
+        Uniform {
+            actions: actions as u32,
+        }
+    }
+}
+
+impl Learner for Uniform {
+    fn begin_episode(&mut self, _rng: &mut LearnRng) {}
+
+    fn policy(&self) -> PolicyView<'_> {
+        PolicyView::Uniform
+    }
+
+    fn policy_version(&self) -> u64 {
+        0
+    }
+
+    fn act(&mut self, _h: usize, _s: usize, rng: &mut LearnRng) -> usize {
+        rng.random_range(0..self.actions) as usize
+    }
+
+    fn observe(&mut self, _: usize, _: usize, _: usize, _: f64, _: usize, _: &mut LearnRng) {}
+
+    fn model_updates(&self) -> u64 {
+        0
+    }
+}

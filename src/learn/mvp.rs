@@ -1,0 +1,173 @@
+//! MVP (Monotonic Value Propagation) with doubling batches: the version whose
+//! regret is min{√(SAH³K), HK} up to log factors, with no burn-in cost.
+//!
+//! Each (h, s, a) keeps its estimates from the latest completed batch only.
+//! When its visit count n reaches 1, 2, 4, 8, … (= 2^i), the reward and
+//! transition estimates are rebuilt from samples 2^(i−1)+1 … 2^i alone, and
+//! the batch statistics are reset; so after n visits the estimates have been
+//! rebuilt ⌊log₂ n⌋ + 1 times. After an episode in which any such trigger
+//! fired, the learner replans by backward induction:
+//!
+//! ```text
+//! Q_h(s,a) = min( r̂ + P̂·V_{h+1} + b, H ),   Q_h(s,a) = H before the first batch
+//! b = c · ( c₁·√(Var_P̂(V_{h+1})·L/m) + c₂·√((σ̂ − r̂²)·L/m) + c₃·H·L/m )
+//! c₁ = 460/9, c₂ = 2√2, c₃ = 544/9,  L = ln(200·S·A·H²·K²/δ)
+//! ```
+//!
+//! with m the size of the latest batch, r̂ and σ̂ the batch's empirical first
+//! and second moments of the reward, P̂ its empirical transitions, and c the
+//! `bonus_scale` (1 = the published constants). Its policy changes only when
+//! it replans (ties among maximisers broken at random at that moment) and is
+//! used unchanged until the next replan.
+//!
+//! # References
+//! - Z. Zhang, Y. Chen, J. D. Lee and S. S. Du, "Settling the Sample
+//!   Complexity of Online Reinforcement Learning", COLT 2024,
+//!   arXiv:2307.13586, Algorithm 1.
+
+use super::{LearnRng, Learner, PolicyView, RowCounts, Setting, plan};
+
+const C1: f64 = 460.0 / 9.0;
+const C2: f64 = 2.0 * std::f64::consts::SQRT_2;
+const C3: f64 = 544.0 / 9.0;
+
+/// The estimates of one (h, s, a) from its latest completed batch.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Batch {
+    /// m, the batch size (0 before the first batch).
+    pub size: u32,
+    pub reward_mean: f64,
+    pub reward_second_moment: f64,
+    /// Next states and their empirical probabilities in the batch.
+    pub next: Vec<(u32, f64)>,
+}
+
+pub struct Mvp {
+    set: Setting,
+    scale: f64,
+    l: f64,
+    /// Visits so far, per row.
+    visits: Vec<u32>,
+    /// Statistics of the batch being collected.
+    current: Vec<RowCounts>,
+    /// Estimates from the latest completed batch.
+    frozen: Vec<Batch>,
+    /// How often each row's estimates were rebuilt.
+    rebuilds: Vec<u32>,
+    triggered: bool,
+    v: Vec<f64>,
+    policy: Vec<u32>,
+    version: u64,
+    updates: u64,
+}
+
+impl Mvp {
+    pub fn new(set: Setting, bonus_scale: f64) -> Mvp {
+        let (s, a, h, k) = (
+            set.states as f64,
+            set.actions as f64,
+            set.horizon as f64,
+            set.episodes as f64,
+        );
+        Mvp {
+            set,
+            scale: bonus_scale,
+            l: libm::log(200.0 * s * a * h * h * k * k / set.delta),
+            visits: vec![0; set.rows()],
+            current: vec![RowCounts::default(); set.rows()],
+            frozen: vec![Batch::default(); set.rows()],
+            rebuilds: vec![0; set.rows()],
+            // The first episode starts from a plan (all Q = H).
+            triggered: true,
+            v: vec![0.0; (set.horizon + 1) * set.states],
+            policy: vec![u32::MAX; set.horizon * set.states],
+            version: 0,
+            updates: 0,
+        }
+    }
+
+    /// How often the estimates of (h, s, a) have been rebuilt.
+    pub fn rebuilds(&self, h: usize, s: usize, a: usize) -> u32 {
+        self.rebuilds[self.set.row(h, s, a)]
+    }
+
+    /// The estimates of (h, s, a) from its latest completed batch.
+    pub fn batch(&self, h: usize, s: usize, a: usize) -> &Batch {
+        &self.frozen[self.set.row(h, s, a)]
+    }
+}
+
+impl Learner for Mvp {
+    fn begin_episode(&mut self, rng: &mut LearnRng) {
+        if !self.triggered {
+            return;
+        }
+        self.triggered = false;
+        let set = self.set;
+        let (hh, l, scale) = (set.horizon as f64, self.l, self.scale);
+        let frozen = &self.frozen;
+        let changed = plan(
+            &set,
+            &mut self.v,
+            &mut self.policy,
+            rng,
+            |h, s, a, v_next, _| {
+                let b = &frozen[set.row(h, s, a)];
+                if b.size == 0 {
+                    return hh;
+                }
+                let m = b.size as f64;
+                let (mut pv, mut pv2) = (0.0, 0.0);
+                for &(y, p) in &b.next {
+                    let x = v_next[y as usize];
+                    pv += p * x;
+                    pv2 += p * x * x;
+                }
+                let var = (pv2 - pv * pv).max(0.0);
+                let rvar = (b.reward_second_moment - b.reward_mean * b.reward_mean).max(0.0);
+                let bonus =
+                    C1 * (var * l / m).sqrt() + C2 * (rvar * l / m).sqrt() + C3 * hh * l / m;
+                (b.reward_mean + pv + scale * bonus).min(hh)
+            },
+        );
+        self.updates += 1;
+        if changed {
+            self.version += 1;
+        }
+    }
+
+    fn policy(&self) -> PolicyView<'_> {
+        PolicyView::Greedy(&self.policy)
+    }
+
+    fn policy_version(&self) -> u64 {
+        self.version
+    }
+
+    fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
+        self.policy[h * self.set.states + s] as usize
+    }
+
+    fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
+        let row = self.set.row(h, s, a);
+        self.visits[row] += 1;
+        let cur = &mut self.current[row];
+        cur.add(r, next);
+        if self.visits[row].is_power_of_two() {
+            let m = cur.n as f64;
+            self.frozen[row] = Batch {
+                size: cur.n,
+                reward_mean: cur.r_sum / m,
+                reward_second_moment: cur.r2_sum / m,
+                next: cur.next.iter().map(|&(y, c)| (y, c as f64 / m)).collect(),
+            };
+            *cur = RowCounts::default();
+            self.rebuilds[row] += 1;
+            self.triggered = true;
+        }
+    }
+
+    fn model_updates(&self) -> u64 {
+        self.updates
+    }
+}

@@ -1,0 +1,120 @@
+//! PSRL: posterior sampling for reinforcement learning. Before each episode
+//! it draws a model from the posterior and follows that model's optimal
+//! policy.
+//!
+//! Priors (ours; the paper leaves them to the user):
+//! - transitions: each P_h(·|s,a) has a Dirichlet(α₀, …, α₀) prior over all S
+//!   next states, α₀ = `prior` (default 1, the uniform prior on the simplex);
+//!   the posterior is Dirichlet(α₀ + counts);
+//! - rewards: a Beta(1, 1) prior on the mean of each (h, s, a); an observed
+//!   reward r ∈ [0, 1] counts as a success with probability r (the Bernoulli
+//!   trick of Agrawal & Goyal 2012, which keeps Beta conjugate for rewards in
+//!   [0, 1]).
+//!
+//! # References
+//! - I. Osband, D. Russo and B. Van Roy, "(More) Efficient Reinforcement
+//!   Learning via Posterior Sampling", NeurIPS 2013, arXiv:1306.0940.
+//! - S. Agrawal and N. Goyal, "Analysis of Thompson Sampling for the
+//!   Multi-armed Bandit Problem", COLT 2012, arXiv:1111.1797.
+
+use rand::Rng;
+
+use super::{LearnRng, Learner, PolicyView, Setting, plan};
+use crate::sample::{beta, gamma};
+
+pub struct Psrl {
+    set: Setting,
+    prior: f64,
+    /// Dense next-state counts, `[row·S + s']`.
+    counts: Vec<u32>,
+    successes: Vec<f64>,
+    trials: Vec<f64>,
+    weights: Vec<f64>,
+    v: Vec<f64>,
+    policy: Vec<u32>,
+    version: u64,
+    updates: u64,
+}
+
+impl Psrl {
+    pub fn new(set: Setting, prior: f64) -> Psrl {
+        Psrl {
+            set,
+            prior,
+            counts: vec![0; set.rows() * set.states],
+            successes: vec![0.0; set.rows()],
+            trials: vec![0.0; set.rows()],
+            weights: vec![0.0; set.states],
+            v: vec![0.0; (set.horizon + 1) * set.states],
+            policy: vec![u32::MAX; set.horizon * set.states],
+            version: 0,
+            updates: 0,
+        }
+    }
+}
+
+impl Learner for Psrl {
+    fn begin_episode(&mut self, rng: &mut LearnRng) {
+        let set = self.set;
+        let s_n = set.states;
+        let (counts, successes, trials, prior) =
+            (&self.counts, &self.successes, &self.trials, self.prior);
+        let weights = &mut self.weights;
+        // The sampled model is drawn row by row as the planner needs it; the
+        // planner's own tie-breaking draws interleave with these, in a fixed order.
+        let changed = plan(
+            &set,
+            &mut self.v,
+            &mut self.policy,
+            rng,
+            |h, s, a, v_next, draw| {
+                let row = set.row(h, s, a);
+                let c = &counts[row * s_n..(row + 1) * s_n];
+                let mut total = 0.0;
+                for (w, &k) in weights.iter_mut().zip(c) {
+                    *w = gamma(draw, prior + k as f64);
+                    total += *w;
+                }
+                let r = beta(
+                    draw,
+                    1.0 + successes[row],
+                    1.0 + trials[row] - successes[row],
+                );
+                let mut pv = 0.0;
+                for (w, x) in weights.iter().zip(v_next) {
+                    pv += w * x;
+                }
+                r + if total > 0.0 { pv / total } else { 0.0 }
+            },
+        );
+        self.updates += 1;
+        if changed {
+            self.version += 1;
+        }
+    }
+
+    fn policy(&self) -> PolicyView<'_> {
+        PolicyView::Greedy(&self.policy)
+    }
+
+    fn policy_version(&self) -> u64 {
+        self.version
+    }
+
+    fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
+        self.policy[h * self.set.states + s] as usize
+    }
+
+    fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, rng: &mut LearnRng) {
+        let row = self.set.row(h, s, a);
+        self.counts[row * self.set.states + next] += 1;
+        self.trials[row] += 1.0;
+        if rng.random::<f64>() < r {
+            self.successes[row] += 1.0;
+        }
+    }
+
+    fn model_updates(&self) -> u64 {
+        self.updates
+    }
+}

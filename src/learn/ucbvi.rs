@@ -1,0 +1,140 @@
+//! UCBVI: optimistic value iteration on the empirical model, replanned every
+//! episode.
+//!
+//! With n = N_h(s,a) ≥ 1 visits, empirical reward r̂ and transitions P̂:
+//!
+//! ```text
+//! Q_h(s,a) = min( Q_h^prev(s,a), H, r̂ + P̂·V_{h+1} + b ),   Q_h(s,a) = H when n = 0
+//! Hoeffding:  b = c · 7·H·L·√(1/n)
+//! Bernstein:  b = c · ( √(8·L·Var_P̂(V_{h+1})/n) + 14·H·L/(3n)
+//!                       + √(8·Σ_y P̂(y)·min(100²·H³·S²·A·L²/N'_{h+1}(y), H²) / n) )
+//! L = ln(5·S·A·T/δ),  T = K·H
+//! ```
+//!
+//! where c is `bonus_scale` (1 = the published constants), N'_{h+1}(y) the
+//! visits to state y at step h+1 (the min is H² when y was never visited
+//! there, and the last term is 0 at the last step), and Q^prev the previous
+//! episode's value, which makes Q non-increasing as in the paper. Rewards are
+//! estimated by their empirical mean (the paper takes them known).
+//!
+//! # References
+//! - M. G. Azar, I. Osband and R. Munos, "Minimax Regret Bounds for
+//!   Reinforcement Learning", ICML 2017, PMLR 70, arXiv:1703.05449
+//!   (Algorithm 1; bonus_1 and bonus_2). The Bernstein–Freedman bonus is
+//!   written here as we recall it from the paper, from memory.
+
+use super::{LearnRng, Learner, PolicyView, RowCounts, Setting, plan};
+
+pub struct Ucbvi {
+    set: Setting,
+    scale: f64,
+    bernstein: bool,
+    l: f64,
+    counts: Vec<RowCounts>,
+    /// N'_h(y): visits to state y at step h, `[h·S + y]`.
+    state_visits: Vec<u32>,
+    q_prev: Vec<f64>,
+    v: Vec<f64>,
+    policy: Vec<u32>,
+    version: u64,
+    updates: u64,
+}
+
+impl Ucbvi {
+    pub fn new(set: Setting, bonus_scale: f64, bernstein: bool) -> Ucbvi {
+        let l = libm::log(5.0 * set.states as f64 * set.actions as f64 * set.steps() / set.delta);
+        Ucbvi {
+            set,
+            scale: bonus_scale,
+            bernstein,
+            l,
+            counts: vec![RowCounts::default(); set.rows()],
+            state_visits: vec![0; set.horizon * set.states],
+            q_prev: vec![set.horizon as f64; set.rows()],
+            v: vec![0.0; (set.horizon + 1) * set.states],
+            policy: vec![u32::MAX; set.horizon * set.states],
+            version: 0,
+            updates: 0,
+        }
+    }
+}
+
+impl Learner for Ucbvi {
+    fn begin_episode(&mut self, rng: &mut LearnRng) {
+        let set = self.set;
+        let hh = set.horizon as f64;
+        let (s_f, a_f, l) = (set.states as f64, set.actions as f64, self.l);
+        let cap = 100.0 * 100.0 * hh * hh * hh * s_f * s_f * a_f * l * l;
+        let (counts, q_prev, visits) = (&self.counts, &mut self.q_prev, &self.state_visits);
+        let (scale, bernstein) = (self.scale, self.bernstein);
+        let changed = plan(
+            &set,
+            &mut self.v,
+            &mut self.policy,
+            rng,
+            |h, s, a, v_next, _| {
+                let row = set.row(h, s, a);
+                let c = &counts[row];
+                if c.n == 0 {
+                    return q_prev[row];
+                }
+                let n = c.n as f64;
+                let (pv, var) = c.mean_var(v_next);
+                let bonus = if bernstein {
+                    let correction = if h + 1 < set.horizon {
+                        let base = (h + 1) * set.states;
+                        let e: f64 = c
+                            .next
+                            .iter()
+                            .map(|&(y, k)| {
+                                let nv = visits[base + y as usize];
+                                let t = if nv == 0 {
+                                    hh * hh
+                                } else {
+                                    (cap / nv as f64).min(hh * hh)
+                                };
+                                k as f64 / n * t
+                            })
+                            .sum();
+                        (8.0 * e / n).sqrt()
+                    } else {
+                        0.0
+                    };
+                    (8.0 * l * var / n).sqrt() + 14.0 * hh * l / (3.0 * n) + correction
+                } else {
+                    7.0 * hh * l * (1.0 / n).sqrt()
+                };
+                let q = (c.mean_reward() + pv + scale * bonus)
+                    .min(hh)
+                    .min(q_prev[row]);
+                q_prev[row] = q;
+                q
+            },
+        );
+        self.updates += 1;
+        if changed {
+            self.version += 1;
+        }
+    }
+
+    fn policy(&self) -> PolicyView<'_> {
+        PolicyView::Greedy(&self.policy)
+    }
+
+    fn policy_version(&self) -> u64 {
+        self.version
+    }
+
+    fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
+        self.policy[h * self.set.states + s] as usize
+    }
+
+    fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
+        self.counts[self.set.row(h, s, a)].add(r, next);
+        self.state_visits[h * self.set.states + s] += 1;
+    }
+
+    fn model_updates(&self) -> u64 {
+        self.updates
+    }
+}

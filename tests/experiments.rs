@@ -1,0 +1,135 @@
+//! Experiment files, checkpoints and the summaries of results.
+
+use burnin::experiment::{burn_in, checkpoints, parse_experiment, tail_slope};
+use serde_json::{Value, json};
+
+fn model() -> Value {
+    serde_json::from_str(
+        &std::fs::read_to_string(
+            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/lantern-cave.json"),
+        )
+        .unwrap(),
+    )
+    .unwrap()
+}
+
+fn base() -> Value {
+    json!({
+        "format": "burnin-experiment", "version": 1, "model": model(),
+        "episodes": 1000, "seeds": 4, "seed": 1, "delta": 0.05, "checkpoints": 32,
+        "learners": [{"algorithm": "mvp", "bonus_scale": 0.05}, {"algorithm": "uniform"}]
+    })
+}
+
+fn problems_after(edit: impl FnOnce(&mut Value)) -> Vec<String> {
+    let mut v = base();
+    edit(&mut v);
+    match parse_experiment(&v.to_string(), None) {
+        Ok(_) => vec![],
+        Err(p) => p.lines(),
+    }
+}
+
+#[test]
+fn the_base_experiment_reads_with_defaults_filled_in() {
+    let e = parse_experiment(&base().to_string(), None).unwrap();
+    assert_eq!(
+        (e.episodes, e.seeds, e.seed, e.checkpoints),
+        (1000, 4, 1, 32)
+    );
+    assert_eq!(e.learners[0].label, "mvp ×0.05");
+    // Default ε targets: H/10 and H/20 (H = 14).
+    assert_eq!(e.eps_targets, vec![1.4, 0.7]);
+}
+
+#[test]
+fn bad_experiments_name_every_problem() {
+    assert_eq!(
+        problems_after(|v| {
+            v["episodes"] = json!(0);
+            v["delta"] = json!(1.5);
+            v["learners"][0]["epsilon"] = json!(0.1);
+            v["learners"][1]["algorithm"] = json!("ucb9");
+        }),
+        [
+            "episodes: expected a whole number in 1..=1000000000, found 0",
+            "delta: expected 0 < delta < 1, found 1.5",
+            "learners[0].epsilon: mvp takes no epsilon",
+            "learners[1].algorithm: unknown algorithm \"ucb9\"; known ones are mvp, ucbvi-hoeffding, ucbvi-bernstein, q-ucb-hoeffding, psrl, ucb1, eps-greedy, uniform",
+        ]
+    );
+    assert_eq!(
+        problems_after(|v| v["learners"] = json!([{"algorithm": "psrl"}, {"algorithm": "psrl"}])),
+        ["learners[1].label: duplicate label \"psrl\"; give each learner its own \"label\""]
+    );
+    assert_eq!(
+        problems_after(|v| v["learners"] = json!([{"algorithm": "ucb1"}])),
+        ["learners[0].algorithm: ucb1 is for bandits (S = 1, H = 1); this model has S = 7, H = 14"]
+    );
+    assert_eq!(
+        problems_after(|v| v["version"] = json!(3)),
+        ["version: version 3 is not supported; this build reads version 1"]
+    );
+}
+
+#[test]
+fn model_problems_are_reported_under_model() {
+    assert_eq!(
+        problems_after(|v| v["model"]["start"] = json!([0.5, 0, 0, 0, 0, 0, 0])),
+        ["model.start: probabilities sum to 0.5000, expected 1"]
+    );
+    assert_eq!(
+        problems_after(|v| v["model"]["steps"][0]["rewards"][0][0] = json!(1.5)),
+        [
+            "model.steps[0].rewards[0][0]: learners need every reward in [0, 1]; this one ranges over [1.5, 1.5]"
+        ]
+    );
+    assert_eq!(
+        problems_after(|v| v["model"]["discount"] = json!(0.9)),
+        [
+            "model.discount: learners work in the undiscounted episodic setting; remove the discount or set it to 1 (found 0.9)"
+        ]
+    );
+    assert_eq!(
+        problems_after(|v| {
+            v.as_object_mut().unwrap().remove("model");
+            v["model_path"] = json!("lantern-cave.json");
+        }),
+        ["model_path: model files cannot be read here; put the model inline as \"model\""]
+    );
+}
+
+#[test]
+fn checkpoints_are_log_spaced_and_end_at_k() {
+    // derived by hand: round(1000^(i/3)) for i = 0..3
+    assert_eq!(checkpoints(1000, 4), [1, 10, 100, 1000]);
+    let c = checkpoints(20000, 64);
+    assert_eq!((c[0], *c.last().unwrap()), (1, 20000));
+    assert!(c.windows(2).all(|w| w[0] < w[1]));
+    assert_eq!(checkpoints(3, 64), [1, 2, 3]);
+}
+
+#[test]
+fn slope_and_burn_in_of_synthetic_curves() {
+    // derived by hand: R = k until k = 1000, then R = 1000·√(k/1000); the
+    // local slope is 1 before 1000 and ½ after, so burn-in is 1000 and the
+    // last-decade slope ½.
+    let ks = checkpoints(100_000, 41);
+    let r: Vec<f64> = ks
+        .iter()
+        .map(|&k| {
+            let k = k as f64;
+            if k <= 1000.0 {
+                k
+            } else {
+                1000.0 * (k / 1000.0).sqrt()
+            }
+        })
+        .collect();
+    assert_eq!(burn_in(&ks, &r), Some(1000));
+    assert!((tail_slope(&ks, &r).unwrap() - 0.5).abs() < 1e-9);
+    // Linear regret never burns in.
+    let lin: Vec<f64> = ks.iter().map(|&k| 0.3 * k as f64).collect();
+    assert_eq!(burn_in(&ks, &lin), None);
+    assert!((tail_slope(&ks, &lin).unwrap() - 1.0).abs() < 1e-12);
+}
