@@ -380,3 +380,33 @@ fn run_reports_bad_experiments_with_exit_1() {
         r.stderr
     );
 }
+
+#[test]
+fn run_sweeps_a_generator_parameter() {
+    let d = Scratch::new("run-sweep");
+    let f = d.file(
+        "sweep.json",
+        r#"{"format": "burnin-experiment", "version": 1,
+            "generator": {"kind": "lock", "horizon": 3, "actions": 2, "seed": 2},
+            "episodes": 200, "seeds": 2, "sweep": {"parameter": "horizon", "values": [2, 3, 4]},
+            "learners": [{"algorithm": "uniform"}]}"#,
+    );
+    let r = burnin(&["run", "--json", p(&f)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let j: serde_json::Value = serde_json::from_str(&r.stdout).unwrap();
+    assert_eq!(j["format"], "burnin-sweep");
+    assert_eq!(j["parameter"], "horizon");
+    // derived by hand: a uniform guesser opens a lock of length H with
+    // probability 2^(−H), so its regret over K episodes is K·(1 − 2^(−H)).
+    let regret = j["learners"][0]["regret_mean"].as_array().unwrap();
+    for (h, x) in [2, 3, 4].iter().zip(regret) {
+        let want = 200.0 * (1.0 - 0.5f64.powi(*h));
+        assert!((x.as_f64().unwrap() - want).abs() < 1e-9, "H = {h}");
+    }
+    let t = burnin(&["run", p(&f)]);
+    assert!(
+        t.stdout.starts_with("regret at K against horizon"),
+        "{}",
+        t.stdout
+    );
+}

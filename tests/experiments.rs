@@ -133,3 +133,128 @@ fn slope_and_burn_in_of_synthetic_curves() {
     assert_eq!(burn_in(&ks, &lin), None);
     assert!((tail_slope(&ks, &lin).unwrap() - 1.0).abs() < 1e-12);
 }
+
+fn sweep_experiment(sweep: Value) -> Value {
+    json!({
+        "format": "burnin-experiment", "version": 1,
+        "generator": {"kind": "random", "states": 4, "actions": 2, "successors": 2, "horizon": 4, "seed": 3},
+        "episodes": 300, "seeds": 2, "sweep": sweep,
+        "learners": [{"algorithm": "mvp", "bonus_scale": 0.01}, {"algorithm": "eps-greedy", "epsilon": 0.2}]
+    })
+}
+
+#[test]
+fn a_sweep_expands_into_one_experiment_per_value() {
+    let e = parse_experiment(
+        &sweep_experiment(json!({"parameter": "states", "values": [2, 5]})).to_string(),
+        None,
+    )
+    .unwrap();
+    let pts = e.points();
+    assert_eq!(
+        pts.iter().map(|p| p.model.n_states()).collect::<Vec<_>>(),
+        [2, 5]
+    );
+    let e = parse_experiment(
+        &sweep_experiment(json!({"parameter": "horizon", "values": [2, 10]})).to_string(),
+        None,
+    )
+    .unwrap();
+    // Default ε targets follow H.
+    assert_eq!(e.points()[1].eps_targets, vec![1.0, 0.5]);
+    let e = parse_experiment(
+        &sweep_experiment(json!({"parameter": "epsilon", "values": [0.05, 0.5]})).to_string(),
+        None,
+    )
+    .unwrap();
+    let p = e.points();
+    assert_eq!(
+        p[1].learners[1].algorithm,
+        burnin::learn::Algorithm::EpsGreedy { epsilon: 0.5 }
+    );
+    // Learners without the parameter are untouched.
+    assert_eq!(p[1].learners[0], e.learners[0]);
+}
+
+#[test]
+fn bad_sweeps_name_the_value() {
+    let text = sweep_experiment(json!({"parameter": "states", "values": [3, 1]})).to_string();
+    // successors = 2 cannot be drawn from 1 state.
+    assert_eq!(
+        parse_experiment(&text, None).unwrap_err().lines(),
+        ["sweep.values[1].generator.successors: 2 is outside 1..=1"]
+    );
+    let text = sweep_experiment(json!({"parameter": "delta", "values": [0.1, 2]})).to_string();
+    assert_eq!(
+        parse_experiment(&text, None).unwrap_err().lines(),
+        ["sweep.values[1]: expected 0 < delta < 1, found 2"]
+    );
+    let text = sweep_experiment(json!({"parameter": "gamma", "values": [1]})).to_string();
+    assert_eq!(
+        parse_experiment(&text, None).unwrap_err().lines(),
+        [
+            "sweep.parameter: unknown parameter \"gamma\"; known ones are states, actions, horizon, bonus_scale, epsilon, delta"
+        ]
+    );
+    let mut v = sweep_experiment(json!({"parameter": "bonus_scale", "values": [0.1]}));
+    v["generator"]["succesors"] = json!(2);
+    assert_eq!(
+        parse_experiment(&v.to_string(), None).unwrap_err().lines(),
+        [
+            "generator.succesors: random takes no succesors; its parameters are seed, states, actions, successors, horizon, time_dependent, fixed_rewards"
+        ]
+    );
+}
+
+/// Every demo model with every learner that applies to it: results whose
+/// numbers hang together (regret ≥ 0 and non-decreasing, intervals around
+/// the mean, at most H·K; curves end at K).
+#[test]
+fn every_demo_model_runs_with_every_learner() {
+    use burnin::experiment::{Context, run_all, summarise};
+    let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models");
+    let index: Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.join("index.json")).unwrap()).unwrap();
+    for f in index["models"].as_array().unwrap() {
+        let text = std::fs::read_to_string(dir.join(f.as_str().unwrap())).unwrap();
+        let model: Value = serde_json::from_str(&text).unwrap();
+        let bandit = model["states"].as_array().unwrap().len() == 1 && model["horizon"] == 1;
+        let mut learners = vec![
+            json!({"algorithm": "mvp"}),
+            json!({"algorithm": "mvp", "bonus_scale": 0.01, "label": "mvp tuned"}),
+            json!({"algorithm": "ucbvi-hoeffding"}),
+            json!({"algorithm": "ucbvi-bernstein"}),
+            json!({"algorithm": "q-ucb-hoeffding"}),
+            json!({"algorithm": "psrl"}),
+            json!({"algorithm": "eps-greedy"}),
+            json!({"algorithm": "uniform"}),
+        ];
+        if bandit {
+            learners.push(json!({"algorithm": "ucb1"}));
+        }
+        let exp = json!({"format": "burnin-experiment", "version": 1, "model": model,
+            "episodes": 200, "seeds": 2, "checkpoints": 16, "learners": learners});
+        let ctx = Context::new(parse_experiment(&exp.to_string(), None).unwrap());
+        let r = summarise(&ctx, run_all(&ctx));
+        let hk = r.horizon as f64 * 200.0;
+        for l in &r.learners {
+            assert_eq!(*l.checkpoints.last().unwrap(), 200, "{f}: {}", l.label);
+            for c in 0..l.checkpoints.len() {
+                assert!(
+                    l.regret_lo[c] <= l.regret_mean[c] + 1e-9
+                        && l.regret_mean[c] <= l.regret_hi[c] + 1e-9
+                );
+                assert!(l.regret_mean[c] >= 0.0 && l.regret_mean[c] <= hk);
+                if c > 0 {
+                    assert!(l.regret_mean[c] >= l.regret_mean[c - 1]);
+                }
+            }
+            assert!(l.model_updates.iter().all(|&u| u <= 200));
+            let visits: f64 = l.visits.iter().flatten().sum();
+            assert!(
+                (visits - hk).abs() < 1e-9,
+                "{f}: every step is counted once"
+            );
+        }
+    }
+}

@@ -427,7 +427,7 @@ fn generate(kind: Kind, seed: u64, output: Option<&Path>) -> Result<(), Failure>
 }
 
 fn run(path: &Path, json: bool, csv: Option<&Path>, threads: Option<usize>) -> Result<(), Failure> {
-    use burnin::experiment::{Context, Run, parse_experiment, summarise};
+    use burnin::experiment::{Context, Run, SweepResults, parse_experiment, summarise};
     use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering};
     use std::sync::{Arc, Mutex};
 
@@ -439,52 +439,93 @@ fn run(path: &Path, json: bool, csv: Option<&Path>, threads: Option<usize>) -> R
         String::from_utf8(bytes).map_err(|_| format!("{} is not UTF-8 text", p.display()))
     };
     let exp = parse_experiment(&text, Some(&loader)).map_err(invalid)?;
-    let ctx = Context::new(exp);
-    let runs = ctx.runs();
+    // A sweep is one experiment per value; all their runs share one pool.
+    let contexts: Vec<Arc<Context>> = exp.points().into_iter().map(Context::new).collect();
+    let jobs: Vec<(usize, usize)> = contexts
+        .iter()
+        .enumerate()
+        .flat_map(|(p, c)| (0..c.runs()).map(move |i| (p, i)))
+        .collect();
     let threads = threads
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
-        .clamp(1, runs.max(1));
+        .clamp(1, jobs.len().max(1));
     let next = AtomicUsize::new(0);
     let done_episodes = AtomicU64::new(0);
-    let records = Mutex::new(Vec::with_capacity(runs));
-    let progress = Progress::new(ctx.total_episodes());
+    let records = Mutex::new(vec![Vec::new(); contexts.len()]);
+    let progress = Progress::new(contexts.iter().map(|c| c.total_episodes()).sum());
     std::thread::scope(|scope| {
         for _ in 0..threads {
             scope.spawn(|| {
                 loop {
-                    let i = next.fetch_add(1, Ordering::Relaxed);
-                    if i >= runs {
-                        break;
-                    }
-                    let mut r = Run::new(Arc::clone(&ctx), i);
+                    let j = next.fetch_add(1, Ordering::Relaxed);
+                    let Some(&(p, i)) = jobs.get(j) else { break };
+                    let mut r = Run::new(Arc::clone(&contexts[p]), i);
                     const CHUNK: u64 = 512;
                     loop {
                         let before = r.episodes_done();
                         let finished = r.advance(CHUNK);
-                        let total = done_episodes
-                            .fetch_add(r.episodes_done() - before, Ordering::Relaxed)
-                            + (r.episodes_done() - before);
-                        progress.show(total);
+                        let step = r.episodes_done() - before;
+                        progress.show(done_episodes.fetch_add(step, Ordering::Relaxed) + step);
                         if finished {
                             break;
                         }
                     }
-                    records.lock().expect("no thread panicked").push(r.finish());
+                    records.lock().expect("no thread panicked")[p].push(r.finish());
                 }
             });
         }
     });
     progress.clear();
-    let results = summarise(&ctx, records.into_inner().expect("no thread panicked"));
+    let mut points: Vec<_> = contexts
+        .iter()
+        .zip(records.into_inner().expect("no thread panicked"))
+        .map(|(c, recs)| summarise(c, recs))
+        .collect();
+    let (out_json, out_csv, table) = match &exp.sweep {
+        None => {
+            let r = points.remove(0);
+            (r.to_json(), r.to_csv(), results_table(&r))
+        }
+        Some(s) => {
+            let r = SweepResults::new(&exp.name, s.parameter.key(), &s.values, points);
+            (r.to_json(), r.to_csv(), sweep_table(&r))
+        }
+    };
     if let Some(p) = csv {
-        std::fs::write(p, results.to_csv())
+        std::fs::write(p, out_csv)
             .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display())))?;
     }
-    if json {
-        emit(&results.to_json())
-    } else {
-        emit(&results_table(&results))
+    emit(if json { &out_json } else { &table })
+}
+
+fn sweep_table(r: &burnin::experiment::SweepResults) -> String {
+    use std::fmt::Write as _;
+    let mut o = String::new();
+    let _ = writeln!(o, "regret at K against {}", r.parameter);
+    let lw = r
+        .learners
+        .iter()
+        .map(|l| l.label.chars().count())
+        .max()
+        .unwrap_or(7)
+        .max(7);
+    let _ = write!(o, "\n{:<lw$}", "learner");
+    for v in &r.values {
+        let _ = write!(o, "  {:>26}", format!("{} = {v}", r.parameter));
     }
+    o.push('\n');
+    for l in &r.learners {
+        let _ = write!(o, "{:<lw$}", l.label);
+        for i in 0..r.values.len() {
+            let cell = format!(
+                "{:.2} [{:.2}, {:.2}]",
+                l.regret_mean[i], l.regret_lo[i], l.regret_hi[i]
+            );
+            let _ = write!(o, "  {cell:>26}");
+        }
+        o.push('\n');
+    }
+    o
 }
 
 /// A progress line on stderr: a bar when stderr is a terminal, otherwise a

@@ -15,12 +15,12 @@ mod results;
 mod spec;
 
 pub use results::{
-    EpsResult, LearnerResult, RESULTS_FORMAT, RESULTS_VERSION, Results, SETTLED_SLOPE, burn_in,
-    summarise, tail_slope,
+    EpsResult, LearnerResult, RESULTS_FORMAT, RESULTS_VERSION, Results, SETTLED_SLOPE,
+    SWEEP_FORMAT, SweepLearner, SweepResults, burn_in, csv_field, summarise, tail_slope,
 };
 pub use spec::{
-    EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, LearnerSpec, ModelLoader, check_learnable,
-    parse_experiment,
+    EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, LearnerSpec, ModelLoader, Sweep,
+    SweepParameter, check_learnable, parse_experiment,
 };
 
 use std::sync::Arc;

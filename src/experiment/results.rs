@@ -235,13 +235,6 @@ impl Results {
         let mut o = String::from(
             "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,return_mean,bound,lower_bound\n",
         );
-        let q = |s: &str| {
-            if s.contains([',', '"', '\n', '\r']) {
-                format!("\"{}\"", s.replace('"', "\"\""))
-            } else {
-                s.to_owned()
-            }
-        };
         for l in &self.learners {
             for (c, k) in l.checkpoints.iter().enumerate() {
                 let bound = l
@@ -251,7 +244,7 @@ impl Results {
                     .unwrap_or_default();
                 o.push_str(&format!(
                     "{},{},{k},{},{},{},{},{},{bound},{}\n",
-                    q(&l.label),
+                    csv_field(&l.label),
                     l.algorithm,
                     l.regret_mean[c],
                     l.regret_lo[c],
@@ -263,5 +256,102 @@ impl Results {
             }
         }
         o
+    }
+}
+
+/// The `format` of sweep results.
+pub const SWEEP_FORMAT: &str = "burnin-sweep";
+
+/// One learner across the values of a sweep.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SweepLearner {
+    pub label: String,
+    pub algorithm: String,
+    /// Mean regret at K for each value, with its 95% interval.
+    pub regret_mean: Vec<f64>,
+    pub regret_lo: Vec<f64>,
+    pub regret_hi: Vec<f64>,
+    pub slope: Vec<Option<f64>>,
+    pub burn_in: Vec<Option<u64>>,
+}
+
+/// Results of a sweep: regret at K against the swept parameter, and the
+/// full results of every point.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SweepResults {
+    pub format: String,
+    pub version: u64,
+    pub name: String,
+    pub parameter: String,
+    pub values: Vec<f64>,
+    pub learners: Vec<SweepLearner>,
+    pub points: Vec<Results>,
+}
+
+impl SweepResults {
+    /// Collects the results of every point of a sweep over `parameter`.
+    pub fn new(name: &str, parameter: &str, values: &[f64], points: Vec<Results>) -> SweepResults {
+        let learners = points[0]
+            .learners
+            .iter()
+            .enumerate()
+            .map(|(li, l)| {
+                let at_k = |f: fn(&LearnerResult) -> f64| -> Vec<f64> {
+                    points.iter().map(|p| f(&p.learners[li])).collect()
+                };
+                SweepLearner {
+                    label: l.label.clone(),
+                    algorithm: l.algorithm.clone(),
+                    regret_mean: at_k(|l| *l.regret_mean.last().unwrap()),
+                    regret_lo: at_k(|l| *l.regret_lo.last().unwrap()),
+                    regret_hi: at_k(|l| *l.regret_hi.last().unwrap()),
+                    slope: points.iter().map(|p| p.learners[li].slope).collect(),
+                    burn_in: points.iter().map(|p| p.learners[li].burn_in).collect(),
+                }
+            })
+            .collect();
+        SweepResults {
+            format: SWEEP_FORMAT.into(),
+            version: RESULTS_VERSION,
+            name: name.to_owned(),
+            parameter: parameter.to_owned(),
+            values: values.to_vec(),
+            learners,
+            points,
+        }
+    }
+
+    pub fn to_json(&self) -> String {
+        serde_json::to_string_pretty(self).expect("results hold no non-finite numbers") + "\n"
+    }
+
+    /// One row per (learner, value): regret at K and its interval.
+    pub fn to_csv(&self) -> String {
+        let mut o = format!(
+            "learner,algorithm,{},regret_mean,regret_lo,regret_hi\n",
+            self.parameter
+        );
+        for l in &self.learners {
+            for (i, v) in self.values.iter().enumerate() {
+                o.push_str(&format!(
+                    "{},{},{v},{},{},{}\n",
+                    csv_field(&l.label),
+                    l.algorithm,
+                    l.regret_mean[i],
+                    l.regret_lo[i],
+                    l.regret_hi[i]
+                ));
+            }
+        }
+        o
+    }
+}
+
+/// A CSV field, quoted when it must be (RFC 4180).
+pub fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_owned()
     }
 }

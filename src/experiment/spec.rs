@@ -3,6 +3,7 @@
 use serde::de::MapAccess;
 use serde_json::value::RawValue;
 
+use crate::generate::GeneratorSpec;
 use crate::lax::{Accept, Fields, Lax, Reader, syntax_problem};
 use crate::learn::{Algorithm, Setting};
 use crate::model::json::{check_header, parse_model};
@@ -28,6 +29,7 @@ const FIELDS: &[&str] = &[
     "name",
     "model",
     "model_path",
+    "generator",
     "episodes",
     "seeds",
     "seed",
@@ -35,6 +37,7 @@ const FIELDS: &[&str] = &[
     "checkpoints",
     "eps_targets",
     "learners",
+    "sweep",
 ];
 const LEARNER_FIELDS: &[&str] = &["algorithm", "label", "bonus_scale", "epsilon", "prior"];
 
@@ -45,11 +48,68 @@ pub struct LearnerSpec {
     pub algorithm: Algorithm,
 }
 
+/// What a sweep varies.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SweepParameter {
+    /// S, through the experiment's generator.
+    States,
+    /// A, through the experiment's generator.
+    Actions,
+    /// H, through the experiment's generator.
+    Horizon,
+    /// Every learner's `bonus_scale`.
+    BonusScale,
+    /// Every eps-greedy learner's `epsilon`.
+    Epsilon,
+    /// The experiment's δ.
+    Delta,
+}
+
+impl SweepParameter {
+    pub const KEYS: &'static [&'static str] = &[
+        "states",
+        "actions",
+        "horizon",
+        "bonus_scale",
+        "epsilon",
+        "delta",
+    ];
+
+    pub fn key(self) -> &'static str {
+        Self::KEYS[self as usize]
+    }
+
+    fn from_key(k: &str) -> Option<SweepParameter> {
+        use SweepParameter::*;
+        [States, Actions, Horizon, BonusScale, Epsilon, Delta]
+            .into_iter()
+            .find(|p| p.key() == k)
+    }
+}
+
+/// One parameter varied over a list of values; every value is a whole
+/// experiment of its own.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Sweep {
+    pub parameter: SweepParameter,
+    pub values: Vec<f64>,
+}
+
+/// Most values in a sweep.
+pub const MAX_SWEEP_VALUES: usize = 100;
+
 /// A checked experiment, ready to run.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Experiment {
     pub name: String,
     pub model: Mdp,
+    /// The generator the model came from, when the file gave one.
+    pub generator: Option<GeneratorSpec>,
+    /// A parameter to vary (see [`Experiment::points`]).
+    pub sweep: Option<Sweep>,
+    /// Whether `eps_targets` are the defaults (H/10, H/20), recomputed when a
+    /// sweep changes H.
+    pub eps_default: bool,
     /// K, episodes per run.
     pub episodes: u64,
     /// Runs per learner.
@@ -92,6 +152,8 @@ struct RawExperiment {
     checkpoints: Option<Lax<f64>>,
     eps_targets: Option<Lax<Vec<Lax<f64>>>>,
     learners: Option<Lax<Vec<Lax<RawLearner>>>>,
+    generator: Option<serde_json::Value>,
+    sweep: Option<serde_json::Value>,
     fields: Fields,
 }
 
@@ -113,6 +175,8 @@ impl Accept for RawExperiment {
                 "checkpoints" => f.store(&mut map, &key, &mut e.checkpoints)?,
                 "eps_targets" => f.store(&mut map, &key, &mut e.eps_targets)?,
                 "learners" => f.store(&mut map, &key, &mut e.learners)?,
+                "generator" => f.store(&mut map, &key, &mut e.generator)?,
+                "sweep" => f.store(&mut map, &key, &mut e.sweep)?,
                 _ => f.skip(&mut map, key)?,
             }
         }
@@ -365,24 +429,41 @@ fn model_of(
     r: &mut Reader,
     inline: Option<Box<RawValue>>,
     path: Option<Lax<String>>,
+    generator: Option<&GeneratorSpec>,
     load: Option<ModelLoader>,
 ) -> Option<Mdp> {
-    let (text, prefix) = match (inline, path) {
-        (Some(_), Some(_)) => {
-            r.problems.push(
-                "model_path",
-                "give either \"model\" or \"model_path\", not both",
-            );
+    let given = inline.is_some() as u8 + path.is_some() as u8 + generator.is_some() as u8;
+    if given > 1 {
+        r.problems.push(
+            "model",
+            "give one of \"model\", \"model_path\" and \"generator\", not several",
+        );
+        return None;
+    }
+    if let Some(g) = generator {
+        let m = match g.generate("generator") {
+            Ok(m) => m,
+            Err(p) => {
+                prefixed_plain(&p, r.problems);
+                return None;
+            }
+        };
+        if let Err(p) = check_learnable(&m) {
+            prefixed("generator", &p, r.problems);
             return None;
         }
+        return Some(m);
+    }
+    let (text, prefix) = match (inline, path) {
         (None, None) => {
             r.problems.push(
                 "model",
-                "missing; expected an inline burnin-model object (or \"model_path\" in the CLI)",
+                "missing; expected an inline burnin-model object, a \"generator\" (or \"model_path\" in the CLI)",
             );
             return None;
         }
         (Some(raw), None) => (raw.get().to_owned(), "model".to_owned()),
+        (Some(_), Some(_)) => unreachable!("counted above"),
         (None, Some(p)) => {
             let p = r.take("model_path", p, "a file path")?;
             let Some(load) = load else {
@@ -435,7 +516,21 @@ fn convert(
         Some(n) => r.take("name", n, "a string"),
         None => Some(String::new()),
     };
-    let model = model_of(r, e.model, e.model_path, load);
+    let generator = match &e.generator {
+        None => None,
+        Some(v) => match GeneratorSpec::from_json(v, "generator") {
+            Ok(g) => Some(g),
+            Err(p) => {
+                prefixed_plain(&p, r.problems);
+                return None;
+            }
+        },
+    };
+    let model = model_of(r, e.model, e.model_path, generator.as_ref(), load);
+    let sweep = e
+        .sweep
+        .as_ref()
+        .and_then(|v| sweep_of(r, v, generator.is_some()));
     let episodes = whole_in(r, "episodes", e.episodes, None, 1, MAX_EPISODES);
     let seeds = whole_in(r, "seeds", e.seeds, Some(1), 1, MAX_SEEDS);
     let seed = whole_in(r, "seed", e.seed, Some(1), 0, MAX_SEED);
@@ -520,15 +615,192 @@ fn convert(
     }
     let model = model?;
     let hh = model.horizon() as f64;
-    Some(Experiment {
+    let eps_targets = eps_targets?;
+    let exp = Experiment {
         name: name?,
-        eps_targets: eps_targets?.unwrap_or_else(|| vec![hh / 10.0, hh / 20.0]),
+        eps_default: eps_targets.is_none(),
+        eps_targets: eps_targets.unwrap_or_else(|| vec![hh / 10.0, hh / 20.0]),
         model,
+        generator,
+        sweep: None,
         episodes: episodes?,
         seeds: seeds?,
         seed: seed?,
         delta: delta?,
         checkpoints: checkpoints?,
         learners: specs,
-    })
+    };
+    if e.sweep.is_some() {
+        let sweep = sweep?;
+        // Every point must be runnable before anything runs.
+        for (i, &x) in sweep.values.iter().enumerate() {
+            if let Err(p) = exp.point(sweep.parameter, x) {
+                prefixed(&format!("sweep.values[{i}]"), &p, r.problems);
+            }
+        }
+        return Some(Experiment {
+            sweep: Some(sweep),
+            ..exp
+        });
+    }
+    Some(exp)
+}
+
+fn sweep_of(r: &mut Reader, v: &serde_json::Value, has_generator: bool) -> Option<Sweep> {
+    use serde_json::Value;
+    let Some(map) = v.as_object() else {
+        r.problems.push(
+            "sweep",
+            "expected an object {\"parameter\": …, \"values\": […]}",
+        );
+        return None;
+    };
+    for k in map.keys() {
+        if k != "parameter" && k != "values" {
+            r.problems.push(
+                format!("sweep.{k}"),
+                "unknown field; known fields here are parameter, values",
+            );
+        }
+    }
+    let keys = SweepParameter::KEYS.join(", ");
+    let parameter = match map.get("parameter") {
+        Some(Value::String(k)) => match SweepParameter::from_key(k) {
+            Some(p) => p,
+            None => {
+                r.problems.push(
+                    "sweep.parameter",
+                    format!("unknown parameter {k:?}; known ones are {keys}"),
+                );
+                return None;
+            }
+        },
+        _ => {
+            r.problems
+                .push("sweep.parameter", format!("expected one of {keys}"));
+            return None;
+        }
+    };
+    if matches!(
+        parameter,
+        SweepParameter::States | SweepParameter::Actions | SweepParameter::Horizon
+    ) && !has_generator
+    {
+        r.problems.push(
+            "sweep.parameter",
+            format!(
+                "sweeping {} needs a \"generator\" instead of a fixed model",
+                parameter.key()
+            ),
+        );
+        return None;
+    }
+    let values: Vec<f64> = match map.get("values") {
+        Some(Value::Array(xs)) if !xs.is_empty() && xs.len() <= MAX_SWEEP_VALUES => {
+            let mut out = Vec::with_capacity(xs.len());
+            for (i, x) in xs.iter().enumerate() {
+                match x.as_f64() {
+                    Some(x) => out.push(x),
+                    None => r.problems.push(
+                        format!("sweep.values[{i}]"),
+                        format!("expected a number, found {x}"),
+                    ),
+                }
+            }
+            out
+        }
+        _ => {
+            r.problems.push(
+                "sweep.values",
+                format!("expected an array of 1 to {MAX_SWEEP_VALUES} numbers"),
+            );
+            return None;
+        }
+    };
+    Some(Sweep { parameter, values })
+}
+
+impl Experiment {
+    /// The experiment with the sweep parameter set to `x` (no sweep of its own).
+    pub fn point(&self, parameter: SweepParameter, x: f64) -> Result<Experiment, Problems> {
+        use SweepParameter::*;
+        let mut e = Experiment {
+            sweep: None,
+            ..self.clone()
+        };
+        let bad = |msg: String| Err(Problems::single("", msg));
+        match parameter {
+            States | Actions | Horizon => {
+                if !(x.fract() == 0.0 && (1.0..=1e6).contains(&x)) {
+                    return bad(format!("expected a whole number ≥ 1, found {x}"));
+                }
+                let g = self.generator.as_ref().expect("checked when read");
+                let Some(g) = g.with(parameter.key(), x as usize) else {
+                    return bad(format!(
+                        "this generator has no parameter {}",
+                        parameter.key()
+                    ));
+                };
+                e.model = g.generate("generator")?;
+                check_learnable(&e.model)?;
+                e.generator = Some(g);
+                if e.eps_default {
+                    let hh = e.model.horizon() as f64;
+                    e.eps_targets = vec![hh / 10.0, hh / 20.0];
+                }
+                let set = e.setting();
+                for (i, l) in e.learners.iter().enumerate() {
+                    if let Err(msg) = l.algorithm.check_setting(&set) {
+                        return Err(Problems::single(format!("learners[{i}]"), msg));
+                    }
+                }
+            }
+            BonusScale => {
+                if !(x.is_finite() && x > 0.0) {
+                    return bad(format!("expected a bonus scale > 0, found {x}"));
+                }
+                for l in &mut e.learners {
+                    l.algorithm = l.algorithm.with_bonus_scale(x);
+                }
+            }
+            Epsilon => {
+                if !(0.0..=1.0).contains(&x) {
+                    return bad(format!("expected a probability in [0, 1], found {x}"));
+                }
+                for l in &mut e.learners {
+                    if let Algorithm::EpsGreedy { epsilon } = &mut l.algorithm {
+                        *epsilon = x;
+                    }
+                }
+            }
+            Delta => {
+                if !(x > 0.0 && x < 1.0) {
+                    return bad(format!("expected 0 < delta < 1, found {x}"));
+                }
+                e.delta = x;
+            }
+        }
+        Ok(e)
+    }
+
+    /// The experiments a sweep runs, one per value (just this one without a sweep).
+    pub fn points(&self) -> Vec<Experiment> {
+        match &self.sweep {
+            None => vec![self.clone()],
+            Some(s) => s
+                .values
+                .iter()
+                .map(|&x| {
+                    self.point(s.parameter, x)
+                        .expect("every point was checked when the experiment was read")
+                })
+                .collect(),
+        }
+    }
+}
+
+fn prefixed_plain(p: &Problems, into: &mut Problems) {
+    for pr in p.list() {
+        into.push(pr.path.clone(), pr.message.clone());
+    }
 }

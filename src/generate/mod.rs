@@ -6,6 +6,10 @@
 //! seed, drawing only `u32`, `u64` and `f64` values, so a seed gives the same
 //! model on every platform (native and wasm32 alike).
 
+pub mod spec;
+
+pub use spec::{GeneratorSpec, KINDS};
+
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 

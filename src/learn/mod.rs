@@ -279,6 +279,18 @@ impl Algorithm {
         }
     }
 
+    /// The same algorithm with its bonus scale set to `b` (unchanged if it has none).
+    pub fn with_bonus_scale(&self, b: f64) -> Algorithm {
+        match self {
+            Algorithm::Mvp { .. } => Algorithm::Mvp { bonus_scale: b },
+            Algorithm::UcbviHoeffding { .. } => Algorithm::UcbviHoeffding { bonus_scale: b },
+            Algorithm::UcbviBernstein { .. } => Algorithm::UcbviBernstein { bonus_scale: b },
+            Algorithm::QUcbHoeffding { .. } => Algorithm::QUcbHoeffding { bonus_scale: b },
+            Algorithm::Ucb1 { .. } => Algorithm::Ucb1 { bonus_scale: b },
+            other => other.clone(),
+        }
+    }
+
     /// Why this algorithm cannot run in `set`, if it cannot.
     pub fn check_setting(&self, set: &Setting) -> Result<(), String> {
         match self {
