@@ -258,3 +258,20 @@ fn every_demo_model_runs_with_every_learner() {
         }
     }
 }
+
+#[test]
+fn demo_experiments_read_with_their_model_paths() {
+    let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/experiments");
+    let mut n = 0;
+    for e in std::fs::read_dir(&dir).unwrap() {
+        let p = e.unwrap().path();
+        let base = p.parent().unwrap().to_path_buf();
+        let load =
+            move |rel: &str| std::fs::read_to_string(base.join(rel)).map_err(|e| e.to_string());
+        let exp = parse_experiment(&std::fs::read_to_string(&p).unwrap(), Some(&load))
+            .unwrap_or_else(|e| panic!("{}: {e}", p.display()));
+        assert!(!exp.name.is_empty());
+        n += 1;
+    }
+    assert!(n >= 1);
+}
