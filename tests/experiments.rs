@@ -275,3 +275,24 @@ fn demo_experiments_read_with_their_model_paths() {
     }
     assert!(n >= 1);
 }
+
+/// A single worker stepping every run in small chunks gets exactly what the
+/// CLI's thread pool gets (the same records, summarised the same way).
+#[test]
+fn stepping_in_chunks_gives_the_same_output_as_running_whole() {
+    use burnin::experiment::{Batch, Context, assemble, run_all};
+    let text =
+        sweep_experiment(json!({"parameter": "bonus_scale", "values": [0.01, 0.1]})).to_string();
+    let exp = parse_experiment(&text, None).unwrap();
+    let mut b = Batch::new(exp.clone());
+    assert_eq!(b.total_episodes(), 2 * 2 * 2 * 300);
+    let mut calls = 0;
+    while !b.advance(37) {
+        calls += 1;
+        assert!(b.episodes_done() <= b.total_episodes());
+    }
+    assert!(calls > 30);
+    let contexts: Vec<_> = exp.points().into_iter().map(Context::new).collect();
+    let records = contexts.iter().map(run_all).collect();
+    assert_eq!(b.output(), assemble(&exp, &contexts, records));
+}

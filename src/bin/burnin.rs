@@ -427,7 +427,7 @@ fn generate(kind: Kind, seed: u64, output: Option<&Path>) -> Result<(), Failure>
 }
 
 fn run(path: &Path, json: bool, csv: Option<&Path>, threads: Option<usize>) -> Result<(), Failure> {
-    use burnin::experiment::{Context, Run, SweepResults, parse_experiment, summarise};
+    use burnin::experiment::{Context, Output, Run, assemble, parse_experiment};
     use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering};
     use std::sync::{Arc, Mutex};
 
@@ -476,21 +476,16 @@ fn run(path: &Path, json: bool, csv: Option<&Path>, threads: Option<usize>) -> R
         }
     });
     progress.clear();
-    let mut points: Vec<_> = contexts
-        .iter()
-        .zip(records.into_inner().expect("no thread panicked"))
-        .map(|(c, recs)| summarise(c, recs))
-        .collect();
-    let (out_json, out_csv, table) = match &exp.sweep {
-        None => {
-            let r = points.remove(0);
-            (r.to_json(), r.to_csv(), results_table(&r))
-        }
-        Some(s) => {
-            let r = SweepResults::new(&exp.name, s.parameter.key(), &s.values, points);
-            (r.to_json(), r.to_csv(), sweep_table(&r))
-        }
+    let out = assemble(
+        &exp,
+        &contexts,
+        records.into_inner().expect("no thread panicked"),
+    );
+    let table = match &out {
+        Output::Single(r) => results_table(r),
+        Output::Sweep(r) => sweep_table(r),
     };
+    let (out_json, out_csv) = (out.to_json(), out.to_csv());
     if let Some(p) = csv {
         std::fs::write(p, out_csv)
             .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display())))?;

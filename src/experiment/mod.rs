@@ -241,3 +241,129 @@ pub fn run_all(ctx: &Arc<Context>) -> Vec<RunRecord> {
         })
         .collect()
 }
+
+/// What an experiment produces: results, or sweep results for a sweep.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Output {
+    Single(Results),
+    Sweep(SweepResults),
+}
+
+impl Output {
+    pub fn to_json(&self) -> String {
+        match self {
+            Output::Single(r) => r.to_json(),
+            Output::Sweep(r) => r.to_json(),
+        }
+    }
+    pub fn to_csv(&self) -> String {
+        match self {
+            Output::Single(r) => r.to_csv(),
+            Output::Sweep(r) => r.to_csv(),
+        }
+    }
+}
+
+/// Summarises the records of every point (records\[p\] for contexts\[p\]).
+pub fn assemble(
+    exp: &Experiment,
+    contexts: &[Arc<Context>],
+    records: Vec<Vec<RunRecord>>,
+) -> Output {
+    let mut points: Vec<Results> = contexts
+        .iter()
+        .zip(records)
+        .map(|(c, r)| summarise(c, r))
+        .collect();
+    match &exp.sweep {
+        None => Output::Single(points.remove(0)),
+        Some(s) => Output::Sweep(SweepResults::new(
+            &exp.name,
+            s.parameter.key(),
+            &s.values,
+            points,
+        )),
+    }
+}
+
+/// Every run of an experiment (all sweep points), stepped one after another
+/// in chunks: what a single worker does.
+pub struct Batch {
+    exp: Experiment,
+    contexts: Vec<Arc<Context>>,
+    /// (point, run index) in order.
+    jobs: Vec<(usize, usize)>,
+    next: usize,
+    current: Option<(usize, Run)>,
+    records: Vec<Vec<RunRecord>>,
+    done: u64,
+    total: u64,
+}
+
+impl Batch {
+    pub fn new(exp: Experiment) -> Batch {
+        let contexts: Vec<Arc<Context>> = exp.points().into_iter().map(Context::new).collect();
+        let jobs = contexts
+            .iter()
+            .enumerate()
+            .flat_map(|(p, c)| (0..c.runs()).map(move |i| (p, i)))
+            .collect();
+        let total = contexts.iter().map(|c| c.total_episodes()).sum();
+        Batch {
+            records: vec![Vec::new(); contexts.len()],
+            exp,
+            contexts,
+            jobs,
+            next: 0,
+            current: None,
+            done: 0,
+            total,
+        }
+    }
+
+    /// Runs up to `max` more episodes in total; true when every run is done.
+    pub fn advance(&mut self, mut max: u64) -> bool {
+        while max > 0 {
+            if self.current.is_none() {
+                let Some(&(p, i)) = self.jobs.get(self.next) else {
+                    return true;
+                };
+                self.next += 1;
+                self.current = Some((p, Run::new(Arc::clone(&self.contexts[p]), i)));
+            }
+            let (p, run) = self.current.as_mut().expect("set above");
+            let before = run.episodes_done();
+            let finished = run.advance(max);
+            let step = run.episodes_done() - before;
+            self.done += step;
+            max -= step.min(max);
+            if finished {
+                let (p, run) = (*p, self.current.take().expect("set above").1);
+                self.records[p].push(run.finish());
+            }
+        }
+        self.is_done()
+    }
+
+    pub fn is_done(&self) -> bool {
+        self.current.is_none() && self.next >= self.jobs.len()
+    }
+
+    pub fn episodes_done(&self) -> u64 {
+        self.done
+    }
+
+    pub fn total_episodes(&self) -> u64 {
+        self.total
+    }
+
+    pub fn experiment(&self) -> &Experiment {
+        &self.exp
+    }
+
+    /// The results (once [`Batch::is_done`]).
+    pub fn output(&self) -> Output {
+        assert!(self.is_done(), "every run has finished");
+        assemble(&self.exp, &self.contexts, self.records.clone())
+    }
+}
