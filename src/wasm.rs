@@ -101,3 +101,63 @@ pub fn format_model(text: &str) -> JsValue {
         Err(p) => problems_value(&p),
     }
 }
+
+/// An experiment being run in the worker: every run of every sweep point,
+/// stepped in chunks so the worker can report progress and hear a cancel.
+#[wasm_bindgen]
+pub struct ExperimentRun {
+    batch: crate::experiment::Batch,
+}
+
+#[wasm_bindgen]
+impl ExperimentRun {
+    /// Reads an experiment file's text; throws `{ok: false, problems, unlisted}`.
+    #[wasm_bindgen(constructor)]
+    pub fn new(text: &str) -> Result<ExperimentRun, JsValue> {
+        let exp =
+            crate::experiment::parse_experiment(text, None).map_err(|p| problems_value(&p))?;
+        Ok(ExperimentRun {
+            batch: crate::experiment::Batch::new(exp),
+        })
+    }
+
+    /// Runs up to `max` more episodes; true when everything is done.
+    pub fn advance(&mut self, max: f64) -> bool {
+        self.batch.advance(max.max(1.0) as u64)
+    }
+
+    #[wasm_bindgen(js_name = episodesDone)]
+    pub fn episodes_done(&self) -> f64 {
+        self.batch.episodes_done() as f64
+    }
+
+    #[wasm_bindgen(js_name = totalEpisodes)]
+    pub fn total_episodes(&self) -> f64 {
+        self.batch.total_episodes() as f64
+    }
+
+    /// `{json, csv}` of the results (burnin-results or burnin-sweep v1).
+    pub fn results(&self) -> JsValue {
+        let out = self.batch.output();
+        let obj = Object::new();
+        set(&obj, "json", out.to_json());
+        set(&obj, "csv", out.to_csv());
+        obj.into()
+    }
+}
+
+/// A generated model file's text from a generator object's JSON text
+/// (`{"kind": …, "seed": …, …}`), or the problems.
+#[wasm_bindgen(js_name = generateModel)]
+pub fn generate_model(spec: &str) -> JsValue {
+    let value: serde_json::Value = match serde_json::from_str(spec) {
+        Ok(v) => v,
+        Err(e) => return problems_value(&Problems::single("", crate::lax::syntax_problem(&e))),
+    };
+    match crate::generate::GeneratorSpec::from_json(&value, "generator")
+        .and_then(|g| g.generate("generator"))
+    {
+        Ok(m) => JsValue::from_str(&crate::write_model(&m)),
+        Err(p) => problems_value(&p),
+    }
+}

@@ -23,3 +23,11 @@ export function valueColour(t) {
 export function inkOn(t) {
   return t > 0.55 ? '#fffdf8' : '#1e282d';
 }
+
+/** A summary number: fewer decimals as it grows. */
+export function short(x) {
+  if (!Number.isFinite(x)) return String(x);
+  const a = Math.abs(x);
+  const s = a >= 1e6 ? x.toExponential(3) : a >= 100 ? x.toFixed(1) : a >= 1 ? x.toFixed(3) : x.toPrecision(3);
+  return s.replace('-', '−');
+}

@@ -1,14 +1,50 @@
-// The page: chooses a model, asks the worker to solve it, renders the views.
-import { solve } from './compute.js';
+// The page: chooses a model, asks the worker to solve it, and wires the
+// views, files, share links and the library together.
+import { solve, generate } from './compute.js';
 import { renderFacts, renderProblems, renderOptimal, renderValues, renderQ } from './views.js';
+import { ExperimentView, ALGORITHMS, DEFAULT_SETUP } from './experiment.js';
+import { initGeneratorForm } from './generator-form.js';
+import * as store from './store.js';
+import * as share from './share.js';
 
 const $ = (id) => document.getElementById(id);
-let current = null; // the solution on screen
+/** The model on screen: {text, solution, name, generator, source}. */
+let current = null;
+let autosaveBlocked = false;
+
+function notice(text, warn = false) {
+  const n = $('notice');
+  n.textContent = text;
+  n.classList.toggle('warn', warn);
+  n.hidden = !text;
+}
 
 function setStatus(text) { $('status').textContent = text; }
 
-function show(sol) {
-  current = sol;
+// ---- tabs -------------------------------------------------------------
+const TABS = ['solution', 'experiment', 'library'];
+function showTab(name) {
+  for (const t of TABS) {
+    const on = t === name;
+    $(`tab-${t}`).setAttribute('aria-selected', String(on));
+    $(`tab-${t}`).tabIndex = on ? 0 : -1;
+    $(`panel-${t}`).hidden = !on;
+  }
+  if (name === 'library') renderLibrary();
+  if (name === 'experiment') experiment.draw();
+}
+for (const t of TABS) {
+  $(`tab-${t}`).addEventListener('click', () => showTab(t));
+  $(`tab-${t}`).addEventListener('keydown', (e) => {
+    const i = TABS.indexOf(t);
+    const j = e.key === 'ArrowRight' ? (i + 1) % TABS.length : e.key === 'ArrowLeft' ? (i + TABS.length - 1) % TABS.length : -1;
+    if (j >= 0) { showTab(TABS[j]); $(`tab-${TABS[j]}`).focus(); }
+  });
+}
+
+// ---- the model --------------------------------------------------------
+function show(sol, text, source, generator = null) {
+  current = { text, solution: sol, name: sol.name || 'Untitled model', source, generator };
   $('problems').hidden = true;
   renderFacts($('model-facts'), sol);
   renderOptimal($('optimal-value'), sol.optimal_value);
@@ -17,18 +53,19 @@ function show(sol) {
   step.max = String(sol.horizon);
   step.value = '1';
   showStep();
-  document.title = `${sol.name || 'Model'} — Burnin`;
+  experiment.setSweepChoices(Boolean(generator));
+  document.title = `${current.name} — Burnin`;
 }
 
 function showStep() {
   if (!current) return;
   const h = Number($('step').value) - 1;
   $('step-shown').textContent = String(h + 1);
-  renderQ($('q-wrap'), current, h);
+  renderQ($('q-wrap'), current.solution, h);
 }
 
 /** Solves `text`; a bad file shows its problems and leaves the open model as it was. */
-async function open(text, label) {
+async function openModel(text, label, source, generator = null) {
   setStatus(`Solving ${label}…`);
   const t0 = performance.now();
   const result = await solve(text);
@@ -37,21 +74,225 @@ async function open(text, label) {
     setStatus(current ? `Still showing “${current.name}”.` : 'No model open.');
     return false;
   }
-  show(result);
+  const changed = !current || current.text !== text;
+  show(result, text, source, generator);
+  if (changed) experiment.clearResults();
   setStatus(`Solved ${label} by backward induction in ${Math.max(1, Math.round(performance.now() - t0))} ms.`);
+  saveWork();
   return true;
 }
 
 async function openDemo(file) {
   const resp = await fetch(`demo-models/${file}`);
   if (!resp.ok) throw new Error(`cannot load demo model ${file} (${resp.status})`);
-  await open(await resp.text(), file);
+  return openModel(await resp.text(), file, { kind: 'demo', name: file });
+}
+
+// ---- files ------------------------------------------------------------
+/** Learner rows of the form from an experiment file's learners. */
+function setupFromExperiment(exp) {
+  const learners = (exp.learners || []).filter((l) => ALGORITHMS[l.algorithm]).map((l) => {
+    const p = ALGORITHMS[l.algorithm].param;
+    return { use: true, algorithm: l.algorithm, value: p ? (l[p] ?? ALGORITHMS[l.algorithm].def) : null, label: l.label || '' };
+  });
+  return {
+    episodes: exp.episodes ?? DEFAULT_SETUP.episodes, seeds: exp.seeds ?? 1, seed: exp.seed ?? 1, delta: exp.delta ?? 0.05,
+    learners: learners.length ? learners : DEFAULT_SETUP.learners,
+    sweep: exp.sweep ? { parameter: exp.sweep.parameter, values: (exp.sweep.values || []).join(', ') } : { parameter: '', values: '' },
+  };
+}
+
+/** Opens a model, experiment or results file by its "format". */
+async function openText(text, label) {
+  let doc = null;
+  try { doc = JSON.parse(text); } catch { /* the model reader reports the syntax error */ }
+  const format = doc && typeof doc === 'object' ? doc.format : undefined;
+  if (format === 'burnin-experiment') {
+    if (!doc.model || typeof doc.model !== 'object') {
+      renderProblems($('problems'), label, { problems: [{ path: 'model', message: 'this experiment names a model file (model_path); the page needs the model inline as "model"' }], unlisted: 0 });
+      return;
+    }
+    if (await openModel(JSON.stringify(doc.model), label, { kind: 'file', name: label })) {
+      experiment.applySetup(setupFromExperiment(doc));
+      showTab('experiment');
+      saveWork();
+    }
+    return;
+  }
+  if (format === 'burnin-results' || format === 'burnin-sweep') {
+    if (doc.version !== 1 || !Array.isArray(doc.learners) || doc.learners.length === 0) {
+      renderProblems($('problems'), label, { problems: [{ path: 'version', message: `results version ${doc.version} with ${Array.isArray(doc.learners) ? doc.learners.length : 'no'} learners cannot be shown; this build reads version 1` }], unlisted: 0 });
+      return;
+    }
+    try {
+      experiment.setResults({ text, csv: '', experiment: null });
+      showTab('experiment');
+      notice(`Showing results from ${label}.`);
+    } catch (err) {
+      renderProblems($('problems'), label, { problems: [{ path: '', message: `these results are incomplete (${err.message})` }], unlisted: 0 });
+    }
+    return;
+  }
+  await openModel(text, label, { kind: 'file', name: label });
 }
 
 async function openFile(file) {
   if (!file) return;
-  await open(await file.text(), file.name);
+  if (file.size > 256 * 1024 * 1024) { notice(`${file.name} is larger than 256 MiB and was not opened.`, true); return; }
+  await openText(await file.text(), file.name);
 }
+
+function download(name, text) {
+  const url = URL.createObjectURL(new Blob([text], { type: 'application/json' }));
+  const a = document.createElement('a');
+  a.href = url;
+  a.download = name;
+  document.body.append(a);
+  a.click();
+  a.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 1000);
+}
+
+// ---- saving ------------------------------------------------------------
+let saveTimer = 0;
+function saveWork() {
+  clearTimeout(saveTimer);
+  saveTimer = setTimeout(saveNow, 300);
+}
+
+/** Writes the autosave at once (also when the page is being left). */
+function saveNow() {
+  clearTimeout(saveTimer);
+  {
+    if (!current) return;
+    try {
+      const r = experiment.results;
+      store.autosave({
+        model: current.text, source: current.source, generator: current.generator, setup: experiment.setup(),
+        results: r && r.experiment ? { text: r.text, csv: r.csv, experiment: r.experiment } : null,
+      });
+      if (autosaveBlocked) { autosaveBlocked = false; notice(''); }
+    } catch (err) {
+      autosaveBlocked = true;
+      notice(err instanceof store.StorageFull ? `Autosave is paused: ${err.message}` : `Autosave failed: ${err.message}`, true);
+    }
+  }
+}
+window.addEventListener('pagehide', saveNow);
+
+function saveToLibrary(item) {
+  try {
+    const e = store.saveEntry(item);
+    $('library-status').textContent = `Saved “${e.name}”.`;
+    notice(`Saved “${e.name}” to the library.`);
+    renderLibrary();
+  } catch (err) {
+    notice(err.message, true);
+  }
+}
+
+function renderLibrary() {
+  const { entries, skipped } = store.listEntries();
+  const list = $('library-list');
+  list.replaceChildren();
+  for (const e of entries) {
+    const li = document.createElement('li');
+    li.dataset.id = e.id;
+    const name = document.createElement('span');
+    name.className = 'entry-name';
+    name.textContent = e.name;
+    const meta = document.createElement('span');
+    meta.className = 'entry-meta';
+    meta.textContent = `${e.kind === 'experiment' ? 'experiment with results' : 'model'} · ${new Date(e.saved_at).toLocaleString('en')}`;
+    const btn = (text, fn, cls) => {
+      const b = document.createElement('button');
+      b.type = 'button';
+      b.textContent = text;
+      b.setAttribute('aria-label', `${text} ${e.name}`);
+      if (cls) b.className = cls;
+      b.addEventListener('click', fn);
+      return b;
+    };
+    li.append(name, meta,
+      btn('Open', () => openEntry(e.id)),
+      btn('Rename', () => startRename(li, e)),
+      btn('Duplicate', () => { store.duplicateEntry(e.id); renderLibrary(); }),
+      btn('Delete', () => confirmDelete(e), 'danger'));
+    list.append(li);
+  }
+  const parts = [];
+  if (!entries.length) parts.push('Nothing saved yet.');
+  if (skipped.length) parts.push(`${skipped.length} stored item${skipped.length === 1 ? ' is' : 's are'} damaged and not listed (${skipped.map((s) => s.reason).join('; ')}); they were left untouched.`);
+  $('library-status').textContent = parts.join(' ');
+}
+
+function startRename(li, e) {
+  const input = document.createElement('input');
+  input.type = 'text';
+  input.value = e.name;
+  input.setAttribute('aria-label', `new name for ${e.name}`);
+  const ok = document.createElement('button');
+  ok.type = 'button';
+  ok.textContent = 'Save name';
+  const done = () => { if (input.value.trim()) store.renameEntry(e.id, input.value.trim()); renderLibrary(); };
+  ok.addEventListener('click', done);
+  input.addEventListener('keydown', (ev) => { if (ev.key === 'Enter') done(); if (ev.key === 'Escape') renderLibrary(); });
+  li.replaceChildren(input, ok);
+  input.focus();
+}
+
+function confirmDelete(e) {
+  const d = $('confirm-dialog');
+  $('confirm-text').textContent = `Delete “${e.name}” from the library? This cannot be undone.`;
+  d.returnValue = '';
+  d.onclose = () => { if (d.returnValue === 'ok') { store.deleteEntry(e.id); renderLibrary(); } };
+  d.showModal();
+}
+
+async function openEntry(id) {
+  const e = store.getEntry(id);
+  if (!e) { renderLibrary(); return; }
+  if (await openModel(e.model, e.name, { kind: 'library', name: e.name })) {
+    if (e.experiment) experiment.applySetup(setupFromExperiment(JSON.parse(e.experiment)));
+    if (e.results) { experiment.setResults({ text: e.results, csv: '', experiment: e.experiment }); showTab('experiment'); } else showTab('solution');
+    saveWork();
+  }
+}
+
+// ---- share links -------------------------------------------------------
+async function copyShareLink() {
+  if (!current) return;
+  try {
+    const frag = await share.encode({ model: current.text, setup: experiment.setup() });
+    const url = `${location.origin}${location.pathname}#${frag}`;
+    history.replaceState(null, '', `#${frag}`);
+    try { await navigator.clipboard.writeText(url); notice('Share link copied; it carries the model and the experiment set-up in the address itself.'); } catch { notice('Share link is in the address bar (the clipboard was not available).'); }
+  } catch (err) {
+    notice(err.message, true);
+  }
+}
+
+async function openShared(hash) {
+  try {
+    const p = await share.decode(hash);
+    if (!p || typeof p.model !== 'string') throw new Error('the link holds no model');
+    if (await openModel(p.model, 'the shared link', { kind: 'link', name: 'shared link' })) {
+      if (p.setup) experiment.applySetup(p.setup);
+      notice('Opened the model from a share link.');
+      return true;
+    }
+  } catch (err) {
+    notice(`This share link could not be opened: ${err.message}.`, true);
+  }
+  return false;
+}
+
+// ---- start -------------------------------------------------------------
+const experiment = new ExperimentView({
+  model: () => ({ text: current?.text, name: current?.name || 'model', generator: current?.generator, states: current?.solution.states }),
+  changed: saveWork,
+  saveResults: (expText, resultsText) => saveToLibrary({ kind: 'experiment', name: `${current.name} — ${new Date().toLocaleString('en')}`, model: current.text, experiment: expText, results: resultsText }),
+});
 
 async function start() {
   const index = await (await fetch('demo-models/index.json')).json();
@@ -64,11 +305,18 @@ async function start() {
   }
   select.value = index.default;
   select.addEventListener('change', () => openDemo(select.value).catch(fail));
-  $('open-file').addEventListener('click', () => $('file-input').click());
-  $('file-input').addEventListener('change', (e) => {
-    openFile(e.target.files[0]).catch(fail);
-    e.target.value = '';
+  const genSpec = initGeneratorForm($('gen-kind'), $('gen-params'));
+  $('gen-run').addEventListener('click', async () => {
+    const spec = genSpec();
+    const r = await generate(spec);
+    if (typeof r === 'string') await openModel(r, `generated ${spec.kind} model`, { kind: 'generated', name: spec.kind }, spec);
+    else renderProblems($('problems'), `The ${spec.kind} generator`, r);
   });
+  $('open-file').addEventListener('click', () => $('file-input').click());
+  $('file-input').addEventListener('change', (e) => { openFile(e.target.files[0]).catch(fail); e.target.value = ''; });
+  $('save-model').addEventListener('click', () => current && download(`${(current.name || 'model').replace(/[^\p{L}\p{N}._-]+/gu, '-')}.json`, current.text));
+  $('share-link').addEventListener('click', () => copyShareLink().catch(fail));
+  $('save-current').addEventListener('click', () => current && saveToLibrary({ kind: 'model', name: current.name, model: current.text }));
   $('step').addEventListener('input', showStep);
   document.addEventListener('dragover', (e) => { e.preventDefault(); document.body.classList.add('dropping'); });
   document.addEventListener('dragleave', () => document.body.classList.remove('dropping'));
@@ -77,6 +325,18 @@ async function start() {
     document.body.classList.remove('dropping');
     openFile(e.dataTransfer.files[0]).catch(fail);
   });
+  window.addEventListener('hashchange', () => { const h = location.hash.slice(1); if (share.isShare(h)) openShared(h); });
+
+  const hash = location.hash.slice(1);
+  if (share.isShare(hash) && await openShared(hash)) return;
+  const saved = store.loadAutosave();
+  if (saved && await openModel(saved.model, saved.source?.name || 'your last model', saved.source || { kind: 'file', name: 'autosave' }, saved.generator || null)) {
+    experiment.applySetup(saved.setup);
+    if (saved.results) experiment.setResults(saved.results);
+    if (saved.source?.kind === 'demo') select.value = saved.source.name;
+    return;
+  }
+  experiment.applySetup(DEFAULT_SETUP);
   await openDemo(index.default);
 }
 

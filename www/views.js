@@ -33,7 +33,7 @@ export function renderProblems(root, fileName, result) {
   if (result.unlisted > 0) list.append(el('li', `… and ${result.unlisted} more problems`));
   const n = result.problems.length + result.unlisted;
   root.querySelector('.problems-lead').textContent =
-    `${fileName}: ${n} problem${n === 1 ? '' : 's'}. The model shown before is still open.`;
+    `${fileName}: ${n} problem${n === 1 ? '' : 's'}. Nothing else changed.`;
   root.hidden = false;
 }
 

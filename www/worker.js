@@ -1,23 +1,67 @@
 // The compute worker: owns the wasm core; never touches the DOM.
-// Protocol: {type: 'solve' | 'check', id, text} → {type: 'done' | 'error', id, ...}.
-import init, { solveModel, checkModel } from './pkg/burnin.js';
+// Requests {type, id, ...}:
+//   solve {text}       → done {result}            (a model file's solution or problems)
+//   generate {spec}    → done {result}            (a model file's text or problems)
+//   run {text}         → progress {done, total}…, then done {result: {json, csv}},
+//                        or error {problems} for a bad experiment
+//   cancel {id}        → the run with that id stops and answers cancelled
+import init, { solveModel, generateModel, ExperimentRun } from './pkg/burnin.js';
 
 const ready = init();
+const cancelled = new Set();
+/** Milliseconds of work between looks at the message queue. */
+const SLICE_MS = 20;
+
+const pause = () => new Promise((resolve) => setTimeout(resolve, 0));
+
+async function run(id, text) {
+  let job;
+  try {
+    job = new ExperimentRun(text);
+  } catch (problems) {
+    self.postMessage({ type: 'error', id, problems });
+    return;
+  }
+  let chunk = 64;
+  const total = job.totalEpisodes();
+  try {
+    for (;;) {
+      if (cancelled.delete(id)) {
+        self.postMessage({ type: 'cancelled', id, done: job.episodesDone(), total });
+        return;
+      }
+      const t0 = performance.now();
+      const finished = job.advance(chunk);
+      const dt = performance.now() - t0;
+      // Aim each slice at SLICE_MS so a cancel is heard quickly.
+      chunk = Math.max(1, Math.min(chunk * 4, Math.round(chunk * SLICE_MS / Math.max(dt, 0.5))));
+      self.postMessage({ type: 'progress', id, done: job.episodesDone(), total });
+      if (finished) break;
+      await pause();
+    }
+    self.postMessage({ type: 'done', id, result: job.results() });
+  } finally {
+    job.free();
+  }
+}
 
 self.onmessage = async (event) => {
-  const { type, id, text } = event.data;
+  const { type, id } = event.data;
+  if (type === 'cancel') { cancelled.add(event.data.target); return; }
   try {
     await ready;
     if (type === 'solve') {
-      const result = solveModel(text);
+      const result = solveModel(event.data.text);
       const transfer = result.ok ? [result.v.buffer, result.q.buffer, result.gaps.buffer, result.policy.buffer] : [];
       self.postMessage({ type: 'done', id, result }, transfer);
-    } else if (type === 'check') {
-      self.postMessage({ type: 'done', id, result: checkModel(text) });
+    } else if (type === 'generate') {
+      self.postMessage({ type: 'done', id, result: generateModel(event.data.spec) });
+    } else if (type === 'run') {
+      await run(id, event.data.text);
     } else {
       self.postMessage({ type: 'error', id, message: `unknown request ${type}` });
     }
   } catch (err) {
-    self.postMessage({ type: 'error', id, message: String(err && err.message || err) });
+    self.postMessage({ type: 'error', id, message: String((err && err.message) || err) });
   }
 };

@@ -3,14 +3,16 @@
 //   BURNIN_URL       the served page
 //   BURNIN_CHROMIUM  the Chromium binary
 //   BURNIN_EXPECTED  JSON {demo file: optimal_value from `burnin solve --json`}
-//   BURNIN_OUT       folder for screenshots
+//   BURNIN_OUT       folder for screenshots; it also holds `<fixture>.results.json`,
+//                    what `burnin run --json` printed for each fixtures/*-experiment.json
 import { chromium } from 'playwright-core';
-import { mkdirSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 
 const url = process.env.BURNIN_URL;
 const expected = JSON.parse(process.env.BURNIN_EXPECTED);
 const out = process.env.BURNIN_OUT || 'out';
+const fixtures = new URL('./fixtures/', import.meta.url).pathname;
 mkdirSync(out, { recursive: true });
 
 const browser = await chromium.launch({
@@ -20,15 +22,20 @@ const browser = await chromium.launch({
 });
 
 let passed = 0, failed = 0;
+const only = process.env.BURNIN_ONLY;
 async function check(name, body) {
-  const context = await browser.newContext({ viewport: { width: 1280, height: 900 }, deviceScaleFactor: 1 });
-  const page = await context.newPage();
+  if (only && !name.includes(only)) return;
+  const context = await browser.newContext({ viewport: { width: 1360, height: 900 }, deviceScaleFactor: 1, acceptDownloads: true });
   const problems = [];
-  page.on('console', (m) => { if (m.type() === 'error') problems.push(`console error: ${m.text()}`); });
-  page.on('pageerror', (e) => problems.push(`page error: ${e.message}`));
-  page.on('request', (r) => { if (!r.url().startsWith(url) && !r.url().startsWith('data:')) problems.push(`request outside the page: ${r.url()}`); });
+  const watch = (page) => {
+    page.on('console', (m) => { if (m.type() === 'error') problems.push(`console error: ${m.text()}`); });
+    page.on('pageerror', (e) => problems.push(`page error: ${e.message}`));
+    page.on('request', (r) => { if (!r.url().startsWith(url) && !r.url().startsWith('data:') && !r.url().startsWith('blob:')) problems.push(`request outside the page: ${r.url()}`); });
+  };
+  context.on('page', watch);
+  const page = await context.newPage();
   try {
-    await body(page);
+    await body(page, context);
     if (problems.length) throw new Error(problems.join('\n'));
     passed++;
     console.log(`ok   ${name}`);
@@ -43,35 +50,58 @@ async function check(name, body) {
 function assertEqual(got, want, what) {
   if (got !== want) throw new Error(`${what}: got ${JSON.stringify(got)}, expected ${JSON.stringify(want)}`);
 }
+function assert(cond, what) { if (!cond) throw new Error(what); }
 
-/** The optimal value once a model whose name matches `name` is on screen. */
+const index = await (await fetch(`${url}/demo-models/index.json`)).json();
+const demoName = async (file) => (await (await fetch(`${url}/demo-models/${file}`)).json()).name;
+const defaultName = await demoName(index.default);
+const headline = (x) => x.toFixed(6).replace('-', '−');
+
+/** The optimal value once a model named `name` is on screen. */
 async function shownValue(page, name) {
   await page.waitForFunction((n) => {
     const dd = document.querySelector('[data-fact="name"]');
     return dd && dd.textContent === n && document.getElementById('optimal-value').dataset.value;
   }, name, { timeout: 15000 });
-  const out = page.locator('#optimal-value');
-  return { data: Number(await out.getAttribute('data-value')), text: await out.textContent() };
+  const o = page.locator('#optimal-value');
+  return { data: Number(await o.getAttribute('data-value')), text: await o.textContent() };
 }
 
-const headline = (x) => x.toFixed(6).replace('-', '−');
-const demoName = async (file) => (await (await fetch(`${url}/demo-models/${file}`)).json()).name;
+/** The page with whatever model it opens (the autosave, when there is one). */
+async function openAny(page) {
+  await page.goto(url + '/');
+  await page.waitForFunction(() => document.getElementById('optimal-value').dataset.value, null, { timeout: 15000 });
+}
+
+async function openPage(page, hash = '') {
+  await page.goto(url + '/' + hash);
+  return shownValue(page, defaultName);
+}
+
+async function upload(page, name, text) {
+  await page.setInputFiles('#file-input', { name, mimeType: 'application/json', buffer: Buffer.from(text) });
+}
+
+async function runAndWait(page) {
+  await page.click('#run-exp');
+  await page.waitForFunction(() => /^Done in/.test(document.getElementById('exp-status').textContent), null, { timeout: 120000 });
+}
+
+async function downloadText(page, selector) {
+  const [dl] = await Promise.all([page.waitForEvent('download'), page.click(selector)]);
+  return { name: dl.suggestedFilename(), text: readFileSync(await dl.path(), 'utf8') };
+}
 
 await check('opens with the default demo model solved, equal to `burnin solve`', async (page) => {
-  await page.goto(url);
-  const index = await (await fetch(`${url}/demo-models/index.json`)).json();
-  const v = await shownValue(page, await demoName(index.default));
+  const v = await openPage(page);
   assertEqual(v.data, expected[index.default], 'optimal value (all bits)');
   assertEqual(v.text, headline(expected[index.default]), 'optimal value as shown');
-  const rows = await page.locator('#value-wrap tbody tr').count();
-  if (rows < 2) throw new Error(`V* table has ${rows} rows`);
+  assert(await page.locator('#value-wrap tbody tr').count() >= 2, 'V* table drawn');
   await page.screenshot({ path: join(out, 'solution.png'), fullPage: true });
 });
 
 await check('every demo model shows the same optimal value as `burnin solve`', async (page) => {
-  await page.goto(url);
-  const index = await (await fetch(`${url}/demo-models/index.json`)).json();
-  await shownValue(page, await demoName(index.default));
+  await openPage(page);
   for (const file of index.models) {
     await page.selectOption('#demo-select', file);
     const v = await shownValue(page, await demoName(file));
@@ -80,47 +110,256 @@ await check('every demo model shows the same optimal value as `burnin solve`', a
 });
 
 await check('the step slider shows Q* and gaps of the chosen step', async (page) => {
-  await page.goto(url);
-  const index = await (await fetch(`${url}/demo-models/index.json`)).json();
-  await shownValue(page, await demoName(index.default));
+  await openPage(page);
   await page.locator('#step').fill('3');
   assertEqual(await page.locator('#step-shown').textContent(), '3', 'step heading');
-  const best = await page.locator('#q-wrap td.best').count();
-  const states = await page.locator('#q-wrap tbody tr').count();
-  assertEqual(best, states, 'one optimal action outlined per state');
+  assertEqual(await page.locator('#q-wrap td.best').count(), await page.locator('#q-wrap tbody tr').count(), 'one optimal action outlined per state');
 });
 
-await check('a bad file shows its problems and keeps the open model', async (page) => {
-  await page.goto(url);
-  const index = await (await fetch(`${url}/demo-models/index.json`)).json();
-  const before = await shownValue(page, await demoName(index.default));
+await check('the tabs are reachable from the keyboard', async (page) => {
+  await openPage(page);
+  await page.focus('#tab-solution');
+  await page.keyboard.press('ArrowRight');
+  assertEqual(await page.locator('#tab-experiment').getAttribute('aria-selected'), 'true', 'experiment tab selected');
+  assert(await page.locator('#panel-experiment').isVisible(), 'experiment panel shown');
+  assertEqual(await page.evaluate(() => document.activeElement.id), 'tab-experiment', 'focus follows');
+});
+
+await check('a bad file shows its problems and changes nothing open or saved', async (page) => {
+  const before = await openPage(page);
+  await page.click('#tab-library');
+  await page.click('#save-current');
+  const saved = await page.locator('#library-list li').count();
   const bad = JSON.stringify({
     format: 'burnin-model', version: 1, horizon: 2, states: ['a', 'b'], actions: ['x'], start: [1, 0],
     steps: [{ transitions: [[[[0, 0.97]]], [[[1, 1]]]], rewards: [[0.5], [0]] }],
   });
-  await page.setInputFiles('#file-input', { name: 'broken.json', mimeType: 'application/json', buffer: Buffer.from(bad) });
+  await upload(page, 'broken.json', bad);
   await page.waitForSelector('#problems:not([hidden])');
   const items = await page.locator('#problems li').allTextContents();
   assertEqual(items[0], 'steps[0].transitions[0][0]: probabilities sum to 0.9700, expected 1', 'first problem');
-  const after = await shownValue(page, await demoName(index.default));
-  assertEqual(after.data, before.data, 'the open model is unchanged');
+  assertEqual((await shownValue(page, defaultName)).data, before.data, 'the open model is unchanged');
+  await page.click('#tab-library');
+  assertEqual(await page.locator('#library-list li').count(), saved, 'the library is unchanged');
 });
 
 await check('markup in a name or label shows as plain text', async (page) => {
-  await page.goto(url);
-  const index = await (await fetch(`${url}/demo-models/index.json`)).json();
-  await shownValue(page, await demoName(index.default));
+  await openPage(page);
   const name = '<img src=x onerror="window.__injected = 1">';
   const model = JSON.stringify({
     format: 'burnin-model', version: 1, name, horizon: 1, states: ['<b>bold</b>'], actions: ['<i>go</i>'],
     start: [1], steps: [{ transitions: [[[[0, 1]]]], rewards: [[0.5]] }],
   });
-  await page.setInputFiles('#file-input', { name: 'markup.json', mimeType: 'application/json', buffer: Buffer.from(model) });
-  const v = await shownValue(page, name);
-  assertEqual(v.data, 0.5, 'optimal value');
+  await upload(page, 'markup.json', model);
+  assertEqual((await shownValue(page, name)).data, 0.5, 'optimal value');
   assertEqual(await page.locator('#value-wrap tbody th').first().textContent(), '<b>bold</b>', 'state label');
-  assertEqual(await page.locator('img, b, i').count(), 0, 'no element made from file text');
+  await page.click('#tab-library');
+  await page.click('#save-current');
+  assertEqual(await page.locator('#library-list .entry-name').first().textContent(), name, 'library name');
+  assertEqual(await page.locator('main img, main b, main i').count(), 0, 'no element made from file text');
   assertEqual(await page.evaluate(() => window.__injected), undefined, 'no script ran');
+});
+
+await check('a generated model opens solved', async (page) => {
+  await openPage(page);
+  await page.click('#generator summary');
+  await page.selectOption('#gen-kind', 'lock');
+  await page.fill('#gen-horizon', '4');
+  await page.fill('#gen-actions', '3');
+  await page.click('#gen-run');
+  // A lock pays 1 to the right code (derived by hand).
+  assertEqual((await shownValue(page, 'Combination lock H=4 A=3')).data, 1, 'optimal value');
+  await page.fill('#gen-actions', '1');
+  await page.click('#gen-run');
+  await page.waitForSelector('#problems:not([hidden])');
+  assertEqual((await page.locator('#problems li').allTextContents())[0], 'generator.actions: 1 is outside 2..=100', 'bad parameter named');
+});
+
+const ferry = readFileSync(join(fixtures, 'ferry-experiment.json'), 'utf8');
+const ferryCli = JSON.parse(readFileSync(join(out, 'ferry-experiment.json.results.json'), 'utf8'));
+
+await check('an experiment run in the page gives the same regret as `burnin run`', async (page) => {
+  await openPage(page);
+  await upload(page, 'ferry-experiment.json', ferry);
+  await page.waitForSelector('#panel-experiment:not([hidden])');
+  assertEqual(await page.inputValue('#exp-episodes'), '1500', 'episodes from the file');
+  await runAndWait(page);
+  const shown = await page.locator('#results-table tbody td[data-value]').evaluateAll((tds) => tds.map((t) => Number(t.dataset.value)));
+  assertEqual(shown.length, ferryCli.learners.length, 'one row per learner');
+  ferryCli.learners.forEach((l, i) => assertEqual(shown[i], l.regret_mean[l.regret_mean.length - 1], `${l.label}: regret at K (all bits)`));
+  // The chart is drawn: the canvas holds many colours.
+  const colours = await page.evaluate(() => {
+    const c = document.getElementById('chart');
+    const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
+    const seen = new Set();
+    for (let i = 0; i < d.length; i += 16) seen.add((d[i] << 16) | (d[i + 1] << 8) | d[i + 2]);
+    return seen.size;
+  });
+  assert(colours > 20, `chart drawn (${colours} colours)`);
+  const box = await page.locator('#chart').boundingBox();
+  await page.mouse.move(box.x + box.width * 0.5, box.y + box.height * 0.5);
+  await page.waitForSelector('#chart-tip:not([hidden])');
+  const tip = await page.locator('#chart-tip').textContent();
+  assert(/^k = [\d,]+\n/.test(tip) && tip.includes(ferryCli.learners[0].label), `hover read-out: ${tip}`);
+  await page.check('input[name=axes][value=log]');
+  await page.check('#show-lower');
+  await page.check('#show-bounds');
+  await page.screenshot({ path: join(out, 'experiment.png'), fullPage: true });
+  await page.selectOption('#chart-view', 'episode');
+  assert((await page.locator('#chart-caption').textContent()).length > 0, 'caption');
+});
+
+await check('charts and results export as PNG, SVG, JSON and CSV, and results re-open', async (page, context) => {
+  await openPage(page);
+  await upload(page, 'ferry-experiment.json', ferry);
+  await runAndWait(page);
+  const png = await Promise.all([page.waitForEvent('download'), page.click('#export-png')]);
+  assert(png[0].suggestedFilename().endsWith('.png'), 'png name');
+  assertEqual(readFileSync(await png[0].path()).subarray(1, 4).toString(), 'PNG', 'PNG signature');
+  const svg = await downloadText(page, '#export-svg');
+  assert(svg.name.endsWith('.svg') && svg.text.startsWith('<svg') && svg.text.includes(ferryCli.learners[2].label), 'svg content');
+  const csv = await downloadText(page, '#export-csv');
+  assert(csv.text.startsWith('learner,algorithm,episode,regret_mean'), 'csv header');
+  const json = await downloadText(page, '#export-json');
+  const again = await context.newPage();
+  await openAny(again);
+  await again.setInputFiles('#file-input', { name: json.name, mimeType: 'application/json', buffer: Buffer.from(json.text) });
+  await again.waitForSelector('#results:not([hidden])');
+  const shown = await again.locator('#results-table tbody td[data-value]').evaluateAll((tds) => tds.map((t) => Number(t.dataset.value)));
+  assertEqual(shown[2], ferryCli.learners[2].regret_mean.at(-1), 're-opened results');
+});
+
+await check('a model file saved from the page opens again the same', async (page) => {
+  await openPage(page);
+  await page.selectOption('#demo-select', 'lantern-cave.json');
+  const v = await shownValue(page, await demoName('lantern-cave.json'));
+  const file = await downloadText(page, '#save-model');
+  await page.selectOption('#demo-select', index.default);
+  await shownValue(page, defaultName);
+  await upload(page, file.name, file.text);
+  assertEqual((await shownValue(page, await demoName('lantern-cave.json'))).data, v.data, 'same optimal value');
+});
+
+await check('a long run cancels within a quarter second', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '100000000');
+  await page.click('#run-exp');
+  await page.waitForFunction(() => Number(document.getElementById('exp-progress').value) > 0, null, { timeout: 20000 });
+  await page.click('#cancel-exp');
+  await page.waitForFunction(() => /^Cancelled/.test(document.getElementById('exp-status').textContent), null, { timeout: 5000 });
+  // Measured in the page: from the click to the worker's answer.
+  const ms = Number(await page.locator('#exp-status').getAttribute('data-cancel-ms'));
+  console.log(`     cancel acknowledged ${ms} ms after the click`);
+  assert(ms < 250, `cancel took ${ms} ms`);
+  assert(await page.isEnabled('#run-exp'), 'the page is usable again');
+  await page.fill('#exp-episodes', '200');
+  await runAndWait(page);
+});
+
+await check('saved work survives a reload, and the library renames, duplicates and deletes (asking first)', async (page) => {
+  await openPage(page);
+  await page.selectOption('#demo-select', 'night-ferry.json');
+  const v = await shownValue(page, 'Night ferry');
+  await page.click('#tab-library');
+  await page.click('#save-current');
+  await page.reload();
+  // The autosave reopens the ferry, not the default demo.
+  await shownValue(page, 'Night ferry');
+  await page.click('#tab-library');
+  const item = page.locator('#library-list li', { hasText: 'Night ferry' });
+  assertEqual(await item.count(), 1, 'saved entry listed');
+  await item.getByRole('button', { name: 'Rename Night ferry' }).click();
+  await page.fill('#library-list input[type=text]', 'Ferry, kept');
+  await page.click('text=Save name');
+  await page.getByRole('button', { name: 'Duplicate Ferry, kept' }).click();
+  assertEqual(await page.locator('#library-list .entry-name').allTextContents().then((t) => t.sort().join('|')), 'Ferry, kept|Ferry, kept (copy)', 'renamed and duplicated');
+  await page.getByRole('button', { name: 'Delete Ferry, kept (copy)' }).click();
+  assert(await page.locator('#confirm-dialog').isVisible(), 'delete asks first');
+  await page.click('#confirm-dialog button[value=cancel]');
+  assertEqual(await page.locator('#library-list li').count(), 2, 'kept after “Keep it”');
+  await page.getByRole('button', { name: 'Delete Ferry, kept (copy)' }).click();
+  await page.click('#confirm-ok');
+  await page.waitForFunction(() => document.querySelectorAll('#library-list li').length === 1, null, { timeout: 5000 });
+  await page.selectOption('#demo-select', index.default);
+  await shownValue(page, defaultName);
+  await page.getByRole('button', { name: 'Open Ferry, kept' }).click();
+  assertEqual((await shownValue(page, 'Night ferry')).data, v.data, 'opened from the library');
+  await page.screenshot({ path: join(out, 'library.png') });
+});
+
+await check('a damaged stored item is skipped and a full storage keeps the old data', async (page) => {
+  await openPage(page);
+  await page.click('#tab-library');
+  await page.click('#save-current');
+  await page.evaluate(() => localStorage.setItem('burnin:v1:entry:broken', '{not json'));
+  await page.click('#tab-solution');
+  await page.click('#tab-library');
+  assertEqual(await page.locator('#library-list li').count(), 1, 'the good item is still listed');
+  assert((await page.locator('#library-status').textContent()).includes('damaged'), 'the damaged one is reported');
+  // Fill the quota, then try to save.
+  await page.evaluate(() => {
+    const big = 'x'.repeat(1 << 20);
+    for (let i = 0; i < 100; i++) { try { localStorage.setItem(`filler${i}`, big); } catch { break; } }
+    let small = 'x'.repeat(1 << 16);
+    for (let i = 0; i < 1000; i++) { try { localStorage.setItem(`fill${i}`, small); } catch { break; } }
+    for (let i = 0; i < 1000; i++) { try { localStorage.setItem(`f${i}`, 'x'.repeat(256)); } catch { break; } }
+  });
+  await page.click('#save-current');
+  const note = await page.locator('#notice').textContent();
+  assert(note.includes('full'), `full storage reported: ${note}`);
+  assertEqual(await page.locator('#library-list li').count(), 1, 'old data kept');
+  assert(await page.evaluate(() => localStorage.getItem('burnin:v1:entry:broken') === '{not json'), 'the damaged item was left untouched');
+});
+
+await check('a share link opens the model it carries; a damaged one says so', async (page, context) => {
+  await openPage(page);
+  await page.selectOption('#demo-select', 'glasshouse-climate.json');
+  const v = await shownValue(page, await demoName('glasshouse-climate.json'));
+  await page.click('#share-link');
+  await page.waitForFunction(() => location.hash.startsWith('#share='));
+  const link = await page.evaluate(() => location.href);
+  const other = await context.newPage();
+  await other.evaluate(() => localStorage.clear()).catch(() => {});
+  await other.goto(link);
+  assertEqual((await shownValue(other, await demoName('glasshouse-climate.json'))).data, v.data, 'shared model');
+  const bad = await context.newPage();
+  await bad.goto(`${url}/#share=AAAA-not-deflate`);
+  await bad.waitForFunction(() => /could not be opened/.test(document.getElementById('notice').textContent));
+});
+
+await check('a sweep draws regret at K against the swept parameter', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '400');
+  await page.fill('#exp-seeds', '2');
+  // Keep two learners.
+  const rows = page.locator('#learner-rows tr');
+  for (let i = 2; i < await rows.count(); i++) await rows.nth(i).locator('input[type=checkbox]').uncheck();
+  await page.selectOption('#sweep-param', 'bonus_scale');
+  await page.fill('#sweep-values', '0.001, 0.01, 0.1');
+  await runAndWait(page);
+  assertEqual(await page.locator('#chart-view option').first().textContent(), 'regret at K against bonus_scale', 'sweep view');
+  assertEqual(await page.locator('#results-table thead th').allTextContents().then((t) => t.slice(1).join('|')), 'bonus_scale = 0.001|bonus_scale = 0.01|bonus_scale = 0.1', 'sweep table');
+  await page.screenshot({ path: join(out, 'sweep.png'), fullPage: true });
+  await page.fill('#sweep-values', '0.1, -2');
+  await page.click('#run-exp');
+  await page.waitForSelector('#exp-problems:not([hidden])');
+  assertEqual((await page.locator('#exp-problems li').allTextContents())[0], 'sweep.values[1]: expected a bonus scale > 0, found -2', 'bad sweep value');
+});
+
+await check('the presentation view fills the window and closes with Escape', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '300');
+  await runAndWait(page);
+  await page.click('#present');
+  assert(await page.locator('#presenter').isVisible(), 'presenter shown');
+  const size = await page.evaluate(() => [document.getElementById('present-chart').clientWidth, window.innerWidth]);
+  assertEqual(size[0], size[1], 'chart as wide as the window');
+  await page.screenshot({ path: join(out, 'present.png') });
+  await page.keyboard.press('Escape');
+  assert(!(await page.locator('#presenter').isVisible()), 'closed');
 });
 
 await browser.close();

@@ -222,13 +222,28 @@ fn browser_checks(www: PathBuf) -> Result<()> {
         ));
     }
     expected.push('}');
+    // What `burnin run --json` prints for each fixture experiment, for the
+    // page to be compared with.
+    let out = dir.join("out");
+    std::fs::create_dir_all(&out).map_err(|e| e.to_string())?;
+    for e in std::fs::read_dir(dir.join("fixtures")).map_err(|e| e.to_string())? {
+        let p = e.map_err(|e| e.to_string())?.path();
+        let name = p.file_name().unwrap().to_string_lossy().into_owned();
+        if !name.ends_with("-experiment.json") {
+            continue;
+        }
+        let json = output(Command::new(&cli).args(["run", "--json"]).arg(&p))
+            .ok_or_else(|| format!("burnin run failed on {}", p.display()))?;
+        std::fs::write(out.join(format!("{name}.results.json")), json)
+            .map_err(|e| e.to_string())?;
+    }
     let server = serve::Server::start(www, 0).map_err(|e| format!("cannot listen: {e}"))?;
     let status = Command::new("node")
         .arg(dir.join("check.mjs"))
         .env("BURNIN_URL", server.url())
         .env("BURNIN_CHROMIUM", &chrome)
         .env("BURNIN_EXPECTED", expected)
-        .env("BURNIN_OUT", dir.join("out"))
+        .env("BURNIN_OUT", &out)
         .current_dir(&dir)
         .status()
         .map_err(|e| format!("cannot start node: {e}"))?;

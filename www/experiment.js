@@ -1,0 +1,438 @@
+// The experiment view: set-up form, running in the worker with progress and
+// cancel, and the results (charts with hover, table, visit heat map, exports,
+// presentation view).
+import { runExperiment } from './compute.js';
+import { drawChart, CanvasPen, SvgPen, PALETTE, nearestIndex } from './chart.js';
+import { short, valueColour, inkOn } from './format.js';
+
+export const ALGORITHMS = {
+  mvp: { param: 'bonus_scale', def: 1, name: 'MVP (doubling batches)' },
+  'ucbvi-hoeffding': { param: 'bonus_scale', def: 1, name: 'UCBVI, Hoeffding bonus' },
+  'ucbvi-bernstein': { param: 'bonus_scale', def: 1, name: 'UCBVI, Bernstein bonus' },
+  'q-ucb-hoeffding': { param: 'bonus_scale', def: 1, name: 'Q-learning, UCB-Hoeffding' },
+  psrl: { param: 'prior', def: 1, name: 'PSRL' },
+  ucb1: { param: 'bonus_scale', def: 1, name: 'UCB1 (bandits only)' },
+  'eps-greedy': { param: 'epsilon', def: 0.1, name: 'ε-greedy' },
+  uniform: { param: null, def: null, name: 'Uniform' },
+};
+const PARAM_NAMES = { bonus_scale: 'bonus scale', prior: 'prior', epsilon: 'ε' };
+
+/** The ready experiment of a first visit: a few seconds in the browser. */
+export const DEFAULT_SETUP = {
+  episodes: 3000, seeds: 4, seed: 1, delta: 0.05,
+  learners: [
+    { use: true, algorithm: 'mvp', value: 1, label: 'MVP, theory constants' },
+    { use: true, algorithm: 'mvp', value: 0.002, label: 'MVP ×0.002' },
+    { use: true, algorithm: 'ucbvi-bernstein', value: 0.05, label: '' },
+    { use: true, algorithm: 'q-ucb-hoeffding', value: 0.05, label: '' },
+    { use: true, algorithm: 'psrl', value: 1, label: '' },
+    { use: true, algorithm: 'eps-greedy', value: 0.1, label: '' },
+    { use: true, algorithm: 'uniform', value: null, label: '' },
+  ],
+  sweep: { parameter: '', values: '' },
+};
+
+const $ = (id) => document.getElementById(id);
+
+function el(tag, text, attrs = {}) {
+  const e = document.createElement(tag);
+  if (text !== undefined && text !== null) e.textContent = text;
+  for (const [k, v] of Object.entries(attrs)) e.setAttribute(k, v);
+  return e;
+}
+
+function download(name, text, type) {
+  const url = URL.createObjectURL(text instanceof Blob ? text : new Blob([text], { type }));
+  const a = el('a', null, { href: url, download: name });
+  document.body.append(a);
+  a.click();
+  a.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 1000);
+}
+
+const safeName = (s) => (s || 'burnin').replace(/[^\p{L}\p{N}._-]+/gu, '-').replace(/^-+|-+$/g, '').slice(0, 60) || 'burnin';
+
+export class ExperimentView {
+  /** hooks: {model() → {text, name, generator}, changed(), saveResults(experimentText, resultsJson)} */
+  constructor(hooks) {
+    this.hooks = hooks;
+    this.results = null;
+    this.running = null;
+    this.layout = null;
+    this.rows = $('learner-rows');
+    $('add-learner').addEventListener('click', () => { this.addRow({ use: true, algorithm: 'mvp', value: 1, label: '' }); hooks.changed(); });
+    $('exp-form').addEventListener('submit', (e) => { e.preventDefault(); this.run(); });
+    $('exp-form').addEventListener('input', () => hooks.changed());
+    $('cancel-exp').addEventListener('click', () => {
+      if (!this.running) return;
+      this.cancelAt = performance.now();
+      this.running.cancel();
+    });
+    for (const id of ['chart-view', 'show-bands', 'show-lower', 'show-bounds']) $(id).addEventListener('change', () => this.draw());
+    for (const r of document.querySelectorAll('input[name=axes]')) r.addEventListener('change', () => this.draw());
+    $('heat-learner').addEventListener('change', () => this.drawHeat());
+    $('export-png').addEventListener('click', () => this.exportPng());
+    $('export-svg').addEventListener('click', () => this.exportSvg());
+    $('export-json').addEventListener('click', () => download(`${this.fileBase()}-results.json`, this.results.text, 'application/json'));
+    $('export-csv').addEventListener('click', () => download(`${this.fileBase()}-results.csv`, this.results.csv, 'text/csv'));
+    $('save-results').addEventListener('click', () => hooks.saveResults(this.results.experiment, this.results.text));
+    $('present').addEventListener('click', () => this.present());
+    $('present-close').addEventListener('click', () => this.closePresent());
+    document.addEventListener('keydown', (e) => { if (e.key === 'Escape' && !$('presenter').hidden) this.closePresent(); });
+    $('present-caption').addEventListener('input', () => this.drawPresent());
+    window.addEventListener('resize', () => { this.draw(); if (!$('presenter').hidden) this.drawPresent(); });
+    const canvas = $('chart');
+    canvas.addEventListener('mousemove', (e) => this.hover(e));
+    canvas.addEventListener('mouseleave', () => { $('chart-tip').hidden = true; });
+    this.setSweepChoices(false);
+  }
+
+  fileBase() { return safeName(this.results?.data?.name || this.results?.data?.model_name || this.hooks.model().name); }
+
+  /** Sweep parameters on offer; S, A and H only for a generated model. */
+  setSweepChoices(generated) {
+    const sel = $('sweep-param');
+    const keep = sel.value;
+    sel.replaceChildren(el('option', 'nothing', { value: '' }));
+    for (const p of ['bonus_scale', 'epsilon', 'delta'].concat(generated ? ['states', 'actions', 'horizon'] : [])) {
+      sel.append(el('option', p.replace('_', ' '), { value: p }));
+    }
+    sel.value = [...sel.options].some((o) => o.value === keep) ? keep : '';
+  }
+
+  addRow(l) {
+    const tr = el('tr');
+    const use = el('input', null, { type: 'checkbox', 'aria-label': 'use this learner' });
+    use.checked = l.use !== false;
+    const alg = el('select', null, { 'aria-label': 'algorithm' });
+    for (const [k, v] of Object.entries(ALGORITHMS)) alg.append(el('option', v.name, { value: k }));
+    alg.value = l.algorithm;
+    const param = el('input', null, { type: 'number', step: 'any', min: '0' });
+    const label = el('input', null, { type: 'text', 'aria-label': 'label', placeholder: 'default label' });
+    label.value = l.label || '';
+    const remove = el('button', '✕', { type: 'button', 'aria-label': 'remove this learner' });
+    const syncParam = (value) => {
+      const a = ALGORITHMS[alg.value];
+      param.disabled = !a.param;
+      param.setAttribute('aria-label', a.param ? PARAM_NAMES[a.param] : 'no parameter');
+      param.value = a.param ? String(value ?? a.def) : '';
+      param.title = a.param ? PARAM_NAMES[a.param] : '';
+    };
+    syncParam(l.value);
+    alg.addEventListener('change', () => syncParam(null));
+    remove.addEventListener('click', () => { tr.remove(); this.hooks.changed(); });
+    const td = (c) => { const t = el('td'); t.append(c); return t; };
+    tr.append(td(use), td(alg), td(param), td(label), td(remove));
+    this.rows.append(tr);
+  }
+
+  /** The form as a plain object (autosave, share links). */
+  setup() {
+    return {
+      episodes: Number($('exp-episodes').value), seeds: Number($('exp-seeds').value),
+      seed: Number($('exp-seed').value), delta: Number($('exp-delta').value),
+      learners: [...this.rows.children].map((tr) => {
+        const [use, alg, param, label] = tr.querySelectorAll('input, select');
+        return { use: use.checked, algorithm: alg.value, value: param.disabled ? null : Number(param.value), label: label.value };
+      }),
+      sweep: { parameter: $('sweep-param').value, values: $('sweep-values').value },
+    };
+  }
+
+  applySetup(s) {
+    const d = { ...DEFAULT_SETUP, ...(s || {}) };
+    $('exp-episodes').value = String(d.episodes);
+    $('exp-seeds').value = String(d.seeds);
+    $('exp-seed').value = String(d.seed);
+    $('exp-delta').value = String(d.delta);
+    this.rows.replaceChildren();
+    for (const l of Array.isArray(d.learners) ? d.learners : DEFAULT_SETUP.learners) {
+      if (l && ALGORITHMS[l.algorithm]) this.addRow(l);
+    }
+    $('sweep-param').value = d.sweep?.parameter || '';
+    $('sweep-values').value = d.sweep?.values || '';
+  }
+
+  /** The experiment file for the current model and form, and the learners' rows. */
+  experimentFile() {
+    const s = this.setup();
+    const m = this.hooks.model();
+    const rows = [];
+    const learners = [];
+    [...this.rows.children].forEach((tr, i) => {
+      const l = s.learners[i];
+      if (!l.use) return;
+      const a = ALGORITHMS[l.algorithm];
+      const o = { algorithm: l.algorithm };
+      if (a.param) o[a.param] = l.value;
+      if (l.label.trim()) o.label = l.label.trim();
+      learners.push(o);
+      rows.push(tr);
+    });
+    const exp = { format: 'burnin-experiment', version: 1, name: `${m.name} experiment`, episodes: s.episodes, seeds: s.seeds, seed: s.seed, delta: s.delta, learners };
+    if (s.sweep.parameter) {
+      exp.sweep = { parameter: s.sweep.parameter, values: s.sweep.values.split(/[,\s]+/).filter(Boolean).map(Number) };
+    }
+    if (s.sweep.parameter && ['states', 'actions', 'horizon'].includes(s.sweep.parameter) && m.generator) exp.generator = m.generator;
+    else exp.model = JSON.parse(m.text);
+    return { text: JSON.stringify(exp), rows };
+  }
+
+  showProblems(result, rows) {
+    const box = $('exp-problems');
+    const list = box.querySelector('ul');
+    list.replaceChildren();
+    for (const p of result.problems) {
+      list.append(el('li', p.path ? `${p.path}: ${p.message}` : p.message));
+      const m = /^learners\[(\d+)\]\.(\w+)/.exec(p.path);
+      if (m && rows[Number(m[1])]) {
+        const [, alg, param, label] = rows[Number(m[1])].querySelectorAll('input, select');
+        const target = { algorithm: alg, label }[m[2]] || param;
+        target.setAttribute('aria-invalid', 'true');
+      }
+      const top = { episodes: 'exp-episodes', seeds: 'exp-seeds', seed: 'exp-seed', delta: 'exp-delta' }[p.path];
+      if (top) $(top).setAttribute('aria-invalid', 'true');
+      if (p.path.startsWith('sweep')) $('sweep-values').setAttribute('aria-invalid', 'true');
+    }
+    if (result.unlisted > 0) list.append(el('li', `… and ${result.unlisted} more problems`));
+    box.hidden = false;
+  }
+
+  async run() {
+    if (this.running) return;
+    for (const e of document.querySelectorAll('#exp-form [aria-invalid]')) e.removeAttribute('aria-invalid');
+    $('exp-problems').hidden = true;
+    let file;
+    try { file = this.experimentFile(); } catch (err) { this.showProblems({ problems: [{ path: '', message: err.message }], unlisted: 0 }, []); return; }
+    const t0 = performance.now();
+    $('run-exp').disabled = true;
+    $('cancel-exp').disabled = false;
+    $('exp-progress').value = 0;
+    $('exp-status').textContent = 'Starting…';
+    const job = runExperiment(file.text, (done, total) => {
+      const secs = (performance.now() - t0) / 1000;
+      const rate = done / Math.max(secs, 1e-3);
+      $('exp-progress').max = total;
+      $('exp-progress').value = done;
+      $('exp-status').textContent = `${done.toLocaleString('en')} / ${total.toLocaleString('en')} episodes · ${Math.round(rate).toLocaleString('en')} per second · about ${((total - done) / Math.max(rate, 1)).toFixed(1)} s left`;
+    });
+    this.running = job;
+    try {
+      const r = await job.promise;
+      if (r.cancelled) {
+        const ms = Math.round(performance.now() - this.cancelAt);
+        $('exp-status').dataset.cancelMs = String(ms);
+        $('exp-status').textContent = `Cancelled after ${r.done.toLocaleString('en')} of ${r.total.toLocaleString('en')} episodes (stopped ${ms} ms after the click); nothing was kept from this run.`;
+      } else if (r.ok === false) {
+        $('exp-status').textContent = '';
+        this.showProblems(r, file.rows);
+      } else {
+        const secs = (performance.now() - t0) / 1000;
+        this.setResults({ text: r.json, csv: r.csv, experiment: file.text });
+        $('exp-status').textContent = `Done in ${secs.toFixed(1)} s.`;
+        this.hooks.changed();
+        $('results').scrollIntoView({ block: 'start', behavior: 'instant' });
+      }
+    } catch (err) {
+      $('exp-status').textContent = `The run failed: ${err.message}`;
+    } finally {
+      this.running = null;
+      $('run-exp').disabled = false;
+      $('cancel-exp').disabled = true;
+    }
+  }
+
+  /** Shows results {text, csv?, experiment?} (from a run, a file or the library). */
+  setResults(r) {
+    const data = JSON.parse(r.text);
+    this.results = { ...r, data, csv: r.csv || '' };
+    const sweep = data.format === 'burnin-sweep';
+    const view = $('chart-view');
+    view.replaceChildren();
+    if (sweep) view.append(el('option', `regret at K against ${data.parameter}`, { value: 'sweep' }));
+    else {
+      view.append(el('option', 'cumulative regret', { value: 'cumulative' }), el('option', 'per-episode regret', { value: 'episode' }));
+    }
+    $('export-csv').disabled = !this.results.csv;
+    $('save-results').disabled = !r.experiment;
+    $('results').hidden = false;
+    const heatSel = $('heat-learner');
+    heatSel.replaceChildren();
+    $('heat-section').hidden = sweep;
+    if (!sweep) data.learners.forEach((l, i) => heatSel.append(el('option', l.label, { value: String(i) })));
+    this.draw();
+    this.drawTable();
+    this.drawHeat();
+  }
+
+  clearResults() {
+    this.results = null;
+    $('results').hidden = true;
+  }
+
+  spec(d = this.results.data) {
+    const log = document.querySelector('input[name=axes]:checked').value === 'log';
+    const bands = $('show-bands').checked;
+    const view = $('chart-view').value;
+    const series = [];
+    if (view === 'sweep') {
+      d.learners.forEach((l, i) => series.push({ label: l.label, color: PALETTE[i % PALETTE.length], x: d.values, y: l.regret_mean, lo: bands ? l.regret_lo : null, hi: bands ? l.regret_hi : null }));
+      return { title: `Regret at K = ${d.points[0].episodes.toLocaleString('en')} against ${d.parameter}`, xLabel: d.parameter, yLabel: 'regret at K', log, bars: true, series };
+    }
+    const episode = view === 'episode';
+    d.learners.forEach((l, i) => {
+      const color = PALETTE[i % PALETTE.length];
+      series.push({
+        label: l.label, color, x: l.checkpoints,
+        y: episode ? l.episode_regret_mean : l.regret_mean,
+        lo: bands && !episode ? l.regret_lo : null, hi: bands && !episode ? l.regret_hi : null,
+      });
+      if (!episode && $('show-bounds').checked && l.bound) {
+        series.push({ label: `${l.label}: published bound`, color, x: l.checkpoints, y: l.bound.values, dash: [7, 4], width: 1.2, legend: false });
+      }
+    });
+    if (!episode && $('show-lower').checked) {
+      series.push({ label: 'lower-bound shape √(SAH³K)', color: '#5d676b', x: d.learners[0].checkpoints, y: d.lower_bound.values, dash: [2, 3], width: 1.5 });
+    }
+    const title = `${episode ? 'Regret per episode' : 'Cumulative regret'} — ${d.model_name} (S=${d.states}, A=${d.actions}, H=${d.horizon}, ${d.seeds} seeds)`;
+    return { title, xLabel: 'episode k', yLabel: episode ? 'expected regret of episode k' : 'cumulative expected regret', log, series };
+  }
+
+  caption() {
+    const d = this.results.data;
+    const bounds = $('show-bounds').checked ? ' Dashed: each learner\u2019s published bound as an order (constants and log factors dropped).' : '';
+    const lower = $('show-lower').checked ? ' Dotted: the minimax lower-bound shape.' : '';
+    const bands = $('show-bands').checked ? ' Shaded: 95% Student-t intervals across seeds.' : '';
+    return `${d.name || 'Experiment'}.${bands}${bounds}${lower}`;
+  }
+
+  draw() {
+    if (!this.results) return;
+    const canvas = $('chart');
+    const w = Math.max(320, canvas.parentElement.clientWidth || 800);
+    const h = Math.round(Math.min(520, Math.max(300, w * 0.5)));
+    this.layout = drawChart(new CanvasPen(canvas, w, h), w, h, this.spec());
+    canvas.dataset.series = String(this.layout.series.length);
+    $('chart-caption').textContent = this.caption();
+  }
+
+  hover(e) {
+    const tip = $('chart-tip');
+    if (!this.layout) return;
+    const rect = e.target.getBoundingClientRect();
+    const px = e.clientX - rect.left, py = e.clientY - rect.top;
+    const i = nearestIndex(this.layout, px, py);
+    if (i < 0) { tip.hidden = true; return; }
+    const sweep = $('chart-view').value === 'sweep';
+    const lines = [`${sweep ? this.results.data.parameter : 'k'} = ${this.layout.xs[i].toLocaleString('en')}`];
+    for (const s of this.layout.series) {
+      lines.push(`${s.label}: ${short(s.y[i])}${s.lo && s.hi ? ` [${short(s.lo[i])}, ${short(s.hi[i])}]` : ''}`);
+    }
+    tip.textContent = lines.join('\n');
+    tip.hidden = false;
+    const x = this.layout.sx(this.layout.xs[i]);
+    tip.style.left = `${Math.min(x + 12, rect.width - tip.offsetWidth - 4)}px`;
+    tip.style.top = `${Math.max(4, py - tip.offsetHeight - 10)}px`;
+  }
+
+  drawTable() {
+    const d = this.results.data;
+    const table = el('table');
+    const head = el('tr');
+    const body = table.createTBody();
+    if (d.format === 'burnin-sweep') {
+      head.append(el('th', 'learner'), ...d.values.map((v) => el('th', `${d.parameter} = ${v}`)));
+      for (const l of d.learners) {
+        const tr = el('tr');
+        tr.append(el('th', l.label));
+        l.regret_mean.forEach((m, i) => tr.append(el('td', `${short(m)} [${short(l.regret_lo[i])}, ${short(l.regret_hi[i])}]`, { 'data-value': String(m) })));
+        body.append(tr);
+      }
+    } else {
+      const eps = d.learners[0].episodes_to_eps;
+      head.append(el('th', 'learner'), el('th', 'regret at K'), el('th', '95% interval'), el('th', 'slope'), el('th', 'burn-in'), el('th', 'model updates'),
+        ...eps.map((e) => el('th', `episodes to ε = ${short(e.epsilon)} (PAC order ${short(e.pac_order)})`)));
+      for (const l of d.learners) {
+        const last = l.regret_mean.length - 1;
+        const updates = l.model_updates.reduce((a, b) => a + b, 0) / l.model_updates.length;
+        const tr = el('tr');
+        tr.append(el('th', l.label), el('td', short(l.regret_mean[last]), { 'data-value': String(l.regret_mean[last]) }), el('td', `[${short(l.regret_lo[last])}, ${short(l.regret_hi[last])}]`),
+          el('td', l.slope === null ? '—' : l.slope.toFixed(3)), el('td', l.burn_in === null ? 'not reached' : l.burn_in.toLocaleString('en')),
+          el('td', updates.toFixed(1)));
+        for (const e of l.episodes_to_eps) {
+          const got = e.episodes.filter((x) => x !== null).sort((a, b) => a - b);
+          const median = got.length === e.episodes.length ? `median ${got[Math.floor(got.length / 2)].toLocaleString('en')}` : `not reached in ${e.episodes.length - got.length} of ${e.episodes.length} seeds`;
+          tr.append(el('td', median));
+        }
+        body.append(tr);
+      }
+    }
+    table.createTHead().append(head);
+    $('results-table').replaceChildren(table);
+  }
+
+  drawHeat() {
+    const d = this.results?.data;
+    if (!d || d.format === 'burnin-sweep') return;
+    const l = d.learners[Number($('heat-learner').value) || 0];
+    const H = l.visits.length, S = l.visits[0].length;
+    let hi = 0;
+    for (const row of l.visits) for (const x of row) hi = Math.max(hi, x);
+    const table = el('table');
+    const head = el('tr');
+    head.append(el('th', 'state'));
+    for (let h = 0; h < Math.min(H, 60); h++) head.append(el('th', `h=${h + 1}`));
+    table.createTHead().append(head);
+    const body = table.createTBody();
+    const states = this.hooks.model().states || [];
+    for (let s = 0; s < Math.min(S, 200); s++) {
+      const tr = el('tr');
+      tr.append(el('th', states[s] ?? `state ${s}`));
+      for (let h = 0; h < Math.min(H, 60); h++) {
+        const x = l.visits[h][s];
+        const t = hi > 0 ? x / hi : 0;
+        const td = el('td', x >= 100 ? Math.round(x).toLocaleString('en') : x.toFixed(1));
+        td.style.background = valueColour(t);
+        td.style.color = inkOn(t);
+        tr.append(td);
+      }
+      body.append(tr);
+    }
+    $('heat-wrap').replaceChildren(table);
+  }
+
+  exportPng() {
+    const c = document.createElement('canvas');
+    const [w, h] = [1280, 720];
+    drawChart(new CanvasPen(c, w, h), w, h, this.spec(), 1.25);
+    c.toBlob((b) => download(`${this.fileBase()}-chart.png`, b, 'image/png'), 'image/png');
+  }
+
+  svgText() {
+    const [w, h] = [1280, 720];
+    const pen = new SvgPen(w, h);
+    drawChart(pen, w, h, this.spec(), 1.25);
+    return pen.toString();
+  }
+
+  exportSvg() { download(`${this.fileBase()}-chart.svg`, this.svgText(), 'image/svg+xml'); }
+
+  present() {
+    $('present-caption').value = this.caption();
+    $('presenter').hidden = false;
+    this.drawPresent();
+    $('present-close').focus();
+  }
+
+  drawPresent() {
+    const c = $('present-chart');
+    const w = window.innerWidth, h = Math.max(200, window.innerHeight - 80);
+    const spec = { ...this.spec(), title: this.spec().title };
+    drawChart(new CanvasPen(c, w, h), w, h, spec, Math.max(1.4, w / 900));
+  }
+
+  closePresent() {
+    $('presenter').hidden = true;
+    $('present').focus();
+  }
+}

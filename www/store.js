@@ -1,0 +1,98 @@
+// The library in local storage: one key per saved item, each a versioned
+// envelope, plus one key for the autosaved current work. A corrupted item is
+// skipped (and reported) without touching the others; a full quota leaves
+// what was stored before unchanged, since a failed setItem changes nothing.
+
+const PREFIX = 'burnin:v1:entry:';
+const AUTOSAVE = 'burnin:v1:autosave';
+export const ENTRY_FORMAT = 'burnin-saved';
+export const ENTRY_VERSION = 1;
+
+/** Thrown when the browser refuses to store more. */
+export class StorageFull extends Error {}
+
+function write(key, value) {
+  try {
+    localStorage.setItem(key, JSON.stringify(value));
+  } catch (err) {
+    if (err && (err.name === 'QuotaExceededError' || err.code === 22)) {
+      throw new StorageFull('The browser\u2019s storage for this page is full; nothing was changed. Delete saved items or save to a file instead.');
+    }
+    throw err;
+  }
+}
+
+function newId() {
+  const b = new Uint8Array(8);
+  crypto.getRandomValues(b);
+  return Array.from(b, (x) => x.toString(16).padStart(2, '0')).join('');
+}
+
+/** Checks one stored envelope; returns the entry or a reason it is unusable. */
+function check(raw) {
+  let e;
+  try { e = JSON.parse(raw); } catch { return { reason: 'not valid JSON' }; }
+  if (!e || typeof e !== 'object') return { reason: 'not an object' };
+  if (e.format !== ENTRY_FORMAT) return { reason: `format ${JSON.stringify(e.format)} is not ${ENTRY_FORMAT}` };
+  if (e.version !== ENTRY_VERSION) return { reason: `version ${JSON.stringify(e.version)} is not supported` };
+  if (typeof e.name !== 'string' || typeof e.model !== 'string' || !['model', 'experiment'].includes(e.kind)) {
+    return { reason: 'missing name, kind or model' };
+  }
+  return { entry: e };
+}
+
+/** Every saved item, newest first, and the keys that were skipped with why. */
+export function listEntries() {
+  const entries = [], skipped = [];
+  for (let i = 0; i < localStorage.length; i++) {
+    const key = localStorage.key(i);
+    if (!key || !key.startsWith(PREFIX)) continue;
+    const { entry, reason } = check(localStorage.getItem(key));
+    if (entry) entries.push(entry); else skipped.push({ key, reason });
+  }
+  entries.sort((a, b) => (b.saved_at || '').localeCompare(a.saved_at || ''));
+  return { entries, skipped };
+}
+
+export function getEntry(id) {
+  const raw = localStorage.getItem(PREFIX + id);
+  return raw === null ? null : check(raw).entry || null;
+}
+
+/** Saves a new item: {kind, name, model, experiment?, results?}. */
+export function saveEntry(item) {
+  const entry = { format: ENTRY_FORMAT, version: ENTRY_VERSION, id: newId(), saved_at: new Date().toISOString(), ...item };
+  write(PREFIX + entry.id, entry);
+  return entry;
+}
+
+export function renameEntry(id, name) {
+  const e = getEntry(id);
+  if (!e) return;
+  write(PREFIX + id, { ...e, name, saved_at: new Date().toISOString() });
+}
+
+export function duplicateEntry(id) {
+  const e = getEntry(id);
+  if (!e) return null;
+  const { id: _old, saved_at: _t, ...rest } = e;
+  return saveEntry({ ...rest, name: `${e.name} (copy)` });
+}
+
+export function deleteEntry(id) {
+  localStorage.removeItem(PREFIX + id);
+}
+
+/** Keeps the current work; throws StorageFull when it cannot. */
+export function autosave(state) {
+  write(AUTOSAVE, { format: 'burnin-autosave', version: 1, saved_at: new Date().toISOString(), ...state });
+}
+
+export function loadAutosave() {
+  try {
+    const s = JSON.parse(localStorage.getItem(AUTOSAVE));
+    return s && s.format === 'burnin-autosave' && s.version === 1 && typeof s.model === 'string' ? s : null;
+  } catch {
+    return null;
+  }
+}
