@@ -32,6 +32,9 @@ function request(type, payload, onProgress) {
 /** Parses, validates and solves a model file's text. */
 export const solve = (text) => request('solve', { text }).promise;
 
+/** Checks a model file's text: its summary, or its problems. */
+export const check = (text) => request('check', { text }).promise;
+
 /** A generated model file's text (or problems) from a generator object. */
 export const generate = (spec) => request('generate', { spec: JSON.stringify(spec) }).promise;
 

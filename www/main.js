@@ -4,6 +4,8 @@ import { solve, generate } from './compute.js';
 import { renderFacts, renderProblems, renderOptimal, renderValues, renderQ } from './views.js';
 import { ExperimentView, ALGORITHMS, DEFAULT_SETUP } from './experiment.js';
 import { initGeneratorForm } from './generator-form.js';
+import { Editor } from './editor.js';
+import { GraphView } from './graph.js';
 import * as store from './store.js';
 import * as share from './share.js';
 
@@ -22,7 +24,7 @@ function notice(text, warn = false) {
 function setStatus(text) { $('status').textContent = text; }
 
 // ---- tabs -------------------------------------------------------------
-const TABS = ['solution', 'experiment', 'library'];
+const TABS = ['solution', 'editor', 'graph', 'experiment', 'library'];
 function showTab(name) {
   for (const t of TABS) {
     const on = t === name;
@@ -32,6 +34,7 @@ function showTab(name) {
   }
   if (name === 'library') renderLibrary();
   if (name === 'experiment') experiment.draw();
+  if (name === 'graph') graph.render();
 }
 for (const t of TABS) {
   $(`tab-${t}`).addEventListener('click', () => showTab(t));
@@ -54,6 +57,9 @@ function show(sol, text, source, generator = null) {
   step.value = '1';
   showStep();
   experiment.setSweepChoices(Boolean(generator));
+  $('demo-select').value = source.kind === 'demo' ? source.name : '';
+  editor.load(text);
+  graph.show(JSON.parse(text), sol);
   document.title = `${current.name} — Burnin`;
 }
 
@@ -287,6 +293,16 @@ async function openShared(hash) {
   return false;
 }
 
+// ---- editor and graph ---------------------------------------------------
+const editor = new Editor((text) => openModel(text, 'the edited model', { kind: 'edited', name: 'edited model' }).then((ok) => ok && showTab('solution')));
+const graph = new GraphView((positions) => {
+  if (!current) return;
+  const doc = JSON.parse(current.text);
+  doc.layout = { positions };
+  current.text = JSON.stringify(doc, null, 1);
+  saveWork();
+});
+
 // ---- start -------------------------------------------------------------
 const experiment = new ExperimentView({
   model: () => ({ text: current?.text, name: current?.name || 'model', generator: current?.generator, states: current?.solution.states }),
@@ -297,6 +313,11 @@ const experiment = new ExperimentView({
 async function start() {
   const index = await (await fetch('demo-models/index.json')).json();
   const select = $('demo-select');
+  const other = document.createElement('option');
+  other.value = '';
+  other.textContent = '(another model is open)';
+  other.disabled = true;
+  select.append(other);
   for (const f of index.models) {
     const o = document.createElement('option');
     o.value = f;
@@ -333,7 +354,6 @@ async function start() {
   if (saved && await openModel(saved.model, saved.source?.name || 'your last model', saved.source || { kind: 'file', name: 'autosave' }, saved.generator || null)) {
     experiment.applySetup(saved.setup);
     if (saved.results) experiment.setResults(saved.results);
-    if (saved.source?.kind === 'demo') select.value = saved.source.name;
     return;
   }
   experiment.applySetup(DEFAULT_SETUP);

@@ -1,11 +1,12 @@
 // The compute worker: owns the wasm core; never touches the DOM.
 // Requests {type, id, ...}:
 //   solve {text}       → done {result}            (a model file's solution or problems)
+//   check {text}       → done {result}            (a model's summary or problems)
 //   generate {spec}    → done {result}            (a model file's text or problems)
 //   run {text}         → progress {done, total}…, then done {result: {json, csv}},
 //                        or error {problems} for a bad experiment
 //   cancel {id}        → the run with that id stops and answers cancelled
-import init, { solveModel, generateModel, ExperimentRun } from './pkg/burnin.js';
+import init, { solveModel, checkModel, generateModel, ExperimentRun } from './pkg/burnin.js';
 
 const ready = init();
 const cancelled = new Set();
@@ -54,6 +55,8 @@ self.onmessage = async (event) => {
       const result = solveModel(event.data.text);
       const transfer = result.ok ? [result.v.buffer, result.q.buffer, result.gaps.buffer, result.policy.buffer] : [];
       self.postMessage({ type: 'done', id, result }, transfer);
+    } else if (type === 'check') {
+      self.postMessage({ type: 'done', id, result: checkModel(event.data.text) });
     } else if (type === 'generate') {
       self.postMessage({ type: 'done', id, result: generateModel(event.data.spec) });
     } else if (type === 'run') {

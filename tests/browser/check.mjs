@@ -119,10 +119,18 @@ await check('the step slider shows Q* and gaps of the chosen step', async (page)
 await check('the tabs are reachable from the keyboard', async (page) => {
   await openPage(page);
   await page.focus('#tab-solution');
-  await page.keyboard.press('ArrowRight');
-  assertEqual(await page.locator('#tab-experiment').getAttribute('aria-selected'), 'true', 'experiment tab selected');
-  assert(await page.locator('#panel-experiment').isVisible(), 'experiment panel shown');
-  assertEqual(await page.evaluate(() => document.activeElement.id), 'tab-experiment', 'focus follows');
+  for (const tab of ['editor', 'graph', 'experiment']) {
+    await page.keyboard.press('ArrowRight');
+    assertEqual(await page.locator(`#tab-${tab}`).getAttribute('aria-selected'), 'true', `${tab} tab selected`);
+    assert(await page.locator(`#panel-${tab}`).isVisible(), `${tab} panel shown`);
+    assertEqual(await page.evaluate(() => document.activeElement.id), `tab-${tab}`, 'focus follows');
+  }
+  // Every control on the page has an accessible name.
+  const unnamed = await page.evaluate(() => [...document.querySelectorAll('input, select, button')]
+    .filter((e) => !e.hidden && e.type !== 'hidden' && e.type !== 'file')
+    .filter((e) => !(e.labels && e.labels.length) && !e.getAttribute('aria-label') && !e.getAttribute('aria-labelledby') && !e.textContent.trim())
+    .map((e) => e.id || e.outerHTML.slice(0, 60)));
+  assertEqual(unnamed.join(', '), '', 'controls without a name');
 });
 
 await check('a bad file shows its problems and changes nothing open or saved', async (page) => {
@@ -360,6 +368,63 @@ await check('the presentation view fills the window and closes with Escape', asy
   await page.screenshot({ path: join(out, 'present.png') });
   await page.keyboard.press('Escape');
   assert(!(await page.locator('#presenter').isVisible()), 'closed');
+});
+
+await check('the editor shows a problem at its cell as you type, and uses the fixed model', async (page) => {
+  await openPage(page);
+  await page.selectOption('#demo-select', 'seed-trial.json');
+  await shownValue(page, 'Seed trial');
+  await page.click('#tab-editor');
+  const row = page.locator('#ed-grid tbody tr').nth(2);
+  await row.locator('td input[type=number]').first().fill('0.8');
+  await page.waitForFunction(() => document.querySelectorAll('#ed-grid .row-check')[2].textContent !== '');
+  assertEqual(await row.locator('.row-check').textContent(), 'probabilities sum to 0.8000, expected 1', 'message at the row');
+  assertEqual(await row.locator('.row-check').getAttribute('aria-invalid'), 'true', 'row marked');
+  assert(await page.isDisabled('#ed-apply'), 'a broken model cannot be used');
+  await row.locator('td input[type=number]').first().fill('1');
+  const reward = row.locator('.reward-input');
+  await reward.fill('bernoulli 1.5');
+  await page.waitForFunction(() => document.querySelectorAll('#ed-grid .reward-input')[2].getAttribute('aria-invalid') === 'true');
+  assertEqual(await reward.getAttribute('title'), 'expected a probability in [0, 1], found 1.5', 'reward message');
+  await reward.fill('0.9');
+  await page.waitForFunction(() => !document.getElementById('ed-apply').disabled);
+  // The open model is untouched until the edit is used.
+  assertEqual((await shownValue(page, 'Seed trial')).data, 0.55, 'unchanged until used');
+  await page.click('#ed-apply');
+  // derived by hand: the best arm now pays 0.9 for sure.
+  await page.waitForFunction(() => document.getElementById('optimal-value').dataset.value === '0.9');
+  await page.selectOption('#demo-select', 'tide-pool-forager.json');
+  await shownValue(page, defaultName);
+  await page.click('#tab-editor');
+  await page.fill('#ed-horizon', '0');
+  await page.waitForFunction(() => document.getElementById('ed-horizon').getAttribute('aria-invalid') === 'true');
+  await page.screenshot({ path: join(out, 'editor.png'), fullPage: true });
+});
+
+await check('the graph draws every transition, highlights the policy, and keeps dragged positions', async (page) => {
+  await openPage(page);
+  await page.selectOption('#demo-select', 'lantern-cave.json');
+  await shownValue(page, 'Lantern cave');
+  await page.click('#tab-graph');
+  const m = await (await fetch(`${url}/demo-models/lantern-cave.json`)).json();
+  const entries = m.steps[0].transitions.flat().flat().filter((e) => e[1] > 0).length;
+  assertEqual(await page.locator('#graph-box path[data-edge]').count(), entries, 'one arrow per transition');
+  assertEqual(await page.locator('#graph-legend li').count(), m.actions.length, 'one legend entry per action');
+  await page.check('#graph-policy');
+  const faded = await page.locator('#graph-box path[data-edge][opacity="0.1"]').count();
+  assert(faded > 0 && faded < entries, `non-policy arrows faded (${faded})`);
+  const node = page.locator('#graph-box [data-state="3"]');
+  const b = await node.boundingBox();
+  await page.mouse.move(b.x + b.width / 2, b.y + b.height / 2);
+  await page.mouse.down();
+  await page.mouse.move(b.x + b.width / 2, b.y + b.height / 2 + 120, { steps: 5 });
+  await page.mouse.up();
+  await page.locator('#graph-box [data-state="0"]').focus();
+  await page.keyboard.press('ArrowUp');
+  await page.screenshot({ path: join(out, 'graph.png') });
+  const saved = JSON.parse((await downloadText(page, '#save-model')).text);
+  assert(saved.layout.positions[3][1] < m.layout.positions[3][1] - 0.1, `dragged down: ${saved.layout.positions[3]} vs ${m.layout.positions[3]}`);
+  assert(saved.layout.positions[0][1] > m.layout.positions[0][1], 'moved up with the keyboard');
 });
 
 await browser.close();
