@@ -427,6 +427,51 @@ await check('the graph draws every transition, highlights the policy, and keeps 
   assert(saved.layout.positions[0][1] > m.layout.positions[0][1], 'moved up with the keyboard');
 });
 
+await check('a file dropped on the page opens', async (page) => {
+  await openPage(page);
+  const text = await (await fetch(`${url}/demo-models/lantern-cave.json`)).text();
+  const dt = await page.evaluateHandle((t) => {
+    const d = new DataTransfer();
+    d.items.add(new File([t], 'dropped.json', { type: 'application/json' }));
+    return d;
+  }, text);
+  await page.dispatchEvent('body', 'dragover', { dataTransfer: dt });
+  await page.dispatchEvent('body', 'drop', { dataTransfer: dt });
+  assertEqual((await shownValue(page, 'Lantern cave')).data, expected['lantern-cave.json'], 'dropped model solved');
+});
+
+await check('a model too large for a link is refused with a message', async (page) => {
+  await openPage(page);
+  await page.click('#generator summary');
+  await page.selectOption('#gen-kind', 'random');
+  await page.fill('#gen-states', '60');
+  await page.fill('#gen-actions', '8');
+  await page.fill('#gen-successors', '20');
+  await page.fill('#gen-horizon', '5');
+  await page.check('#gen-time_dependent');
+  await page.click('#gen-run');
+  await shownValue(page, 'Random sparse S=60 A=8 b=20 H=5');
+  const before = await page.evaluate(() => location.hash);
+  await page.click('#share-link');
+  await page.waitForFunction(() => /too large for a link/.test(document.getElementById('notice').textContent));
+  assertEqual(await page.evaluate(() => location.hash), before, 'the address is unchanged');
+});
+
+await check('canvases are sharp on a high-density screen', async (page, context) => {
+  const hi = await browser.newContext({ viewport: { width: 1200, height: 800 }, deviceScaleFactor: 2 });
+  try {
+    const p = await hi.newPage();
+    await openPage(p);
+    await p.click('#tab-experiment');
+    await p.fill('#exp-episodes', '200');
+    await runAndWait(p);
+    const [w, css] = await p.evaluate(() => { const c = document.getElementById('chart'); return [c.width, c.clientWidth]; });
+    assertEqual(w, css * 2, 'backing store at twice the CSS width');
+  } finally {
+    await hi.close();
+  }
+});
+
 await browser.close();
 console.log(`\nbrowser: ${passed} passed, ${failed} failed`);
 process.exit(failed === 0 ? 0 : 1);
