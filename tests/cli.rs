@@ -410,3 +410,69 @@ fn run_sweeps_a_generator_parameter() {
         t.stdout
     );
 }
+
+/// An experiment run as N shards and merged gives exactly what one run gives
+/// (the same bytes), for a sweep with a model named by path.
+#[test]
+fn merged_shards_equal_a_single_run() {
+    let d = Scratch::new("shards");
+    let model = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/night-ferry.json");
+    std::fs::copy(&model, d.0.join("ferry.json")).unwrap();
+    let f = d.file(
+        "exp.json",
+        r#"{"format": "burnin-experiment", "version": 1, "model_path": "ferry.json",
+            "episodes": 200, "seeds": 3, "seed": 9,
+            "sweep": {"parameter": "bonus_scale", "values": [0.01, 0.1]},
+            "learners": [{"algorithm": "mvp"}, {"algorithm": "psrl"}, {"algorithm": "q-ucb-hoeffding"}]}"#,
+    );
+    let whole = burnin(&["run", "--json", p(&f)]);
+    assert_eq!(whole.code, 0, "{}", whole.stderr);
+    let mut shard_files = Vec::new();
+    for i in 1..=4 {
+        let r = burnin(&["run", "--shard", &format!("{i}/4"), "--threads", "1", p(&f)]);
+        assert_eq!(r.code, 0, "{}", r.stderr);
+        // Shards are portable: the model travels inside, not by path.
+        shard_files.push(d.file(&format!("s{i}.json"), &r.stdout));
+    }
+    std::fs::remove_file(d.0.join("ferry.json")).unwrap();
+    let mut args = vec!["merge", "--json"];
+    // Any order.
+    for s in shard_files.iter().rev() {
+        args.push(p(s));
+    }
+    let merged = burnin(&args);
+    assert_eq!(merged.code, 0, "{}", merged.stderr);
+    assert_eq!(merged.stdout, whole.stdout);
+
+    let r = burnin(&[
+        "merge",
+        p(&shard_files[0]),
+        p(&shard_files[2]),
+        p(&shard_files[3]),
+    ]);
+    assert_eq!(r.code, 1);
+    assert_eq!(r.stderr, "missing shard 2 of 4\n");
+    let r = burnin(&["merge", p(&shard_files[0]), p(&shard_files[0])]);
+    assert!(
+        r.stderr.contains("shard 1 was already given as"),
+        "{}",
+        r.stderr
+    );
+    assert_eq!(burnin(&["run", "--shard", "0/4", p(&f)]).code, 2);
+    let other = d.file(
+        "other.json",
+        &burnin(&[
+            "run",
+            "--shard",
+            "2/4",
+            p(&experiment_file(&d, r#"[{"algorithm": "uniform"}]"#, 10)),
+        ])
+        .stdout,
+    );
+    let r = burnin(&["merge", p(&shard_files[0]), p(&other)]);
+    assert!(
+        r.stderr.contains("is a shard of another experiment"),
+        "{}",
+        r.stderr
+    );
+}

@@ -52,6 +52,21 @@ enum Command {
         /// Runs in parallel (default: the machine's cores); results do not depend on it.
         #[arg(long, value_name = "N")]
         threads: Option<usize>,
+        /// Run only shard I of N of the runs and print a shard file for `burnin merge`.
+        #[arg(long, value_name = "I/N")]
+        shard: Option<String>,
+    },
+    /// Merge the shard files of one experiment into its results.
+    Merge {
+        /// Shard files from `burnin run --shard I/N`, all N of them.
+        #[arg(required = true)]
+        files: Vec<PathBuf>,
+        /// Print the results as JSON instead of a table.
+        #[arg(long)]
+        json: bool,
+        /// Also write the curves as CSV to this file.
+        #[arg(long, value_name = "FILE")]
+        csv: Option<PathBuf>,
     },
     /// Rewrite a model file in the canonical layout (fields in order, one
     /// transition row per line) on standard output.
@@ -208,7 +223,9 @@ fn main() -> ExitCode {
             json,
             csv,
             threads,
-        } => run(&file, json, csv.as_deref(), threads),
+            shard,
+        } => run(&file, json, csv.as_deref(), threads, shard.as_deref()),
+        Command::Merge { files, json, csv } => merge(&files, json, csv.as_deref()),
         Command::Tidy { file } => load(&file).and_then(|m| emit(&burnin::write_model(&m))),
         Command::Generate { kind, seed, output } => generate(kind, seed, output.as_deref()),
     };
@@ -426,33 +443,61 @@ fn generate(kind: Kind, seed: u64, output: Option<&Path>) -> Result<(), Failure>
     }
 }
 
-fn run(path: &Path, json: bool, csv: Option<&Path>, threads: Option<usize>) -> Result<(), Failure> {
-    use burnin::experiment::{Context, Output, Run, assemble, parse_experiment};
+/// Parses "I/N" with 1 ≤ I ≤ N.
+fn parse_shard(text: &str) -> Result<(usize, usize), Failure> {
+    let bad = || {
+        Failure::Io(format!(
+            "--shard {text:?}: expected I/N with 1 ≤ I ≤ N, e.g. 2/8"
+        ))
+    };
+    let (i, n) = text.split_once('/').ok_or_else(bad)?;
+    let (i, n): (usize, usize) = (
+        i.trim().parse().map_err(|_| bad())?,
+        n.trim().parse().map_err(|_| bad())?,
+    );
+    if i == 0 || i > n {
+        return Err(bad());
+    }
+    Ok((i, n))
+}
+
+fn run(
+    path: &Path,
+    json: bool,
+    csv: Option<&Path>,
+    threads: Option<usize>,
+    shard: Option<&str>,
+) -> Result<(), Failure> {
+    use burnin::experiment::{
+        Context, Run, SHARD_FORMAT, ShardFile, assemble, parse_experiment, shard_jobs,
+    };
     use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering};
     use std::sync::{Arc, Mutex};
 
+    let shard = shard.map(parse_shard).transpose()?;
     let text = read_text(path)?;
     let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
-    let loader = move |rel: &str| -> Result<String, String> {
+    let model_text = Mutex::new(None::<String>);
+    let loader = |rel: &str| -> Result<String, String> {
         let p = base.join(rel);
         let bytes = std::fs::read(&p).map_err(|e| format!("cannot read {}: {e}", p.display()))?;
-        String::from_utf8(bytes).map_err(|_| format!("{} is not UTF-8 text", p.display()))
+        let t =
+            String::from_utf8(bytes).map_err(|_| format!("{} is not UTF-8 text", p.display()))?;
+        *model_text.lock().expect("not poisoned") = Some(t.clone());
+        Ok(t)
     };
     let exp = parse_experiment(&text, Some(&loader)).map_err(invalid)?;
     // A sweep is one experiment per value; all their runs share one pool.
     let contexts: Vec<Arc<Context>> = exp.points().into_iter().map(Context::new).collect();
-    let jobs: Vec<(usize, usize)> = contexts
-        .iter()
-        .enumerate()
-        .flat_map(|(p, c)| (0..c.runs()).map(move |i| (p, i)))
-        .collect();
+    let (index, count) = shard.map_or((0, 1), |(i, n)| (i - 1, n));
+    let jobs = shard_jobs(&contexts, index, count);
     let threads = threads
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
         .clamp(1, jobs.len().max(1));
     let next = AtomicUsize::new(0);
     let done_episodes = AtomicU64::new(0);
-    let records = Mutex::new(vec![Vec::new(); contexts.len()]);
-    let progress = Progress::new(contexts.iter().map(|c| c.total_episodes()).sum());
+    let records = Mutex::new(Vec::with_capacity(jobs.len()));
+    let progress = Progress::new(jobs.iter().map(|&(p, _)| contexts[p].exp.episodes).sum());
     std::thread::scope(|scope| {
         for _ in 0..threads {
             scope.spawn(|| {
@@ -470,27 +515,67 @@ fn run(path: &Path, json: bool, csv: Option<&Path>, threads: Option<usize>) -> R
                             break;
                         }
                     }
-                    records.lock().expect("no thread panicked")[p].push(r.finish());
+                    records
+                        .lock()
+                        .expect("no thread panicked")
+                        .push((j, p, r.finish()));
                 }
             });
         }
     });
     progress.clear();
-    let out = assemble(
-        &exp,
-        &contexts,
-        records.into_inner().expect("no thread panicked"),
-    );
-    let table = match &out {
-        Output::Single(r) => results_table(r),
-        Output::Sweep(r) => sweep_table(r),
-    };
-    let (out_json, out_csv) = (out.to_json(), out.to_csv());
+    let mut records = records.into_inner().expect("no thread panicked");
+    records.sort_by_key(|r| r.0);
+    if let Some((i, n)) = shard {
+        let file = ShardFile {
+            format: SHARD_FORMAT.into(),
+            version: 1,
+            shard: i,
+            of: n,
+            experiment: text,
+            model: model_text.into_inner().expect("not poisoned"),
+            records: records.into_iter().map(|(_, p, r)| (p, r)).collect(),
+        };
+        return emit(&file.to_json());
+    }
+    let mut by_point = vec![Vec::new(); contexts.len()];
+    for (_, p, r) in records {
+        by_point[p].push(r);
+    }
+    finish_output(&assemble(&exp, &contexts, by_point), json, csv)
+}
+
+fn finish_output(
+    out: &burnin::experiment::Output,
+    json: bool,
+    csv: Option<&Path>,
+) -> Result<(), Failure> {
+    use burnin::experiment::Output;
     if let Some(p) = csv {
-        std::fs::write(p, out_csv)
+        std::fs::write(p, out.to_csv())
             .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display())))?;
     }
-    emit(if json { &out_json } else { &table })
+    if json {
+        return emit(&out.to_json());
+    }
+    emit(&match out {
+        Output::Single(r) => results_table(r),
+        Output::Sweep(r) => sweep_table(r),
+    })
+}
+
+fn merge(files: &[PathBuf], json: bool, csv: Option<&Path>) -> Result<(), Failure> {
+    let mut shards = Vec::with_capacity(files.len());
+    for f in files {
+        let text = read_text(f)?;
+        let shard: burnin::experiment::ShardFile = serde_json::from_str(&text).map_err(|e| {
+            Failure::Invalid(vec![format!("{}: not a shard file ({e})", f.display())])
+        })?;
+        shards.push(shard);
+    }
+    let name = |i: usize| files[i].display().to_string();
+    let out = burnin::experiment::merge(&shards, &name).map_err(invalid)?;
+    finish_output(&out, json, csv)
 }
 
 fn sweep_table(r: &burnin::experiment::SweepResults) -> String {

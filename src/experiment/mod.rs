@@ -12,7 +12,10 @@
 //! responsive.
 
 mod results;
+mod shard;
 mod spec;
+
+pub use shard::{SHARD_FORMAT, SHARD_VERSION, ShardFile, merge};
 
 pub use results::{
     EpsResult, LearnerResult, RESULTS_FORMAT, RESULTS_VERSION, Results, SETTLED_SLOPE,
@@ -91,7 +94,7 @@ impl Context {
 }
 
 /// The record of one finished run.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct RunRecord {
     pub learner: usize,
     pub seed_index: u64,
@@ -300,15 +303,35 @@ pub struct Batch {
     total: u64,
 }
 
+/// Every (point, run) of an experiment, in a fixed order.
+pub fn all_jobs(contexts: &[Arc<Context>]) -> Vec<(usize, usize)> {
+    contexts
+        .iter()
+        .enumerate()
+        .flat_map(|(p, c)| (0..c.runs()).map(move |i| (p, i)))
+        .collect()
+}
+
+/// The jobs of shard `index` (0-based) of `count`: every count-th job.
+pub fn shard_jobs(contexts: &[Arc<Context>], index: usize, count: usize) -> Vec<(usize, usize)> {
+    all_jobs(contexts)
+        .into_iter()
+        .enumerate()
+        .filter(|(j, _)| j % count == index)
+        .map(|(_, job)| job)
+        .collect()
+}
+
 impl Batch {
     pub fn new(exp: Experiment) -> Batch {
+        Self::shard(exp, 0, 1)
+    }
+
+    /// Only shard `index` (0-based) of `count` of the runs.
+    pub fn shard(exp: Experiment, index: usize, count: usize) -> Batch {
         let contexts: Vec<Arc<Context>> = exp.points().into_iter().map(Context::new).collect();
-        let jobs = contexts
-            .iter()
-            .enumerate()
-            .flat_map(|(p, c)| (0..c.runs()).map(move |i| (p, i)))
-            .collect();
-        let total = contexts.iter().map(|c| c.total_episodes()).sum();
+        let jobs = shard_jobs(&contexts, index, count);
+        let total = jobs.iter().map(|&(p, _)| contexts[p].exp.episodes).sum();
         Batch {
             records: vec![Vec::new(); contexts.len()],
             exp,
@@ -361,9 +384,18 @@ impl Batch {
         &self.exp
     }
 
-    /// The results (once [`Batch::is_done`]).
+    /// The results (once [`Batch::is_done`], and for an unsharded batch).
     pub fn output(&self) -> Output {
         assert!(self.is_done(), "every run has finished");
         assemble(&self.exp, &self.contexts, self.records.clone())
+    }
+
+    /// The finished runs as (point, record) pairs, for a shard file.
+    pub fn records(&self) -> Vec<(usize, RunRecord)> {
+        self.records
+            .iter()
+            .enumerate()
+            .flat_map(|(p, rs)| rs.iter().map(move |r| (p, r.clone())))
+            .collect()
     }
 }

@@ -1,0 +1,133 @@
+//! Shards: one slice of an experiment's runs, written to a file, so a large
+//! experiment can run as an array job (Slurm job arrays, Kubernetes Indexed
+//! Jobs) and be merged into exactly what one run gives.
+//!
+//! Shard i of n holds every n-th (point, run) job starting at job i. A shard
+//! file carries the experiment's text and its model's text, so merging needs
+//! nothing but the shard files.
+
+use std::sync::Arc;
+
+use serde::{Deserialize, Serialize};
+
+use super::{Context, Output, RunRecord, assemble, parse_experiment, shard_jobs};
+use crate::model::Problems;
+
+pub const SHARD_FORMAT: &str = "burnin-shard";
+pub const SHARD_VERSION: u64 = 1;
+
+/// One shard's runs.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ShardFile {
+    pub format: String,
+    pub version: u64,
+    /// 1-based shard number, as on the command line.
+    pub shard: usize,
+    pub of: usize,
+    /// The experiment file's text, as given.
+    pub experiment: String,
+    /// The text of the model `model_path` named (null for an inline model or a generator).
+    pub model: Option<String>,
+    /// (point, record) for every run of the shard.
+    pub records: Vec<(usize, RunRecord)>,
+}
+
+impl ShardFile {
+    pub fn to_json(&self) -> String {
+        serde_json::to_string(self).expect("records hold no non-finite numbers") + "\n"
+    }
+}
+
+/// Merges shard files into the experiment's output, checking that they are
+/// the n shards of one experiment, each exactly once. `name(i)` labels shard
+/// file i in messages.
+pub fn merge(shards: &[ShardFile], name: &dyn Fn(usize) -> String) -> Result<Output, Problems> {
+    let mut p = Problems::default();
+    let Some(first) = shards.first() else {
+        return Err(Problems::single("", "no shard files given"));
+    };
+    for (i, s) in shards.iter().enumerate() {
+        if s.format != SHARD_FORMAT || s.version != SHARD_VERSION {
+            p.push(
+                name(i),
+                format!("not a {SHARD_FORMAT} version {SHARD_VERSION} file"),
+            );
+        } else if s.experiment != first.experiment || s.model != first.model {
+            p.push(
+                name(i),
+                format!("is a shard of another experiment than {}", name(0)),
+            );
+        } else if s.of != first.of {
+            p.push(
+                name(i),
+                format!(
+                    "is shard {} of {}, but {} is of {}",
+                    s.shard,
+                    s.of,
+                    name(0),
+                    first.of
+                ),
+            );
+        }
+    }
+    std::mem::take(&mut p).into_result()?;
+    let n = first.of;
+    let mut seen = vec![None; n];
+    for (i, s) in shards.iter().enumerate() {
+        match seen.get(s.shard.wrapping_sub(1)) {
+            None => p.push(
+                name(i),
+                format!("shard number {} is outside 1..={n}", s.shard),
+            ),
+            Some(Some(j)) => p.push(
+                name(i),
+                format!("shard {} was already given as {}", s.shard, name(*j)),
+            ),
+            Some(None) => seen[s.shard - 1] = Some(i),
+        }
+    }
+    let missing: Vec<String> = (1..=n)
+        .filter(|k| seen[k - 1].is_none())
+        .map(|k| k.to_string())
+        .collect();
+    if !missing.is_empty() {
+        p.push(
+            "",
+            format!(
+                "missing shard{} {} of {n}",
+                if missing.len() == 1 { "" } else { "s" },
+                missing.join(", ")
+            ),
+        );
+    }
+    std::mem::take(&mut p).into_result()?;
+    let model = first.model.clone();
+    let loader = move |_: &str| {
+        model
+            .clone()
+            .ok_or_else(|| "the shard holds no model file".to_string())
+    };
+    let exp = parse_experiment(&first.experiment, Some(&loader))?;
+    let contexts: Vec<Arc<Context>> = exp.points().into_iter().map(Context::new).collect();
+    let mut records: Vec<Vec<RunRecord>> = vec![Vec::new(); contexts.len()];
+    for (k, s) in shards.iter().enumerate() {
+        let want = shard_jobs(&contexts, s.shard - 1, n).len();
+        if s.records.len() != want {
+            p.push(
+                name(k),
+                format!("holds {} runs, expected {want}", s.records.len()),
+            );
+        }
+        for (point, r) in &s.records {
+            match records.get_mut(*point) {
+                Some(v) => v.push(r.clone()),
+                None => p.push(
+                    name(k),
+                    format!("names sweep point {point}, which does not exist"),
+                ),
+            }
+        }
+    }
+    std::mem::take(&mut p).into_result()?;
+    Ok(assemble(&exp, &contexts, records))
+}
