@@ -107,18 +107,42 @@ pub fn format_model(text: &str) -> JsValue {
 #[wasm_bindgen]
 pub struct ExperimentRun {
     batch: crate::experiment::Batch,
+    text: String,
+    index: usize,
+    count: usize,
 }
 
 #[wasm_bindgen]
 impl ExperimentRun {
-    /// Reads an experiment file's text; throws `{ok: false, problems, unlisted}`.
+    /// Reads an experiment file's text and takes shard `index` (0-based) of
+    /// `count` of its runs; throws `{ok: false, problems, unlisted}`.
     #[wasm_bindgen(constructor)]
-    pub fn new(text: &str) -> Result<ExperimentRun, JsValue> {
+    pub fn new(text: &str, index: u32, count: u32) -> Result<ExperimentRun, JsValue> {
         let exp =
             crate::experiment::parse_experiment(text, None).map_err(|p| problems_value(&p))?;
+        let count = count.max(1) as usize;
+        let index = (index as usize).min(count - 1);
         Ok(ExperimentRun {
-            batch: crate::experiment::Batch::new(exp),
+            batch: crate::experiment::Batch::shard(exp, index, count),
+            text: text.to_owned(),
+            index,
+            count,
         })
+    }
+
+    /// The finished shard as a burnin-shard file's text (for `mergeShards`).
+    #[wasm_bindgen(js_name = shardJson)]
+    pub fn shard_json(&self) -> String {
+        crate::experiment::ShardFile {
+            format: crate::experiment::SHARD_FORMAT.into(),
+            version: crate::experiment::SHARD_VERSION,
+            shard: self.index + 1,
+            of: self.count,
+            experiment: self.text.clone(),
+            model: None,
+            records: self.batch.records(),
+        }
+        .to_json()
     }
 
     /// Runs up to `max` more episodes; true when everything is done.
@@ -135,15 +159,6 @@ impl ExperimentRun {
     pub fn total_episodes(&self) -> f64 {
         self.batch.total_episodes() as f64
     }
-
-    /// `{json, csv}` of the results (burnin-results or burnin-sweep v1).
-    pub fn results(&self) -> JsValue {
-        let out = self.batch.output();
-        let obj = Object::new();
-        set(&obj, "json", out.to_json());
-        set(&obj, "csv", out.to_csv());
-        obj.into()
-    }
 }
 
 /// A generated model file's text from a generator object's JSON text
@@ -158,6 +173,33 @@ pub fn generate_model(spec: &str) -> JsValue {
         .and_then(|g| g.generate("generator"))
     {
         Ok(m) => JsValue::from_str(&crate::write_model(&m)),
+        Err(p) => problems_value(&p),
+    }
+}
+
+/// Merges shard files' texts into `{json, csv}` of the results, or problems.
+#[wasm_bindgen(js_name = mergeShards)]
+pub fn merge_shards(shards: Vec<String>) -> JsValue {
+    let mut files = Vec::with_capacity(shards.len());
+    for (i, t) in shards.iter().enumerate() {
+        match serde_json::from_str::<crate::experiment::ShardFile>(t) {
+            Ok(f) => files.push(f),
+            Err(e) => {
+                return problems_value(&Problems::single(
+                    format!("shard {}", i + 1),
+                    e.to_string(),
+                ));
+            }
+        }
+    }
+    let name = |i: usize| format!("shard {}", i + 1);
+    match crate::experiment::merge(&files, &name) {
+        Ok(out) => {
+            let obj = Object::new();
+            set(&obj, "json", out.to_json());
+            set(&obj, "csv", out.to_csv());
+            obj.into()
+        }
         Err(p) => problems_value(&p),
     }
 }

@@ -1,48 +1,86 @@
-// A promise-based client for the compute worker.
-const worker = new Worker(new URL('./worker.js', import.meta.url), { type: 'module' });
-const pending = new Map();
-let nextId = 1;
+// Promise-based clients for the compute workers: one for quick requests, and
+// a pool sized to the machine for experiments, whose runs are split into
+// shards (one per worker) and merged by the core into exactly what one
+// worker would have produced.
+const QUICK = new URL('./worker.js', import.meta.url);
+/** Workers in the experiment pool: the machine's cores, at most 8. */
+export const POOL_SIZE = Math.max(1, Math.min(8, navigator.hardwareConcurrency || 2));
 
-worker.onmessage = (event) => {
-  const msg = event.data;
-  const job = pending.get(msg.id);
-  if (!job) return;
-  if (msg.type === 'progress') { job.onProgress?.(msg.done, msg.total); return; }
-  pending.delete(msg.id);
-  if (msg.type === 'done') job.resolve(msg.result);
-  else if (msg.type === 'cancelled') job.resolve({ cancelled: true, done: msg.done, total: msg.total });
-  else if (msg.problems) job.resolve(msg.problems);
-  else job.reject(new Error(msg.message));
-};
+class Client {
+  constructor() {
+    this.worker = new Worker(QUICK, { type: 'module' });
+    this.pending = new Map();
+    this.next = 1;
+    this.worker.onmessage = (event) => {
+      const msg = event.data;
+      const job = this.pending.get(msg.id);
+      if (!job) return;
+      if (msg.type === 'progress') { job.onProgress?.(msg.done, msg.total); return; }
+      this.pending.delete(msg.id);
+      if (msg.type === 'done') job.resolve(msg.result);
+      else if (msg.type === 'cancelled') job.resolve({ cancelled: true, done: msg.done, total: msg.total });
+      else if (msg.problems) job.resolve(msg.problems);
+      else job.reject(new Error(msg.message));
+    };
+    this.worker.onerror = (event) => {
+      event.preventDefault();
+      for (const job of this.pending.values()) job.reject(new Error(event.message || 'a compute worker failed'));
+      this.pending.clear();
+    };
+  }
+  request(type, payload, onProgress) {
+    const id = this.next++;
+    const promise = new Promise((resolve, reject) => {
+      this.pending.set(id, { resolve, reject, onProgress });
+      this.worker.postMessage({ type, id, ...payload });
+    });
+    return { id, promise, cancel: () => this.worker.postMessage({ type: 'cancel', target: id }) };
+  }
+}
 
-worker.onerror = (event) => {
-  for (const job of pending.values()) job.reject(new Error(event.message || 'the compute worker failed'));
-  pending.clear();
-};
+const quick = new Client();
+const pool = [];
 
-function request(type, payload, onProgress) {
-  const id = nextId++;
-  const promise = new Promise((resolve, reject) => {
-    pending.set(id, { resolve, reject, onProgress });
-    worker.postMessage({ type, id, ...payload });
-  });
-  return { id, promise };
+/** Starts the experiment pool ahead of need, each worker loading the core. */
+export function warmPool() {
+  while (pool.length < POOL_SIZE) pool.push(new Client());
+  return Promise.all(pool.map((c) => c.request('check', { text: '{}' }).promise));
 }
 
 /** Parses, validates and solves a model file's text. */
-export const solve = (text) => request('solve', { text }).promise;
+export const solve = (text) => quick.request('solve', { text }).promise;
 
 /** Checks a model file's text: its summary, or its problems. */
-export const check = (text) => request('check', { text }).promise;
+export const check = (text) => quick.request('check', { text }).promise;
 
 /** A generated model file's text (or problems) from a generator object. */
-export const generate = (spec) => request('generate', { spec: JSON.stringify(spec) }).promise;
+export const generate = (spec) => quick.request('generate', { spec: JSON.stringify(spec) }).promise;
 
 /**
- * Runs an experiment file's text. Returns {promise, cancel}; the promise
- * resolves to {json, csv}, to {cancelled: true}, or to problems {ok: false}.
+ * Runs an experiment file's text on the pool. Returns {promise, cancel,
+ * workers}; the promise resolves to {json, csv}, to {cancelled: true, done,
+ * total}, or to problems {ok: false}.
  */
-export function runExperiment(text, onProgress) {
-  const { id, promise } = request('run', { text }, onProgress);
-  return { promise, cancel: () => worker.postMessage({ type: 'cancel', target: id }) };
+export function runExperiment(text, onProgress, workers = POOL_SIZE) {
+  while (pool.length < workers) pool.push(new Client());
+  const done = new Array(workers).fill(0), total = new Array(workers).fill(0);
+  const report = () => onProgress?.(done.reduce((a, b) => a + b, 0), total.reduce((a, b) => a + b, 0));
+  const jobs = pool.slice(0, workers).map((c, i) => c.request('run', { text, shard: i, of: workers }, (d, t) => { done[i] = d; total[i] = t; report(); }));
+  const cancel = () => jobs.forEach((j) => j.cancel());
+  const promise = (async () => {
+    let results;
+    try {
+      results = await Promise.all(jobs.map((j) => j.promise));
+    } catch (err) {
+      cancel();
+      throw err;
+    }
+    const bad = results.find((r) => r && r.ok === false);
+    if (bad) return bad;
+    if (results.some((r) => r && r.cancelled)) {
+      return { cancelled: true, done: done.reduce((a, b) => a + b, 0), total: total.reduce((a, b) => a + b, 0) };
+    }
+    return quick.request('merge', { shards: results }).promise;
+  })();
+  return { promise, cancel, workers };
 }

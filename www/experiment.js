@@ -3,7 +3,7 @@
 // presentation view).
 import { runExperiment } from './compute.js';
 import { drawChart, CanvasPen, SvgPen, PALETTE, nearestIndex } from './chart.js';
-import { short, valueColour, inkOn } from './format.js';
+import { short, grouped, valueColour, inkOn } from './format.js';
 
 export const ALGORITHMS = {
   mvp: { param: 'bonus_scale', def: 1, name: 'MVP (doubling batches)' },
@@ -214,7 +214,7 @@ export class ExperimentView {
       const rate = done / Math.max(secs, 1e-3);
       $('exp-progress').max = total;
       $('exp-progress').value = done;
-      $('exp-status').textContent = `${done.toLocaleString('en')} / ${total.toLocaleString('en')} episodes · ${Math.round(rate).toLocaleString('en')} per second · about ${((total - done) / Math.max(rate, 1)).toFixed(1)} s left`;
+      $('exp-status').textContent = `${grouped(done)} / ${grouped(total)} episodes · ${grouped(rate)} per second · about ${((total - done) / Math.max(rate, 1)).toFixed(1)} s left · ${job.workers} worker${job.workers === 1 ? '' : 's'}`;
     });
     this.running = job;
     try {
@@ -222,14 +222,14 @@ export class ExperimentView {
       if (r.cancelled) {
         const ms = Math.round(performance.now() - this.cancelAt);
         $('exp-status').dataset.cancelMs = String(ms);
-        $('exp-status').textContent = `Cancelled after ${r.done.toLocaleString('en')} of ${r.total.toLocaleString('en')} episodes (stopped ${ms} ms after the click); nothing was kept from this run.`;
+        $('exp-status').textContent = `Cancelled after ${grouped(r.done)} of ${grouped(r.total)} episodes (stopped ${ms} ms after the click); nothing was kept from this run.`;
       } else if (r.ok === false) {
         $('exp-status').textContent = '';
         this.showProblems(r, file.rows);
       } else {
         const secs = (performance.now() - t0) / 1000;
         this.setResults({ text: r.json, csv: r.csv, experiment: file.text });
-        $('exp-status').textContent = `Done in ${secs.toFixed(1)} s.`;
+        $('exp-status').textContent = `Done in ${secs.toFixed(1)} s on ${job.workers} worker${job.workers === 1 ? '' : 's'}.`;
         this.hooks.changed();
         $('results').scrollIntoView({ block: 'start', behavior: 'instant' });
       }
@@ -277,7 +277,7 @@ export class ExperimentView {
     const series = [];
     if (view === 'sweep') {
       d.learners.forEach((l, i) => series.push({ label: l.label, color: PALETTE[i % PALETTE.length], x: d.values, y: l.regret_mean, lo: bands ? l.regret_lo : null, hi: bands ? l.regret_hi : null }));
-      return { title: `Regret at K = ${d.points[0].episodes.toLocaleString('en')} against ${d.parameter}`, xLabel: d.parameter, yLabel: 'regret at K', log, bars: true, series };
+      return { title: `Regret at K = ${grouped(d.points[0].episodes)} against ${d.parameter}`, xLabel: d.parameter, yLabel: 'regret at K', log, bars: true, series };
     }
     const episode = view === 'episode';
     d.learners.forEach((l, i) => {
@@ -324,7 +324,7 @@ export class ExperimentView {
     const i = nearestIndex(this.layout, px, py);
     if (i < 0) { tip.hidden = true; return; }
     const sweep = $('chart-view').value === 'sweep';
-    const lines = [`${sweep ? this.results.data.parameter : 'k'} = ${this.layout.xs[i].toLocaleString('en')}`];
+    const lines = [`${sweep ? this.results.data.parameter : 'k'} = ${sweep ? this.layout.xs[i] : grouped(this.layout.xs[i])}`];
     for (const s of this.layout.series) {
       lines.push(`${s.label}: ${short(s.y[i])}${s.lo && s.hi ? ` [${short(s.lo[i])}, ${short(s.hi[i])}]` : ''}`);
     }
@@ -357,11 +357,11 @@ export class ExperimentView {
         const updates = l.model_updates.reduce((a, b) => a + b, 0) / l.model_updates.length;
         const tr = el('tr');
         tr.append(el('th', l.label), el('td', short(l.regret_mean[last]), { 'data-value': String(l.regret_mean[last]) }), el('td', `[${short(l.regret_lo[last])}, ${short(l.regret_hi[last])}]`),
-          el('td', l.slope === null ? '—' : l.slope.toFixed(3)), el('td', l.burn_in === null ? 'not reached' : l.burn_in.toLocaleString('en')),
+          el('td', l.slope === null ? '—' : l.slope.toFixed(3)), el('td', l.burn_in === null ? 'not reached' : grouped(l.burn_in)),
           el('td', updates.toFixed(1)));
         for (const e of l.episodes_to_eps) {
           const got = e.episodes.filter((x) => x !== null).sort((a, b) => a - b);
-          const median = got.length === e.episodes.length ? `median ${got[Math.floor(got.length / 2)].toLocaleString('en')}` : `not reached in ${e.episodes.length - got.length} of ${e.episodes.length} seeds`;
+          const median = got.length === e.episodes.length ? `median ${grouped(got[Math.floor(got.length / 2)])}` : `not reached in ${e.episodes.length - got.length} of ${e.episodes.length} seeds`;
           tr.append(el('td', median));
         }
         body.append(tr);
@@ -391,7 +391,7 @@ export class ExperimentView {
       for (let h = 0; h < Math.min(H, 60); h++) {
         const x = l.visits[h][s];
         const t = hi > 0 ? x / hi : 0;
-        const td = el('td', x >= 100 ? Math.round(x).toLocaleString('en') : x.toFixed(1));
+        const td = el('td', x >= 100 ? grouped(x) : x.toFixed(1));
         td.style.background = valueColour(t);
         td.style.color = inkOn(t);
         tr.append(td);

@@ -31,3 +31,19 @@ export function short(x) {
   const s = a >= 1e6 ? x.toExponential(3) : a >= 100 ? x.toFixed(1) : a >= 1 ? x.toFixed(3) : x.toPrecision(3);
   return s.replace('-', '−');
 }
+
+/**
+ * A whole number with thousands separators ("12,345"). Not toLocaleString:
+ * its first call loads locale data and blocks the page for tens of ms.
+ */
+export function grouped(n) {
+  const s = String(Math.round(n));
+  return s.replace(/\B(?=(\d{3})+(?!\d))/g, ',');
+}
+
+/** A date and time as "2026-12-01 22:16". */
+export function stamp(iso) {
+  const d = new Date(iso);
+  const p = (x) => String(x).padStart(2, '0');
+  return `${d.getFullYear()}-${p(d.getMonth() + 1)}-${p(d.getDate())} ${p(d.getHours())}:${p(d.getMinutes())}`;
+}

@@ -1,12 +1,13 @@
 // The page: chooses a model, asks the worker to solve it, and wires the
 // views, files, share links and the library together.
-import { solve, generate } from './compute.js';
+import { solve, generate, warmPool } from './compute.js';
 import { renderFacts, renderProblems, renderOptimal, renderValues, renderQ } from './views.js';
 import { ExperimentView, ALGORITHMS, DEFAULT_SETUP } from './experiment.js';
 import { initGeneratorForm } from './generator-form.js';
 import { Editor } from './editor.js';
 import { GraphView } from './graph.js';
 import * as store from './store.js';
+import { stamp } from './format.js';
 import * as share from './share.js';
 
 const $ = (id) => document.getElementById(id);
@@ -209,7 +210,7 @@ function renderLibrary() {
     name.textContent = e.name;
     const meta = document.createElement('span');
     meta.className = 'entry-meta';
-    meta.textContent = `${e.kind === 'experiment' ? 'experiment with results' : 'model'} · ${new Date(e.saved_at).toLocaleString('en')}`;
+    meta.textContent = `${e.kind === 'experiment' ? 'experiment with results' : 'model'} · ${stamp(e.saved_at)}`;
     const btn = (text, fn, cls) => {
       const b = document.createElement('button');
       b.type = 'button';
@@ -307,7 +308,7 @@ const graph = new GraphView((positions) => {
 const experiment = new ExperimentView({
   model: () => ({ text: current?.text, name: current?.name || 'model', generator: current?.generator, states: current?.solution.states }),
   changed: saveWork,
-  saveResults: (expText, resultsText) => saveToLibrary({ kind: 'experiment', name: `${current.name} — ${new Date().toLocaleString('en')}`, model: current.text, experiment: expText, results: resultsText }),
+  saveResults: (expText, resultsText) => saveToLibrary({ kind: 'experiment', name: `${current.name} — ${stamp(new Date().toISOString())}`, model: current.text, experiment: expText, results: resultsText }),
 });
 
 async function start() {
@@ -365,4 +366,9 @@ function fail(err) {
   console.error(err);
 }
 
-start().catch(fail);
+start().catch(fail).finally(() => {
+  // Start the experiment workers once the page has settled, so that a first
+  // run does not pay for creating them.
+  const later = window.requestIdleCallback || ((f) => setTimeout(f, 200));
+  later(() => warmPool().catch(fail));
+});

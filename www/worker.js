@@ -3,10 +3,11 @@
 //   solve {text}       → done {result}            (a model file's solution or problems)
 //   check {text}       → done {result}            (a model's summary or problems)
 //   generate {spec}    → done {result}            (a model file's text or problems)
-//   run {text}         → progress {done, total}…, then done {result: {json, csv}},
+//   run {text, shard, of} → progress {done, total}…, then done {result: shard file text},
 //                        or error {problems} for a bad experiment
+//   merge {shards}     → done {result: {json, csv}} or problems
 //   cancel {id}        → the run with that id stops and answers cancelled
-import init, { solveModel, checkModel, generateModel, ExperimentRun } from './pkg/burnin.js';
+import init, { solveModel, checkModel, generateModel, mergeShards, ExperimentRun } from './pkg/burnin.js';
 
 const ready = init();
 const cancelled = new Set();
@@ -15,10 +16,10 @@ const SLICE_MS = 20;
 
 const pause = () => new Promise((resolve) => setTimeout(resolve, 0));
 
-async function run(id, text) {
+async function run(id, text, shard, of) {
   let job;
   try {
-    job = new ExperimentRun(text);
+    job = new ExperimentRun(text, shard, of);
   } catch (problems) {
     self.postMessage({ type: 'error', id, problems });
     return;
@@ -40,7 +41,7 @@ async function run(id, text) {
       if (finished) break;
       await pause();
     }
-    self.postMessage({ type: 'done', id, result: job.results() });
+    self.postMessage({ type: 'done', id, result: job.shardJson() });
   } finally {
     job.free();
   }
@@ -60,7 +61,9 @@ self.onmessage = async (event) => {
     } else if (type === 'generate') {
       self.postMessage({ type: 'done', id, result: generateModel(event.data.spec) });
     } else if (type === 'run') {
-      await run(id, event.data.text);
+      await run(id, event.data.text, event.data.shard, event.data.of);
+    } else if (type === 'merge') {
+      self.postMessage({ type: 'done', id, result: mergeShards(event.data.shards) });
     } else {
       self.postMessage({ type: 'error', id, message: `unknown request ${type}` });
     }

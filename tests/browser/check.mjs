@@ -248,6 +248,22 @@ await check('a model file saved from the page opens again the same', async (page
   assertEqual((await shownValue(page, await demoName('lantern-cave.json'))).data, v.data, 'same optimal value');
 });
 
+await check('the main thread never blocks for more than 50 ms during a run', async (page) => {
+  await openPage(page);
+  await page.evaluate(() => {
+    window.__long = [];
+    new PerformanceObserver((list) => { for (const e of list.getEntries()) window.__long.push(e.duration); }).observe({ type: 'longtask', buffered: false });
+  });
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '20000');
+  await page.evaluate(() => { window.__long = []; });
+  await runAndWait(page);
+  const long = await page.evaluate(() => window.__long);
+  const worst = Math.max(0, ...long);
+  console.log(`     ${long.length} long tasks, the longest ${worst.toFixed(0)} ms`);
+  assert(worst <= 50, `the main thread blocked for ${worst} ms`);
+});
+
 await check('a long run cancels within a quarter second', async (page) => {
   await openPage(page);
   await page.click('#tab-experiment');
