@@ -5,6 +5,7 @@
 //! clock, threads or an unseeded random generator; every random draw comes
 //! from a generator passed in by the caller.
 
+pub mod bench;
 pub mod experiment;
 pub mod generate;
 pub mod lax;

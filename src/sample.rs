@@ -158,6 +158,10 @@ fn normal<R: Rng>(rng: &mut R) -> f64 {
 /// A Gamma(shape, 1) draw (Marsaglia & Tsang 2000; for shape < 1 the
 /// boost Gamma(shape + 1)·U^(1/shape) from the same paper).
 pub fn gamma<R: Rng>(rng: &mut R, shape: f64) -> f64 {
+    if shape == 1.0 {
+        // Gamma(1, 1) is the standard exponential: −ln U (U uniform on (0, 1]).
+        return -libm::log(1.0 - rng.random::<f64>());
+    }
     if shape < 1.0 {
         let u: f64 = rng.random();
         return gamma(rng, shape + 1.0) * libm::pow(u, 1.0 / shape);

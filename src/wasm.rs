@@ -203,3 +203,48 @@ pub fn merge_shards(shards: Vec<String>) -> JsValue {
         Err(p) => problems_value(&p),
     }
 }
+
+/// `performance.now()` in seconds, from the worker's global scope.
+fn now_seconds() -> f64 {
+    let perf = Reflect::get(&js_sys::global(), &JsValue::from_str("performance"))
+        .expect("a performance object");
+    let now = Reflect::get(&perf, &JsValue::from_str("now")).expect("performance.now");
+    let f: js_sys::Function = now.into();
+    f.call0(&perf)
+        .expect("performance.now()")
+        .as_f64()
+        .unwrap_or(0.0)
+        / 1000.0
+}
+
+/// Runs the reference workloads (see `src/bench.rs`) and returns their
+/// figures as JSON, with the wasm heap size at the end (its peak: wasm
+/// memory never shrinks).
+#[wasm_bindgen(js_name = benchFigures)]
+pub fn bench_figures(quick: bool) -> String {
+    let (k, max_exp, reps) = if quick {
+        (10_000, 5, 2)
+    } else {
+        (100_000, 6, 5)
+    };
+    let mut figures = crate::bench::solve_figures(&now_seconds, reps);
+    let heap_after_solve = wasm_bindgen::memory()
+        .unchecked_into::<js_sys::WebAssembly::Memory>()
+        .buffer()
+        .unchecked_into::<js_sys::ArrayBuffer>()
+        .byte_length();
+    figures.extend(crate::bench::learn_figures(&now_seconds, k, None));
+    figures.extend(crate::bench::replan_figures(&now_seconds, max_exp));
+    let heap = wasm_bindgen::memory()
+        .unchecked_into::<js_sys::WebAssembly::Memory>()
+        .buffer()
+        .unchecked_into::<js_sys::ArrayBuffer>()
+        .byte_length();
+    serde_json::to_string_pretty(&serde_json::json!({
+        "target": "wasm",
+        "figures": figures,
+        "peak_memory_bytes": heap,
+        "peak_memory_after_solve_bytes": heap_after_solve,
+    }))
+    .expect("plain values")
+}

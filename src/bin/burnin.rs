@@ -56,6 +56,15 @@ enum Command {
         #[arg(long, value_name = "I/N")]
         shard: Option<String>,
     },
+    /// Time the reference workloads (solver, learners, MVP replanning) on this machine.
+    Bench {
+        /// Smaller workloads (K = 10 000, replanning to 10⁵) for a quick look.
+        #[arg(long)]
+        quick: bool,
+        /// Only this learner's learning workload (an algorithm key).
+        #[arg(long, value_name = "ALGORITHM")]
+        only: Option<String>,
+    },
     /// Merge the shard files of one experiment into its results.
     Merge {
         /// Shard files from `burnin run --shard I/N`, all N of them.
@@ -226,6 +235,7 @@ fn main() -> ExitCode {
             shard,
         } => run(&file, json, csv.as_deref(), threads, shard.as_deref()),
         Command::Merge { files, json, csv } => merge(&files, json, csv.as_deref()),
+        Command::Bench { quick, only } => bench(quick, only.as_deref()),
         Command::Tidy { file } => load(&file).and_then(|m| emit(&burnin::write_model(&m))),
         Command::Generate { kind, seed, output } => generate(kind, seed, output.as_deref()),
     };
@@ -722,4 +732,39 @@ fn results_table(r: &burnin::experiment::Results) -> String {
         "\nslope: least squares of ln regret on ln k over the last decade; burn-in: first checkpoint after which the local slope stays ≤ 0.6."
     );
     o
+}
+
+/// Peak resident memory of this process (Linux), in bytes.
+fn peak_rss() -> Option<u64> {
+    let status = std::fs::read_to_string("/proc/self/status").ok()?;
+    let line = status.lines().find(|l| l.starts_with("VmHWM:"))?;
+    let kb: u64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kb * 1024)
+}
+
+fn bench(quick: bool, only: Option<&str>) -> Result<(), Failure> {
+    use burnin::bench;
+    let start = std::time::Instant::now();
+    let now = move || start.elapsed().as_secs_f64();
+    let (k, max_exp, reps) = if quick {
+        (10_000, 5, 2)
+    } else {
+        (100_000, 6, 5)
+    };
+    let mut figures = Vec::new();
+    if only.is_none() {
+        figures.extend(bench::solve_figures(&now, reps));
+    }
+    let solve_rss = peak_rss();
+    figures.extend(bench::learn_figures(&now, k, only));
+    if only.is_none() {
+        figures.extend(bench::replan_figures(&now, max_exp));
+    }
+    let out = serde_json::json!({
+        "target": "native",
+        "figures": figures,
+        "peak_memory_bytes": peak_rss(),
+        "peak_memory_after_solve_bytes": solve_rss,
+    });
+    emit(&(serde_json::to_string_pretty(&out).expect("plain values") + "\n"))
 }

@@ -25,10 +25,11 @@ pub use qlearn::QUcbHoeffding;
 pub use ucbvi::Ucbvi;
 
 use rand::Rng;
-use rand_chacha::ChaCha8Rng;
 
-/// The generator every learner draws from.
-pub type LearnRng = ChaCha8Rng;
+/// The generator every run (learner and simulator) draws from: Xoshiro256++,
+/// seeded through SplitMix64 by `seed_from_u64` (Blackman & Vigna, "Scrambled
+/// Linear Pseudorandom Number Generators", ACM TOMS 47(4), 2021).
+pub type LearnRng = rand_xoshiro::Xoshiro256PlusPlus;
 
 /// What a learner is told about its problem.
 #[derive(Debug, Clone, Copy, PartialEq)]

@@ -6,11 +6,14 @@
 //! - `cargo xtask test`: formatting, clippy, every cargo test, the wasm
 //!   build, and the headless-Chromium checks of the page.
 //! - `cargo xtask wasm`: only the wasm build.
+//! - `cargo xtask bench [--quick]`: the reference workloads natively, in
+//!   headless Chromium (wasm) and for the numpy peer; writes BENCHMARKS.md.
 //!
 //! Missing tools are installed when possible: the wasm32 target (rustup), the
 //! wasm-bindgen CLI pinned to the crate's version (cargo install), Chromium
 //! (apt-get, as root), and the browser test's npm packages (npm ci).
 
+mod bench;
 mod serve;
 
 use std::path::{Path, PathBuf};
@@ -20,7 +23,7 @@ use std::process::{Command, ExitCode};
 const WASM_BINDGEN_VERSION: &str = "0.2.130";
 const WASM_TARGET: &str = "wasm32-unknown-unknown";
 
-type Result<T> = std::result::Result<T, String>;
+pub(crate) type Result<T> = std::result::Result<T, String>;
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
@@ -28,8 +31,9 @@ fn main() -> ExitCode {
         Some("serve") => serve_cmd(&args[1..]),
         Some("test") => test_cmd(),
         Some("wasm") => build_wasm().map(|_| ()),
+        Some("bench") => bench::bench(args.iter().any(|a| a == "--quick")),
         _ => {
-            eprintln!("usage: cargo xtask serve [--port N] | test | wasm");
+            eprintln!("usage: cargo xtask serve [--port N] | test | wasm | bench [--quick]");
             return ExitCode::from(2);
         }
     };
@@ -42,19 +46,19 @@ fn main() -> ExitCode {
     }
 }
 
-fn root() -> PathBuf {
+pub(crate) fn root() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
         .parent()
         .expect("xtask lives in the repository")
         .to_path_buf()
 }
 
-fn step(title: &str) {
+pub(crate) fn step(title: &str) {
     eprintln!("\n== {title}");
 }
 
 /// Runs a command in the repository root, failing on a non-zero exit.
-fn run(cmd: &mut Command) -> Result<()> {
+pub(crate) fn run(cmd: &mut Command) -> Result<()> {
     run_in(&root(), cmd)
 }
 
@@ -72,14 +76,14 @@ fn run_in(dir: &Path, cmd: &mut Command) -> Result<()> {
     }
 }
 
-fn output(cmd: &mut Command) -> Option<String> {
+pub(crate) fn output(cmd: &mut Command) -> Option<String> {
     let out = cmd.current_dir(root()).output().ok()?;
     out.status
         .success()
         .then(|| String::from_utf8_lossy(&out.stdout).into_owned())
 }
 
-fn cargo() -> Command {
+pub(crate) fn cargo() -> Command {
     Command::new(std::env::var("CARGO").unwrap_or_else(|_| "cargo".into()))
 }
 
@@ -107,7 +111,7 @@ fn ensure_wasm_tools() -> Result<()> {
 
 /// Builds the core for wasm32 and generates the JS glue in `www/pkg`; copies
 /// the demo models into `www/demo-models`. Returns the `www` folder.
-fn build_wasm() -> Result<PathBuf> {
+pub(crate) fn build_wasm() -> Result<PathBuf> {
     ensure_wasm_tools()?;
     step("building the wasm core");
     run(cargo().args(["build", "--lib", "--release", "--target", WASM_TARGET]))?;
@@ -164,7 +168,7 @@ fn test_cmd() -> Result<()> {
     browser_checks(www)
 }
 
-fn chromium() -> Result<PathBuf> {
+pub(crate) fn chromium() -> Result<PathBuf> {
     if let Ok(p) = std::env::var("BURNIN_CHROMIUM") {
         return Ok(PathBuf::from(p));
     }
@@ -186,8 +190,8 @@ fn chromium() -> Result<PathBuf> {
     Ok(p)
 }
 
-fn browser_checks(www: PathBuf) -> Result<()> {
-    let chrome = chromium()?;
+/// Installs the browser test's npm packages when missing; returns their folder.
+pub(crate) fn browser_dir() -> Result<PathBuf> {
     let dir = root().join("tests/browser");
     if !dir.join("node_modules/playwright-core").exists() {
         step("installing the browser test's npm packages (npm ci)");
@@ -196,6 +200,12 @@ fn browser_checks(www: PathBuf) -> Result<()> {
             Command::new("npm").args(["ci", "--no-audit", "--no-fund"]),
         )?;
     }
+    Ok(dir)
+}
+
+fn browser_checks(www: PathBuf) -> Result<()> {
+    let chrome = chromium()?;
+    let dir = browser_dir()?;
     // Expected values come from the CLI, on the same files the page loads.
     run(cargo().args(["build", "--bin", "burnin"]))?;
     let cli = root().join("target/debug/burnin");

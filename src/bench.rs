@@ -1,0 +1,189 @@
+//! Reference workloads for the benchmark command, the same natively and in
+//! wasm. The front end passes the clock (`now`, seconds); the core never
+//! reads one itself.
+//!
+//! Workloads (issue "Speed and scale"):
+//! - solve: a random sparse model with S = 2000, A = 8, H = 50, 10 successors,
+//!   a fresh table per step (8 million entries), by backward induction;
+//!   beside it a plain pass over arrays of the same size as the solver reads
+//!   (the machine's streaming rate for this layout);
+//! - learn: each learner on a random model with S = 20, A = 4, H = 20 and 5
+//!   successors, one seed, K episodes (100 000 by default);
+//! - replan: MVP's model updates and time at K = 10³ … 10⁶.
+
+use serde::Serialize;
+
+use crate::experiment::{Context, Experiment, LearnerSpec, run_all};
+use crate::generate::Garnet;
+use crate::learn::Algorithm;
+use crate::solve::solve;
+
+/// One measured figure.
+#[derive(Debug, Clone, Serialize)]
+pub struct Figure {
+    pub name: String,
+    pub unit: String,
+    /// Best (highest rate) of the repetitions.
+    pub best: f64,
+    /// Median of the repetitions.
+    pub median: f64,
+    pub repetitions: usize,
+    /// A checksum of what was computed (equal natively and in wasm), or for
+    /// the replanning figures the seconds taken.
+    pub note: String,
+}
+
+fn figure(name: &str, unit: &str, mut rates: Vec<f64>, note: String) -> Figure {
+    rates.sort_by(f64::total_cmp);
+    Figure {
+        name: name.into(),
+        unit: unit.into(),
+        best: *rates.last().unwrap(),
+        median: rates[rates.len() / 2],
+        repetitions: rates.len(),
+        note,
+    }
+}
+
+/// The solver workload's model.
+pub fn solve_model() -> crate::Mdp {
+    Garnet {
+        states: 2000,
+        actions: 8,
+        successors: 10,
+        horizon: 50,
+        time_dependent: true,
+        bernoulli: true,
+    }
+    .generate(1)
+    .expect("valid parameters")
+}
+
+/// Solver throughput (entries/s) and the streaming rate (bytes/s) of a plain
+/// pass over arrays of the same size and types as the solver reads.
+pub fn solve_figures(now: &dyn Fn() -> f64, reps: usize) -> Vec<Figure> {
+    let m = solve_model();
+    let entries = m.entries() as f64;
+    let mut rates = Vec::new();
+    let mut value = 0.0;
+    for _ in 0..reps {
+        let t = now();
+        value = solve(&m).optimal_value;
+        rates.push(entries / (now() - t));
+    }
+    let solve_fig = figure(
+        "solve S=2000 A=8 H=50 b=10",
+        "entries/s",
+        rates,
+        format!("{value:.12e}"),
+    );
+    // The pass reads every next index (u32) and probability (f64) once, as
+    // the solver does, and sums them.
+    let mut rates = Vec::new();
+    let mut sum = 0.0;
+    for _ in 0..reps {
+        let t = now();
+        let mut acc = 0.0;
+        let mut idx = 0u64;
+        for st in m.step_tables() {
+            let (_, next, prob) = st.csr();
+            for (&n, &p) in next.iter().zip(prob) {
+                acc += p;
+                idx = idx.wrapping_add(n as u64);
+            }
+        }
+        sum = acc + idx as f64;
+        rates.push(entries * 12.0 / (now() - t));
+    }
+    let stream = figure(
+        "plain pass over the same arrays",
+        "bytes/s",
+        rates,
+        format!("{sum:.6e}"),
+    );
+    vec![solve_fig, stream]
+}
+
+/// The learning workload's experiment: one learner, one seed, K episodes.
+pub fn learn_experiment(algorithm: Algorithm, episodes: u64) -> Experiment {
+    let model = Garnet {
+        states: 20,
+        actions: 4,
+        successors: 5,
+        horizon: 20,
+        time_dependent: false,
+        bernoulli: true,
+    }
+    .generate(1)
+    .expect("valid parameters");
+    Experiment {
+        name: "bench".into(),
+        model,
+        generator: None,
+        sweep: None,
+        eps_default: true,
+        eps_targets: vec![2.0, 1.0],
+        episodes,
+        seeds: 1,
+        seed: 1,
+        delta: 0.05,
+        checkpoints: 64,
+        learners: vec![LearnerSpec {
+            label: algorithm.key().into(),
+            algorithm,
+        }],
+    }
+}
+
+/// The learners benchmarked, with the bonus scales of the demo experiment.
+pub fn bench_learners() -> Vec<Algorithm> {
+    vec![
+        Algorithm::Mvp { bonus_scale: 1.0 },
+        Algorithm::UcbviHoeffding { bonus_scale: 1.0 },
+        Algorithm::UcbviBernstein { bonus_scale: 1.0 },
+        Algorithm::QUcbHoeffding { bonus_scale: 1.0 },
+        Algorithm::Psrl { prior: 1.0 },
+        Algorithm::EpsGreedy { epsilon: 0.1 },
+        Algorithm::Uniform,
+    ]
+}
+
+/// Episodes per second of each learner on the learning workload.
+pub fn learn_figures(now: &dyn Fn() -> f64, episodes: u64, only: Option<&str>) -> Vec<Figure> {
+    bench_learners()
+        .into_iter()
+        .filter(|a| only.is_none_or(|k| a.key() == k))
+        .map(|a| {
+            let ctx = Context::new(learn_experiment(a.clone(), episodes));
+            let t = now();
+            let records = run_all(&ctx);
+            let secs = now() - t;
+            let r = &records[0];
+            figure(
+                &format!("learn {} S=20 A=4 H=20 K={episodes}", a.key()),
+                "episodes/s",
+                vec![episodes as f64 / secs],
+                format!("{:.12e}", r.regret.last().unwrap()),
+            )
+        })
+        .collect()
+}
+
+/// MVP's model updates and seconds at K = 10³ … 10^max_exp on the learning workload.
+pub fn replan_figures(now: &dyn Fn() -> f64, max_exp: u32) -> Vec<Figure> {
+    (3..=max_exp)
+        .map(|e| {
+            let k = 10u64.pow(e);
+            let ctx = Context::new(learn_experiment(Algorithm::Mvp { bonus_scale: 1.0 }, k));
+            let t = now();
+            let records = run_all(&ctx);
+            let secs = now() - t;
+            figure(
+                &format!("mvp replans at K={k}"),
+                "model updates",
+                vec![records[0].model_updates as f64],
+                format!("{secs:.3} s"),
+            )
+        })
+        .collect()
+}

@@ -1,0 +1,313 @@
+//! `cargo xtask bench`: the reference workloads of `src/bench.rs` natively
+//! (`burnin bench`) and in headless Chromium (`www/bench.html`), the numpy
+//! peer (`benches/numpy_ucbvi.py`), and thread scaling; writes BENCHMARKS.md
+//! with the date, the machine and every target's status.
+
+use std::fmt::Write as _;
+use std::process::Command;
+use std::time::Instant;
+
+use crate::{Result, browser_dir, build_wasm, cargo, chromium, output, root, step};
+
+/// Finds a figure by the start of its name in `burnin bench` JSON.
+fn figure(json: &str, name: &str) -> Option<(f64, f64, String)> {
+    let i = json.find(&format!("\"name\": \"{name}"))?;
+    let obj_start = json[..i].rfind('{')?;
+    let obj = &json[obj_start..obj_start + json[obj_start..].find('}')?];
+    let num = |key: &str| -> Option<f64> {
+        let k = obj.find(&format!("\"{key}\": "))? + key.len() + 4;
+        obj[k..].split([',', '\n']).next()?.trim().parse().ok()
+    };
+    let note = obj
+        .find("\"note\": \"")
+        .map(|k| obj[k + 9..].split('"').next().unwrap_or("").to_owned())
+        .unwrap_or_default();
+    Some((num("best")?, num("median")?, note))
+}
+
+fn top_number(json: &str, key: &str) -> Option<f64> {
+    let k = json.find(&format!("\"{key}\": "))? + key.len() + 4;
+    json[k..].split([',', '\n']).next()?.trim().parse().ok()
+}
+
+fn mark(ok: bool) -> &'static str {
+    if ok { "met" } else { "**not met**" }
+}
+
+fn timed(cmd: &mut Command) -> Result<f64> {
+    let t = Instant::now();
+    let out = cmd
+        .current_dir(root())
+        .output()
+        .map_err(|e| e.to_string())?;
+    if !out.status.success() {
+        return Err(format!(
+            "{cmd:?} failed: {}",
+            String::from_utf8_lossy(&out.stderr)
+        ));
+    }
+    Ok(t.elapsed().as_secs_f64())
+}
+
+pub fn bench(quick: bool) -> Result<()> {
+    let k: u64 = if quick { 10_000 } else { 100_000 };
+    step("building the native binary (release)");
+    crate::run(cargo().args(["build", "--release", "--bin", "burnin"]))?;
+    let cli = root().join("target/release/burnin");
+    let www = build_wasm()?;
+
+    step("native workloads");
+    let mut args = vec!["bench"];
+    if quick {
+        args.push("--quick");
+    }
+    let native = output(Command::new(&cli).args(&args)).ok_or("burnin bench failed")?;
+
+    step("wasm workloads in headless Chromium");
+    let chrome = chromium()?;
+    let dir = browser_dir()?;
+    let server = crate::serve::Server::start(www, 0).map_err(|e| format!("cannot listen: {e}"))?;
+    let mut node = Command::new("node");
+    node.arg(dir.join("bench.mjs"))
+        .env("BURNIN_URL", server.url())
+        .env("BURNIN_CHROMIUM", &chrome);
+    if quick {
+        node.env("BURNIN_QUICK", "1");
+    }
+    let wasm = output(&mut node).ok_or("the browser benchmark failed")?;
+
+    step("numpy peer");
+    if output(Command::new("python3").args(["-c", "import numpy"])).is_none() {
+        crate::run(Command::new("python3").args(["-m", "pip", "install", "--quiet", "numpy"]))?;
+    }
+    let tmp = std::env::temp_dir().join(format!("burnin-bench-{}", std::process::id()));
+    std::fs::create_dir_all(&tmp).map_err(|e| e.to_string())?;
+    let model = tmp.join("learn-model.json");
+    let text = output(Command::new(&cli).args([
+        "generate",
+        "random",
+        "--states",
+        "20",
+        "--actions",
+        "4",
+        "--successors",
+        "5",
+        "--horizon",
+        "20",
+        "--seed",
+        "1",
+    ]))
+    .ok_or("burnin generate failed")?;
+    std::fs::write(&model, text).map_err(|e| e.to_string())?;
+    let numpy = output(
+        Command::new("python3")
+            .arg(root().join("benches/numpy_ucbvi.py"))
+            .arg(&model)
+            .arg(k.to_string()),
+    )
+    .ok_or("the numpy peer failed")?;
+    let numpy_rate = top_number(&numpy, "episodes_per_second").ok_or("no rate from numpy")?;
+    let numpy_version = numpy
+        .split("\"numpy\": \"")
+        .nth(1)
+        .and_then(|s| s.split('"').next())
+        .unwrap_or("?")
+        .to_owned();
+
+    step("thread scaling (whole-process timings)");
+    let exp = tmp.join("threads.json");
+    std::fs::write(
+        &exp,
+        format!(
+            r#"{{"format": "burnin-experiment", "version": 1, "model_path": "learn-model.json",
+                "episodes": {}, "seeds": 8, "learners": [{{"algorithm": "ucbvi-hoeffding"}}]}}"#,
+            k / 5
+        ),
+    )
+    .map_err(|e| e.to_string())?;
+    let mut one = Vec::new();
+    let mut two = Vec::new();
+    for _ in 0..3 {
+        one.push(timed(
+            Command::new(&cli)
+                .args(["run", "--json", "--threads", "1"])
+                .arg(&exp),
+        )?);
+        two.push(timed(
+            Command::new(&cli)
+                .args(["run", "--json", "--threads", "2"])
+                .arg(&exp),
+        )?);
+    }
+    let median = |mut v: Vec<f64>| {
+        v.sort_by(f64::total_cmp);
+        v[v.len() / 2]
+    };
+    let (t1, t2) = (median(one), median(two));
+    let _ = std::fs::remove_dir_all(&tmp);
+
+    step("writing BENCHMARKS.md");
+    let date = output(Command::new("date").args(["-u", "+%Y-%m-%d %H:%M UTC"])).unwrap_or_default();
+    let cpu = std::fs::read_to_string("/proc/cpuinfo")
+        .ok()
+        .and_then(|c| {
+            c.lines()
+                .find(|l| l.starts_with("model name"))
+                .map(|l| l.split(':').nth(1).unwrap_or("").trim().to_owned())
+        })
+        .unwrap_or_else(|| "unknown".into());
+    let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
+    let mem = std::fs::read_to_string("/proc/meminfo")
+        .ok()
+        .and_then(|m| {
+            m.lines().next().map(|l| {
+                l.split_whitespace()
+                    .nth(1)
+                    .unwrap_or("0")
+                    .parse::<f64>()
+                    .unwrap_or(0.0)
+                    / 1048576.0
+            })
+        })
+        .unwrap_or(0.0);
+    let rustc = output(Command::new("rustc").arg("--version")).unwrap_or_default();
+    let chrome_v = output(Command::new(&chrome).arg("--version")).unwrap_or_default();
+
+    let mut md = String::new();
+    let _ = writeln!(md, "# Benchmarks\n");
+    let _ = writeln!(
+        md,
+        "Written by `cargo xtask bench{}` on {} — {cpu}, {cores} cores, {mem:.0} GiB; {}; {}; numpy {numpy_version}.\n",
+        if quick { " --quick" } else { "" },
+        date.trim(),
+        rustc.trim(),
+        chrome_v.trim()
+    );
+    let _ = writeln!(
+        md,
+        "Rates are the best of the repetitions (the median in brackets where there were several); the workloads are defined in `src/bench.rs`. Checksums equal in both columns mean native and wasm computed the same bits.\n"
+    );
+    let _ = writeln!(
+        md,
+        "## Solver\n\n| workload | native | wasm (Chromium) |\n|---|---|---|"
+    );
+    let sol = |j: &str, n: &str| {
+        figure(j, n).map_or("?".into(), |f| format!("{:.3e} ({:.3e})", f.0, f.1))
+    };
+    let _ = writeln!(
+        md,
+        "| solve S=2000 A=8 H=50 b=10, 8 000 000 entries (entries/s) | {} | {} |",
+        sol(&native, "solve"),
+        sol(&wasm, "solve")
+    );
+    let _ = writeln!(
+        md,
+        "| plain pass over the same arrays (bytes/s) | {} | {} |",
+        sol(&native, "plain"),
+        sol(&wasm, "plain")
+    );
+    let mut targets = Vec::new();
+    for (label, j) in [("native", &native), ("wasm", &wasm)] {
+        if let (Some(s), Some(p)) = (figure(j, "solve"), figure(j, "plain")) {
+            let frac = s.0 * 12.0 / p.0;
+            targets.push(format!(
+                "| solver at ≥ 50% of the streaming rate ({label}) | {:.0}% | {} |",
+                frac * 100.0,
+                mark(frac >= 0.5)
+            ));
+        }
+    }
+    let _ = writeln!(
+        md,
+        "\n## Learning (S=20, A=4, H=20, 5 successors, one seed, K={k}; episodes/s)\n\n| learner | native | wasm | native/wasm | checksum (native = wasm) |\n|---|---|---|---|---|"
+    );
+    for key in [
+        "mvp",
+        "ucbvi-hoeffding",
+        "ucbvi-bernstein",
+        "q-ucb-hoeffding",
+        "psrl",
+        "eps-greedy",
+        "uniform",
+    ] {
+        let name = format!("learn {key} ");
+        if let (Some(n), Some(w)) = (figure(&native, &name), figure(&wasm, &name)) {
+            let ratio = n.0 / w.0;
+            let _ = writeln!(
+                md,
+                "| {key} | {:.0} | {:.0} | {ratio:.2} | {} |",
+                n.0,
+                w.0,
+                if n.2 == w.2 { "equal" } else { "**differs**" }
+            );
+            targets.push(format!(
+                "| wasm within 1.5× of native: {key} | {ratio:.2}× | {} |",
+                mark(ratio <= 1.5)
+            ));
+        }
+    }
+    if let (Some(n), Some(w)) = (
+        figure(&native, "learn ucbvi-hoeffding"),
+        figure(&wasm, "learn ucbvi-hoeffding"),
+    ) {
+        let _ = writeln!(
+            md,
+            "\n## Against a vectorised numpy UCBVI (same model, K = {k}, same exact regret accounting)\n\n| | episodes/s | × numpy |\n|---|---|---|\n| numpy peer (`benches/numpy_ucbvi.py`) | {numpy_rate:.0} | 1 |\n| Burnin native | {:.0} | {:.1} |\n| Burnin wasm | {:.0} | {:.1} |",
+            n.0,
+            n.0 / numpy_rate,
+            w.0,
+            w.0 / numpy_rate
+        );
+        targets.push(format!(
+            "| ≥ 100× numpy natively | {:.1}× | {} |",
+            n.0 / numpy_rate,
+            mark(n.0 / numpy_rate >= 100.0)
+        ));
+        targets.push(format!(
+            "| ≥ 70× numpy in the browser | {:.1}× | {} |",
+            w.0 / numpy_rate,
+            mark(w.0 / numpy_rate >= 70.0)
+        ));
+    }
+    let _ = writeln!(
+        md,
+        "\n## MVP replanning\n\n| K | model updates | seconds (native) | seconds (wasm) |\n|---|---|---|---|"
+    );
+    for e in 3..=(if quick { 5 } else { 6 }) {
+        let name = format!("mvp replans at K={}", 10u64.pow(e));
+        if let (Some(n), Some(w)) = (figure(&native, &name), figure(&wasm, &name)) {
+            let _ = writeln!(md, "| 10^{e} | {:.0} | {} | {} |", n.0, n.2, w.2);
+        }
+    }
+    let speedup = t1 / t2;
+    let _ = writeln!(
+        md,
+        "\n## Parallel seeds (CLI, 8 seeds of ucbvi-hoeffding, K={}; whole-process medians of 3)\n\n| threads | seconds | speed-up |\n|---|---|---|\n| 1 | {t1:.2} | 1 |\n| 2 | {t2:.2} | {speedup:.2} |",
+        k / 5
+    );
+    targets.push(format!(
+        "| ≥ 1.7× on 2 cores (CLI threads) | {speedup:.2}× | {} |",
+        mark(speedup >= 1.7)
+    ));
+    let mb = |j: &str, key: &str| {
+        top_number(j, key).map_or("?".into(), |b| format!("{:.0} MiB", b / 1048576.0))
+    };
+    let _ = writeln!(
+        md,
+        "\n## Memory\n\n| | native (peak RSS) | wasm (heap) |\n|---|---|---|\n| after the solver workload | {} | {} |\n| at the end | {} | {} |",
+        mb(&native, "peak_memory_after_solve_bytes"),
+        mb(&wasm, "peak_memory_after_solve_bytes"),
+        mb(&native, "peak_memory_bytes"),
+        mb(&wasm, "peak_memory_bytes")
+    );
+    let _ = writeln!(
+        md,
+        "\n## Targets\n\n| target | measured | status |\n|---|---|---|"
+    );
+    for t in targets {
+        let _ = writeln!(md, "{t}");
+    }
+    std::fs::write(root().join("BENCHMARKS.md"), md).map_err(|e| e.to_string())?;
+    eprintln!("wrote BENCHMARKS.md");
+    Ok(())
+}
