@@ -177,6 +177,19 @@ pub fn generate_model(spec: &str) -> JsValue {
     }
 }
 
+/// Checks an experiment file's text: `{ok: true}` or the problems.
+#[wasm_bindgen(js_name = checkExperiment)]
+pub fn check_experiment(text: &str) -> JsValue {
+    match crate::experiment::parse_experiment(text, None) {
+        Ok(_) => {
+            let obj = Object::new();
+            set(&obj, "ok", true);
+            obj.into()
+        }
+        Err(p) => problems_value(&p),
+    }
+}
+
 /// Merges shard files' texts into `{json, csv}` of the results, or problems.
 #[wasm_bindgen(js_name = mergeShards)]
 pub fn merge_shards(shards: Vec<String>) -> JsValue {

@@ -476,3 +476,35 @@ fn merged_shards_equal_a_single_run() {
         r.stderr
     );
 }
+
+/// The bad-input corpus (tests/bad-inputs, written by make_corpus.py with the
+/// expected lines by hand): every file exits 1 with exactly its expected
+/// problem lines — `validate` for models, `run` for experiments.
+#[test]
+fn every_bad_input_in_the_corpus_gets_its_message() {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bad-inputs");
+    let mut files: Vec<PathBuf> = std::fs::read_dir(&dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|e| e == "json"))
+        .collect();
+    files.sort();
+    assert!(
+        files.len() >= 40,
+        "at least 40 bad inputs, found {}",
+        files.len()
+    );
+    for f in &files {
+        let name = f.file_name().unwrap().to_str().unwrap();
+        let cmd = if name.starts_with("experiment-") {
+            "run"
+        } else {
+            "validate"
+        };
+        let r = burnin(&[cmd, p(f)]);
+        let want = std::fs::read_to_string(f.with_extension("expected")).unwrap();
+        assert_eq!(r.code, 1, "{name}: exit code");
+        assert_eq!(r.stderr, want, "{name}");
+        assert!(r.stdout.is_empty(), "{name}: nothing on stdout");
+    }
+}

@@ -296,3 +296,15 @@ fn stepping_in_chunks_gives_the_same_output_as_running_whole() {
     let records = contexts.iter().map(run_all).collect();
     assert_eq!(b.output(), assemble(&exp, &contexts, records));
 }
+
+/// Run seeds stay below 2^53 so that results files read exactly in
+/// JavaScript (common practice for JSON integers).
+#[test]
+fn run_seeds_fit_in_53_bits() {
+    use burnin::experiment::run_seed;
+    for (b, l, s) in [(0, 0, 0), (u64::MAX, 63, 9999), (1, 2, 3), (1 << 53, 5, 7)] {
+        assert!(run_seed(b, l, s) < 1 << 53);
+    }
+    assert_ne!(run_seed(1, 0, 0), run_seed(1, 0, 1));
+    assert_ne!(run_seed(1, 0, 0), run_seed(1, 1, 0));
+}

@@ -266,3 +266,17 @@ fn markup_in_labels_is_kept_as_plain_text() {
     assert_eq!(m.name(), "<img src=x onerror=alert(1)>");
     assert!(write_model(&m).contains("\"<img src=x onerror=alert(1)>\""));
 }
+
+/// Regression: on wasm32 (32-bit usize) the H·S·A product saturated at
+/// 2³² − 1 and the message differed from the CLI's.
+#[test]
+fn size_products_are_exact_on_any_pointer_width() {
+    let mut c = burnin::model::check::Checker::default();
+    assert!(!c.check_cells(20_000, 1_000, 1_000));
+    assert_eq!(
+        c.into_problems().lines(),
+        [
+            "H·S·A = 1000·20000·1000 = 20000000000 is over the limit of 16777216 (step, state, action) cells"
+        ]
+    );
+}

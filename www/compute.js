@@ -8,9 +8,14 @@ export const POOL_SIZE = Math.max(1, Math.min(8, navigator.hardwareConcurrency |
 
 class Client {
   constructor() {
-    this.worker = new Worker(QUICK, { type: 'module' });
     this.pending = new Map();
     this.next = 1;
+    this.start();
+  }
+
+  /** (Re)starts the worker; a worker that failed is replaced by a fresh one. */
+  start() {
+    this.worker = new Worker(QUICK, { type: 'module' });
     this.worker.onmessage = (event) => {
       const msg = event.data;
       const job = this.pending.get(msg.id);
@@ -24,8 +29,12 @@ class Client {
     };
     this.worker.onerror = (event) => {
       event.preventDefault();
-      for (const job of this.pending.values()) job.reject(new Error(event.message || 'a compute worker failed'));
+      const why = event.message || 'a compute worker failed';
+      this.worker.terminate();
+      this.start();
+      for (const job of this.pending.values()) job.reject(new Error(`a compute worker stopped (${why}); it has been restarted`));
       this.pending.clear();
+      onRestart?.(why);
     };
   }
   request(type, payload, onProgress) {
@@ -38,8 +47,15 @@ class Client {
   }
 }
 
+let onRestart = null;
+/** Tells `f(reason)` whenever a failed worker is replaced. */
+export function onWorkerRestart(f) { onRestart = f; }
+
 const quick = new Client();
 const pool = [];
+
+/** Fault injection for the browser tests: makes pool worker `i` fail as a crash would. */
+export function crashPoolWorkerForTest(i = 0) { pool[i]?.worker.postMessage({ type: 'crash' }); }
 
 /** Starts the experiment pool ahead of need, each worker loading the core. */
 export function warmPool() {
@@ -52,6 +68,9 @@ export const solve = (text) => quick.request('solve', { text }).promise;
 
 /** Checks a model file's text: its summary, or its problems. */
 export const check = (text) => quick.request('check', { text }).promise;
+
+/** Checks an experiment file's text: {ok: true} or its problems. */
+export const checkExperiment = (text) => quick.request('check-experiment', { text }).promise;
 
 /** A generated model file's text (or problems) from a generator object. */
 export const generate = (spec) => quick.request('generate', { spec: JSON.stringify(spec) }).promise;

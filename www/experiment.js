@@ -209,7 +209,9 @@ export class ExperimentView {
     $('cancel-exp').disabled = false;
     $('exp-progress').value = 0;
     $('exp-status').textContent = 'Starting…';
+    let live = true;
     const job = runExperiment(file.text, (done, total) => {
+      if (!live) return; // a late message from a worker that is stopping
       const secs = (performance.now() - t0) / 1000;
       const rate = done / Math.max(secs, 1e-3);
       $('exp-progress').max = total;
@@ -236,6 +238,7 @@ export class ExperimentView {
     } catch (err) {
       $('exp-status').textContent = `The run failed: ${err.message}`;
     } finally {
+      live = false;
       this.running = null;
       $('run-exp').disabled = false;
       $('cancel-exp').disabled = true;

@@ -1,6 +1,6 @@
 // The page: chooses a model, asks the worker to solve it, and wires the
 // views, files, share links and the library together.
-import { solve, generate, warmPool } from './compute.js';
+import { solve, generate, warmPool, checkExperiment, onWorkerRestart } from './compute.js';
 import { renderFacts, renderProblems, renderOptimal, renderValues, renderQ } from './views.js';
 import { ExperimentView, ALGORITHMS, DEFAULT_SETUP } from './experiment.js';
 import { initGeneratorForm } from './generator-form.js';
@@ -115,6 +115,11 @@ async function openText(text, label) {
   try { doc = JSON.parse(text); } catch { /* the model reader reports the syntax error */ }
   const format = doc && typeof doc === 'object' ? doc.format : undefined;
   if (format === 'burnin-experiment') {
+    const checked = await checkExperiment(text);
+    if (!checked.ok) {
+      renderProblems($('problems'), label, checked);
+      return;
+    }
     if (!doc.model || typeof doc.model !== 'object') {
       renderProblems($('problems'), label, { problems: [{ path: 'model', message: 'this experiment names a model file (model_path); the page needs the model inline as "model"' }], unlisted: 0 });
       return;
@@ -305,6 +310,7 @@ const graph = new GraphView((positions) => {
 });
 
 // ---- start -------------------------------------------------------------
+onWorkerRestart((why) => notice(`A compute worker stopped (${why}) and was replaced; anything it was running has to be run again.`, true));
 const experiment = new ExperimentView({
   model: () => ({ text: current?.text, name: current?.name || 'model', generator: current?.generator, states: current?.solution.states }),
   changed: saveWork,
@@ -346,6 +352,13 @@ async function start() {
     e.preventDefault();
     document.body.classList.remove('dropping');
     openFile(e.dataTransfer.files[0]).catch(fail);
+  });
+  // The library changed in another tab: show it as it is now.
+  window.addEventListener('storage', (e) => {
+    if (store.isEntryKey(e.key)) {
+      renderLibrary();
+      notice('The library was changed in another tab; the list shows it as it is now.');
+    }
   });
   window.addEventListener('hashchange', () => { const h = location.hash.slice(1); if (share.isShare(h)) openShared(h); });
 

@@ -4,7 +4,29 @@
 // what was stored before unchanged, since a failed setItem changes nothing.
 
 const PREFIX = 'burnin:v1:entry:';
-const AUTOSAVE = 'burnin:v1:autosave';
+const AUTOSAVE_PREFIX = 'burnin:v1:autosave:';
+/** Autosaves kept (one per tab that worked here), newest first. */
+const AUTOSAVES_KEPT = 8;
+
+/**
+ * This tab's identity, kept in sessionStorage (which survives a reload of
+ * the tab but is not shared with other tabs): each tab autosaves under its
+ * own key, so two open tabs never overwrite each other's work.
+ */
+const TAB = (() => {
+  let id = sessionStorage.getItem('burnin:tab');
+  if (!id) {
+    const b = new Uint8Array(6);
+    crypto.getRandomValues(b);
+    id = Array.from(b, (x) => x.toString(16).padStart(2, '0')).join('');
+    sessionStorage.setItem('burnin:tab', id);
+  }
+  return id;
+})();
+const AUTOSAVE = AUTOSAVE_PREFIX + TAB;
+
+/** Whether a storage key belongs to the library (for `storage` events). */
+export const isEntryKey = (key) => typeof key === 'string' && key.startsWith(PREFIX);
 export const ENTRY_FORMAT = 'burnin-saved';
 export const ENTRY_VERSION = 1;
 
@@ -83,16 +105,37 @@ export function deleteEntry(id) {
   localStorage.removeItem(PREFIX + id);
 }
 
-/** Keeps the current work; throws StorageFull when it cannot. */
+/** Keeps this tab's current work; throws StorageFull when it cannot. */
 export function autosave(state) {
   write(AUTOSAVE, { format: 'burnin-autosave', version: 1, saved_at: new Date().toISOString(), ...state });
+  pruneAutosaves();
 }
 
-export function loadAutosave() {
+function readAutosave(key) {
   try {
-    const s = JSON.parse(localStorage.getItem(AUTOSAVE));
+    const s = JSON.parse(localStorage.getItem(key));
     return s && s.format === 'burnin-autosave' && s.version === 1 && typeof s.model === 'string' ? s : null;
   } catch {
     return null;
   }
+}
+
+function autosaveKeys() {
+  const keys = [];
+  for (let i = 0; i < localStorage.length; i++) {
+    const k = localStorage.key(i);
+    if (k && k.startsWith(AUTOSAVE_PREFIX)) keys.push(k);
+  }
+  return keys
+    .map((k) => ({ k, t: readAutosave(k)?.saved_at || '' }))
+    .sort((a, b) => b.t.localeCompare(a.t));
+}
+
+function pruneAutosaves() {
+  for (const { k } of autosaveKeys().slice(AUTOSAVES_KEPT)) localStorage.removeItem(k);
+}
+
+/** This tab's autosave after a reload; in a new tab, the newest one of any tab. */
+export function loadAutosave() {
+  return readAutosave(AUTOSAVE) || (autosaveKeys()[0] && readAutosave(autosaveKeys()[0].k));
 }

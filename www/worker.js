@@ -2,12 +2,13 @@
 // Requests {type, id, ...}:
 //   solve {text}       → done {result}            (a model file's solution or problems)
 //   check {text}       → done {result}            (a model's summary or problems)
+//   check-experiment {text} → done {result}       ({ok: true} or problems)
 //   generate {spec}    → done {result}            (a model file's text or problems)
 //   run {text, shard, of} → progress {done, total}…, then done {result: shard file text},
 //                        or error {problems} for a bad experiment
 //   merge {shards}     → done {result: {json, csv}} or problems
 //   cancel {id}        → the run with that id stops and answers cancelled
-import init, { solveModel, checkModel, generateModel, mergeShards, ExperimentRun } from './pkg/burnin.js';
+import init, { solveModel, checkModel, checkExperiment, generateModel, mergeShards, ExperimentRun } from './pkg/burnin.js';
 
 const ready = init();
 const cancelled = new Set();
@@ -50,6 +51,8 @@ async function run(id, text, shard, of) {
 self.onmessage = async (event) => {
   const { type, id } = event.data;
   if (type === 'cancel') { cancelled.add(event.data.target); return; }
+  // Fault injection for the browser tests: fail as an uncaught error would.
+  if (type === 'crash') { setTimeout(() => { throw new Error('injected fault'); }, 0); return; }
   try {
     await ready;
     if (type === 'solve') {
@@ -58,6 +61,8 @@ self.onmessage = async (event) => {
       self.postMessage({ type: 'done', id, result }, transfer);
     } else if (type === 'check') {
       self.postMessage({ type: 'done', id, result: checkModel(event.data.text) });
+    } else if (type === 'check-experiment') {
+      self.postMessage({ type: 'done', id, result: checkExperiment(event.data.text) });
     } else if (type === 'generate') {
       self.postMessage({ type: 'done', id, result: generateModel(event.data.spec) });
     } else if (type === 'run') {

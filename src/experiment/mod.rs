@@ -43,9 +43,12 @@ fn splitmix(mut z: u64) -> u64 {
     z ^ (z >> 31)
 }
 
-/// The seed of run (learner i, seed j) of an experiment with base seed `base`.
+/// The seed of run (learner i, seed j) of an experiment with base seed
+/// `base`: 53 bits, so that it travels exactly as a JSON number (JavaScript
+/// reads integers exactly only up to 2^53).
 pub fn run_seed(base: u64, learner: usize, seed: u64) -> u64 {
     splitmix(splitmix(base ^ splitmix(seed)) ^ (learner as u64).wrapping_mul(0xD1B5_4A32_D192_ED03))
+        & ((1 << 53) - 1)
 }
 
 /// About `n` log-spaced episode numbers in 1..=K: round(K^(i/(n−1))),

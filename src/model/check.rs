@@ -194,8 +194,9 @@ impl Checker {
 
     /// H·S·A within [`MAX_CELLS`].
     pub fn check_cells(&mut self, s: usize, a: usize, h: usize) -> bool {
-        let cells = s.saturating_mul(a).saturating_mul(h);
-        if cells > MAX_CELLS {
+        // In u128: exact for any sizes, and the same on 32-bit wasm as natively.
+        let cells = s as u128 * a as u128 * h as u128;
+        if cells > MAX_CELLS as u128 {
             self.push(
                 "",
                 format!(
