@@ -5,6 +5,8 @@ import { check } from './compute.js';
 
 /** Largest model edited cell by cell (S·A rows × S columns). */
 const MAX_CELLS = 4000;
+/** Most states whose start probabilities get a field each. */
+const MAX_START_FIELDS = 200;
 const $ = (id) => document.getElementById(id);
 
 function el(tag, text, attrs = {}) {
@@ -132,6 +134,11 @@ export class Editor {
     sel.disabled = d.stationary !== false ? true : false;
     const start = $('ed-start');
     start.replaceChildren();
+    if (d.states.length > MAX_START_FIELDS) {
+      start.append(el('p', `${d.states.length} states: too many to edit one by one here; edit the file's "start" instead.`, { class: 'caption' }));
+      this.renderGrid();
+      return;
+    }
     d.states.forEach((s, i) => {
       const lab = el('label', s || `state ${i}`);
       const inp = el('input', null, { type: 'number', step: 'any', min: '0', max: '1', 'data-path': `start[${i}]` });

@@ -3,8 +3,10 @@
 import { cell, headline, valueColour, inkOn } from './format.js';
 
 /** Largest table drawn in full; beyond it the first rows/columns are shown. */
-const MAX_ROWS = 200;
-const MAX_COLS = 60;
+const MAX_ROWS = 100;
+const MAX_COLS = 30;
+/** Most cells in one table: laying out more blocks the page (measured). */
+const MAX_TABLE_CELLS = 1500;
 
 function el(tag, text, cls) {
   const e = document.createElement(tag);
@@ -54,9 +56,14 @@ function capNote(table, shownRows, rows, shownCols, cols, span) {
 /** V*: rows states, columns steps; the optimal action under each value. */
 export function renderValues(wrap, sol) {
   const S = sol.states.length, H = sol.horizon;
-  const rows = Math.min(S, MAX_ROWS), cols = Math.min(H, MAX_COLS);
+  const cols = Math.min(H, MAX_COLS);
+  const rows = Math.min(S, MAX_ROWS, Math.floor(MAX_TABLE_CELLS / cols));
+  // The colour range of the cells shown (an index loop: iterating a large
+  // typed array with for…of is many times slower).
   let lo = Infinity, hi = -Infinity;
-  for (const x of sol.v) { if (x < lo) lo = x; if (x > hi) hi = x; }
+  for (let h = 0; h < cols; h++) {
+    for (let s = 0; s < rows; s++) { const x = sol.v[h * S + s]; if (x < lo) lo = x; if (x > hi) hi = x; }
+  }
   const span = hi - lo || 1;
   const table = el('table');
   const head = el('tr');

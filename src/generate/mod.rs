@@ -151,12 +151,23 @@ impl Garnet {
         need_range("successors", self.successors, 1, self.states)?;
         let tables = if self.time_dependent { self.horizon } else { 1 };
         let cells = self.states * self.actions;
-        if cells.saturating_mul(self.horizon) > MAX_CELLS
-            || cells.saturating_mul(tables).saturating_mul(self.successors) > MAX_ENTRIES
-        {
+        let (s, a, h, b) = (self.states, self.actions, self.horizon, self.successors);
+        if cells as u128 * h as u128 > MAX_CELLS as u128 {
             return Err(bad(
                 "states",
-                "the model would exceed the size limits (see docs/formats.md)",
+                format!(
+                    "S·A·H = {s}·{a}·{h} = {} is over the limit of {MAX_CELLS} (step, state, action) cells",
+                    cells as u128 * h as u128
+                ),
+            ));
+        }
+        if cells as u128 * tables as u128 * b as u128 > MAX_ENTRIES as u128 {
+            return Err(bad(
+                "successors",
+                format!(
+                    "{} transition entries is over the limit of {MAX_ENTRIES}",
+                    cells as u128 * tables as u128 * b as u128
+                ),
             ));
         }
         let mut rng = rng(seed);

@@ -516,6 +516,49 @@ await check('a worker that crashes mid-run is reported and replaced', async (pag
   assertEqual(others.join('\n'), '', 'no other console errors');
 });
 
+await check('a model at the size limit solves without freezing the page', async (page) => {
+  await openPage(page);
+  await page.evaluate(() => {
+    window.__long = [];
+    new PerformanceObserver((list) => { for (const e of list.getEntries()) window.__long.push(e.duration); }).observe({ type: 'longtask' });
+  });
+  // H·S·A = 1024·4096·4 = 16 777 216 cells: exactly the limit (docs/formats.md).
+  await page.click('#generator summary');
+  await page.selectOption('#gen-kind', 'random');
+  await page.fill('#gen-states', '4096');
+  await page.fill('#gen-actions', '4');
+  await page.fill('#gen-successors', '1');
+  await page.fill('#gen-horizon', '1024');
+  await page.click('#gen-run');
+  await shownValue(page, 'Random sparse S=4096 A=4 b=1 H=1024');
+  assert((await page.locator('#value-wrap .note-row').textContent()).startsWith('Showing 50 of 4096 states'), 'the table says it is cut');
+  const worst = Math.max(0, ...(await page.evaluate(() => window.__long)));
+  console.log(`     longest main-thread task ${worst.toFixed(0)} ms`);
+  // A freeze check, not a speed target: before the fix this was over 1 000 ms.
+  assert(worst <= 500, `the page froze for ${worst} ms`);
+  await page.fill('#gen-horizon', '1025');
+  await page.click('#gen-run');
+  await page.waitForSelector('#problems:not([hidden])');
+  assertEqual((await page.locator('#problems li').allTextContents())[0], 'generator.states: S·A·H = 4096·4·1025 = 16793600 is over the limit of 16777216 (step, state, action) cells', 'one over the limit');
+});
+
+await check('a reload in the middle of a run loses nothing saved', async (page) => {
+  await openPage(page);
+  await page.selectOption('#demo-select', 'lantern-cave.json');
+  await shownValue(page, 'Lantern cave');
+  await page.click('#tab-library');
+  await page.click('#save-current');
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '100000000');
+  await page.click('#run-exp');
+  await page.waitForFunction(() => Number(document.getElementById('exp-progress').value) > 0, null, { timeout: 20000 });
+  await page.reload();
+  await shownValue(page, 'Lantern cave');
+  assertEqual(await page.inputValue('#exp-episodes'), '100000000', 'the set-up was kept');
+  await page.click('#tab-library');
+  assertEqual(await page.locator('#library-list li').count(), 1, 'the library is intact');
+});
+
 const badDir = new URL('../bad-inputs/', import.meta.url).pathname;
 await check('every bad file of the corpus shows its problems in the page and changes nothing', async (page) => {
   const { readdirSync } = await import('node:fs');

@@ -6,6 +6,8 @@
 //! - `cargo xtask test`: formatting, clippy, every cargo test, the wasm
 //!   build, and the headless-Chromium checks of the page.
 //! - `cargo xtask wasm`: only the wasm build.
+//! - `cargo xtask fuzz [SECONDS]`: each cargo-fuzz target for a bounded time
+//!   (30 s by default; part of `test`).
 //! - `cargo xtask bench [--quick]`: the reference workloads natively, in
 //!   headless Chromium (wasm) and for the numpy peer; writes BENCHMARKS.md.
 //!
@@ -32,6 +34,11 @@ fn main() -> ExitCode {
         Some("test") => test_cmd(),
         Some("wasm") => build_wasm().map(|_| ()),
         Some("bench") => bench::bench(args.iter().any(|a| a == "--quick")),
+        Some("fuzz") => match args.get(1).map(|s| s.parse::<u32>()) {
+            None => fuzz(30),
+            Some(Ok(n)) => fuzz(n),
+            Some(Err(_)) => Err("usage: cargo xtask fuzz [SECONDS]".into()),
+        },
         _ => {
             eprintln!("usage: cargo xtask serve [--port N] | test | wasm | bench [--quick]");
             return ExitCode::from(2);
@@ -165,7 +172,39 @@ fn test_cmd() -> Result<()> {
     run(cargo().args(["test", "--workspace"]))?;
     let www = build_wasm()?;
     step("browser checks (headless Chromium)");
-    browser_checks(www)
+    browser_checks(www)?;
+    fuzz(30)
+}
+
+/// Each fuzz target for `seconds`, on a fresh corpus grown from fuzz/seeds.
+fn fuzz(seconds: u32) -> Result<()> {
+    if output(cargo().args(["fuzz", "--version"])).is_none() {
+        step("installing cargo-fuzz (a minute)");
+        run(cargo().args(["install", "cargo-fuzz"]))?;
+    }
+    let dir = root().join("fuzz");
+    for target in ["parse_model", "experiment_run"] {
+        step(&format!("fuzzing {target} for {seconds} s"));
+        let corpus = dir.join("corpus").join(target);
+        let _ = std::fs::remove_dir_all(&corpus);
+        std::fs::create_dir_all(&corpus).map_err(|e| e.to_string())?;
+        run_in(
+            &dir,
+            cargo()
+                // cargo-fuzz passes -Z flags; this lets the stable toolchain accept them.
+                .env("RUSTC_BOOTSTRAP", "1")
+                .args(["fuzz", "run", target])
+                .arg(&corpus)
+                .arg(dir.join("seeds").join(target))
+                .args([
+                    "--",
+                    &format!("-max_total_time={seconds}"),
+                    "-rss_limit_mb=2048",
+                    "-print_final_stats=1",
+                ]),
+        )?;
+    }
+    Ok(())
 }
 
 pub(crate) fn chromium() -> Result<PathBuf> {
