@@ -559,6 +559,47 @@ await check('a reload in the middle of a run loses nothing saved', async (page) 
   assertEqual(await page.locator('#library-list li').count(), 1, 'the library is intact');
 });
 
+await check('share links are decoded within bounds, and the page allows no eval', async (page) => {
+  // The CSP refusals below are logged as console errors; only those are expected.
+  const others = [];
+  page.removeAllListeners('console');
+  page.on('console', (m) => { if (m.type() === 'error' && !/Content Security Policy|Refused to/.test(m.text())) others.push(m.text()); });
+  // Longer than any link the page makes: refused before decoding.
+  await page.goto(`${url}/#share=${'A'.repeat(70000)}`);
+  await page.waitForFunction(() => /longer than any link/.test(document.getElementById('notice').textContent));
+  // A small link that inflates past the 4 MiB bound (a "zip bomb").
+  const bomb = await page.evaluate(async () => {
+    const big = new Uint8Array(8 << 20).fill(32);
+    const packed = new Uint8Array(await new Response(new Blob([big]).stream().pipeThrough(new CompressionStream('deflate-raw'))).arrayBuffer());
+    let s = '';
+    for (const b of packed) s += String.fromCharCode(b);
+    return btoa(s).replace(/\+/g, '-').replace(/\//g, '_').replace(/=+$/, '');
+  });
+  assert(bomb.length < 60000, 'the bomb fits in a link');
+  const other = await page.context().newPage();
+  await other.goto(`${url}/#share=${bomb}`);
+  await other.waitForFunction(() => /holds more than 4194304 bytes/.test(document.getElementById('notice').textContent));
+  // The Content-Security-Policy forbids eval and inline script.
+  const csp = await page.locator('meta[http-equiv="Content-Security-Policy"]').getAttribute('content');
+  assert(/script-src 'self' 'wasm-unsafe-eval';/.test(csp) && !csp.includes("'unsafe-eval'") && !csp.includes("'unsafe-inline'"), `strict CSP: ${csp}`);
+  // DevTools evaluation bypasses the CSP, so test what a page script meets:
+  // injected inline script and eval from an injected script are refused.
+  const refused = await page.evaluate(() => new Promise((resolve) => {
+    const seen = [];
+    document.addEventListener('securitypolicyviolation', (e) => { seen.push(e.violatedDirective); if (seen.length === 2) resolve(seen.sort()); });
+    const inline = document.createElement('script');
+    inline.textContent = 'window.__inline = 1';
+    document.head.append(inline);
+    const fromData = document.createElement('script');
+    fromData.src = 'data:text/javascript,window.__data = 1';
+    document.head.append(fromData);
+    setTimeout(() => resolve(seen.sort()), 2000);
+  }));
+  assertEqual(refused.join(','), 'script-src-elem,script-src-elem', 'inline and data: scripts refused');
+  assertEqual(await page.evaluate(() => [window.__inline, window.__data].join(',')), ',', 'neither ran');
+  assertEqual(others.join('\n'), '', 'no other console errors');
+});
+
 const badDir = new URL('../bad-inputs/', import.meta.url).pathname;
 await check('every bad file of the corpus shows its problems in the page and changes nothing', async (page) => {
   const { readdirSync } = await import('node:fs');
