@@ -45,34 +45,33 @@ fn beta_cf(a: f64, b: f64, x: f64) -> f64 {
     for m in 1..=300 {
         let m = m as f64;
         let m2 = 2.0 * m;
-        let aa = m * (b - m) * x / ((qam + m2) * (a + m2));
-        d = 1.0 + aa * d;
-        if d.abs() < TINY {
-            d = TINY;
-        }
-        c = 1.0 + aa / c;
-        if c.abs() < TINY {
-            c = TINY;
-        }
-        d = 1.0 / d;
-        h *= d * c;
-        let aa = -(a + m) * (qab + m) * x / ((a + m2) * (qap + m2));
-        d = 1.0 + aa * d;
-        if d.abs() < TINY {
-            d = TINY;
-        }
-        c = 1.0 + aa / c;
-        if c.abs() < TINY {
-            c = TINY;
-        }
-        d = 1.0 / d;
-        let del = d * c;
+        // The even and odd terms of the fraction, each one Lentz step.
+        let even = m * (b - m) * x / ((qam + m2) * (a + m2));
+        h *= lentz_step(even, &mut c, &mut d);
+        let odd = -(a + m) * (qab + m) * x / ((a + m2) * (qap + m2));
+        let del = lentz_step(odd, &mut c, &mut d);
         h *= del;
         if (del - 1.0).abs() < EPS {
             break;
         }
     }
     h
+}
+
+/// One step of modified Lentz's method for the coefficient `aa`: updates
+/// the running C and D and returns the factor C·D for the fraction.
+fn lentz_step(aa: f64, c: &mut f64, d: &mut f64) -> f64 {
+    const TINY: f64 = 1e-300;
+    *d = 1.0 + aa * *d;
+    if d.abs() < TINY {
+        *d = TINY;
+    }
+    *c = 1.0 + aa / *c;
+    if c.abs() < TINY {
+        *c = TINY;
+    }
+    *d = 1.0 / *d;
+    *c * *d
 }
 
 /// Regularised incomplete beta function I_x(a, b).

@@ -2,6 +2,7 @@
 // per step, checked by the core as you type with each problem shown at its
 // cell. Nothing changes the open model until "Use this model".
 import { check } from './compute.js';
+import { el } from './dom.js';
 
 /** Largest model edited cell by cell (S·A rows × S columns). */
 const MAX_CELLS = 4000;
@@ -9,12 +10,6 @@ const MAX_CELLS = 4000;
 const MAX_START_FIELDS = 200;
 const $ = (id) => document.getElementById(id);
 
-function el(tag, text, attrs = {}) {
-  const e = document.createElement(tag);
-  if (text !== undefined && text !== null) e.textContent = text;
-  for (const [k, v] of Object.entries(attrs)) e.setAttribute(k, v);
-  return e;
-}
 
 /** A reward as short text: "0.5", "bernoulli 0.3", "uniform 0 0.6", "beta 2 1". */
 export function rewardText(r) {

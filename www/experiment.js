@@ -2,6 +2,7 @@
 // cancel, and the results (charts with hover, table, visit heat map, exports,
 // presentation view).
 import { runExperiment } from './compute.js';
+import { el } from './dom.js';
 import { drawChart, CanvasPen, SvgPen, PALETTE, nearestIndex } from './chart.js';
 import { short, grouped, valueColour, inkOn } from './format.js';
 
@@ -34,12 +35,6 @@ export const DEFAULT_SETUP = {
 
 const $ = (id) => document.getElementById(id);
 
-function el(tag, text, attrs = {}) {
-  const e = document.createElement(tag);
-  if (text !== undefined && text !== null) e.textContent = text;
-  for (const [k, v] of Object.entries(attrs)) e.setAttribute(k, v);
-  return e;
-}
 
 function download(name, text, type) {
   const url = URL.createObjectURL(text instanceof Blob ? text : new Blob([text], { type }));

@@ -1,6 +1,7 @@
 // Views: one render function each. Text from files reaches the DOM only
 // through textContent, never as HTML.
 import { cell, headline, valueColour, inkOn } from './format.js';
+import { el } from './dom.js';
 
 /** Largest table drawn in full; beyond it the first rows/columns are shown. */
 const MAX_ROWS = 100;
@@ -8,12 +9,6 @@ const MAX_COLS = 30;
 /** Most cells in one table: laying out more blocks the page (measured). */
 const MAX_TABLE_CELLS = 1500;
 
-function el(tag, text, cls) {
-  const e = document.createElement(tag);
-  if (text !== undefined) e.textContent = text;
-  if (cls) e.className = cls;
-  return e;
-}
 
 export function renderFacts(root, m) {
   const facts = {
@@ -46,7 +41,7 @@ export function renderOptimal(out, value) {
 
 function capNote(table, shownRows, rows, shownCols, cols, span) {
   if (shownRows === rows && shownCols === cols) return;
-  const tr = el('tr', undefined, 'note-row');
+  const tr = el('tr', undefined, { class: 'note-row' });
   const td = el('td', `Showing ${shownRows} of ${rows} states and ${shownCols} of ${cols} columns; the JSON from “burnin solve --json” has them all.`);
   td.colSpan = span;
   tr.append(td);

@@ -588,17 +588,16 @@ fn merge(files: &[PathBuf], json: bool, csv: Option<&Path>) -> Result<(), Failur
     finish_output(&out, json, csv)
 }
 
+/// Width of a table's learner column: its longest label, at least "learner".
+fn label_width<'a>(labels: impl Iterator<Item = &'a str>) -> usize {
+    labels.map(|l| l.chars().count()).max().unwrap_or(0).max(7)
+}
+
 fn sweep_table(r: &burnin::experiment::SweepResults) -> String {
     use std::fmt::Write as _;
     let mut o = String::new();
     let _ = writeln!(o, "regret at K against {}", r.parameter);
-    let lw = r
-        .learners
-        .iter()
-        .map(|l| l.label.chars().count())
-        .max()
-        .unwrap_or(7)
-        .max(7);
+    let lw = label_width(r.learners.iter().map(|l| l.label.as_str()));
     let _ = write!(o, "\n{:<lw$}", "learner");
     for v in &r.values {
         let _ = write!(o, "  {:>26}", format!("{} = {v}", r.parameter));
@@ -696,13 +695,7 @@ fn results_table(r: &burnin::experiment::Results) -> String {
         "{:?}: S={} A={} H={}, K={} episodes × {} seeds, V* = {:.6}",
         r.model_name, r.states, r.actions, r.horizon, r.episodes, r.seeds, r.optimal_value
     );
-    let lw = r
-        .learners
-        .iter()
-        .map(|l| l.label.chars().count())
-        .max()
-        .unwrap_or(7)
-        .max(7);
+    let lw = label_width(r.learners.iter().map(|l| l.label.as_str()));
     let _ = writeln!(
         o,
         "\n{:<lw$}  {:>12}  {:>21}  {:>6}  {:>9}  {:>10}",

@@ -8,16 +8,13 @@
 
 use rand::Rng;
 
-use super::{LearnRng, Learner, PolicyView, RowCounts, Setting, plan};
+use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting};
 
 pub struct EpsGreedy {
     set: Setting,
     epsilon: f64,
     counts: Vec<RowCounts>,
-    v: Vec<f64>,
-    greedy: Vec<u32>,
-    version: u64,
-    updates: u64,
+    plan: Plan,
 }
 
 impl EpsGreedy {
@@ -26,10 +23,7 @@ impl EpsGreedy {
             set,
             epsilon,
             counts: vec![RowCounts::default(); set.rows()],
-            v: vec![0.0; (set.horizon + 1) * set.states],
-            greedy: vec![u32::MAX; set.horizon * set.states],
-            version: 0,
-            updates: 0,
+            plan: Plan::new(&set),
         }
     }
 }
@@ -38,42 +32,32 @@ impl Learner for EpsGreedy {
     fn begin_episode(&mut self, rng: &mut LearnRng) {
         let set = self.set;
         let counts = &self.counts;
-        let changed = plan(
-            &set,
-            &mut self.v,
-            &mut self.greedy,
-            rng,
-            |h, s, a, v_next, _| {
-                let c = &counts[set.row(h, s, a)];
-                if c.n == 0 {
-                    0.0
-                } else {
-                    c.mean_reward() + c.mean(v_next)
-                }
-            },
-        );
-        self.updates += 1;
-        if changed {
-            self.version += 1;
-        }
+        self.plan.replan(&set, rng, |h, s, a, v_next, _| {
+            let c = &counts[set.row(h, s, a)];
+            if c.n == 0 {
+                0.0
+            } else {
+                c.mean_reward() + c.mean(v_next)
+            }
+        });
     }
 
     fn policy(&self) -> PolicyView<'_> {
         PolicyView::Mixed {
-            greedy: &self.greedy,
+            greedy: self.plan.policy(),
             epsilon: self.epsilon,
         }
     }
 
     fn policy_version(&self) -> u64 {
-        self.version
+        self.plan.version()
     }
 
     fn act(&mut self, h: usize, s: usize, rng: &mut LearnRng) -> usize {
         if rng.random::<f64>() < self.epsilon {
             rng.random_range(0..self.set.actions as u32) as usize
         } else {
-            self.greedy[h * self.set.states + s] as usize
+            self.plan.action(h, s)
         }
     }
 
@@ -82,7 +66,7 @@ impl Learner for EpsGreedy {
     }
 
     fn model_updates(&self) -> u64 {
-        self.updates
+        self.plan.updates()
     }
 }
 

@@ -214,6 +214,61 @@ pub fn plan(
     changed
 }
 
+/// A planning learner's current plan: its values, its greedy policy, how
+/// often it was recomputed, and a version that changes with the policy.
+#[derive(Debug, Clone)]
+pub struct Plan {
+    states: usize,
+    v: Vec<f64>,
+    policy: Vec<u32>,
+    version: u64,
+    updates: u64,
+}
+
+impl Plan {
+    pub fn new(set: &Setting) -> Plan {
+        Plan {
+            states: set.states,
+            v: vec![0.0; (set.horizon + 1) * set.states],
+            policy: vec![u32::MAX; set.horizon * set.states],
+            version: 0,
+            updates: 0,
+        }
+    }
+
+    /// Recomputes the plan by backward induction ([`plan`]), counting the
+    /// update and changing the version if any action changed.
+    pub fn replan(
+        &mut self,
+        set: &Setting,
+        rng: &mut LearnRng,
+        q_of: impl FnMut(usize, usize, usize, &[f64], &mut LearnRng) -> f64,
+    ) {
+        if plan(set, &mut self.v, &mut self.policy, rng, q_of) {
+            self.version += 1;
+        }
+        self.updates += 1;
+    }
+
+    /// The planned action in state `s` at step `h`.
+    #[inline]
+    pub fn action(&self, h: usize, s: usize) -> usize {
+        self.policy[h * self.states + s] as usize
+    }
+
+    pub fn policy(&self) -> &[u32] {
+        &self.policy
+    }
+
+    pub fn version(&self) -> u64 {
+        self.version
+    }
+
+    pub fn updates(&self) -> u64 {
+        self.updates
+    }
+}
+
 /// The published algorithm a learner implements, with its parameters.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Algorithm {

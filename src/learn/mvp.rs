@@ -25,7 +25,7 @@
 //!   Complexity of Online Reinforcement Learning", COLT 2024,
 //!   arXiv:2307.13586, Algorithm 1.
 
-use super::{LearnRng, Learner, PolicyView, RowCounts, Setting, plan};
+use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting};
 
 const C1: f64 = 460.0 / 9.0;
 const C2: f64 = 2.0 * std::f64::consts::SQRT_2;
@@ -55,10 +55,7 @@ pub struct Mvp {
     /// How often each row's estimates were rebuilt.
     rebuilds: Vec<u32>,
     triggered: bool,
-    v: Vec<f64>,
-    policy: Vec<u32>,
-    version: u64,
-    updates: u64,
+    plan: Plan,
 }
 
 impl Mvp {
@@ -79,10 +76,7 @@ impl Mvp {
             rebuilds: vec![0; set.rows()],
             // The first episode starts from a plan (all Q = H).
             triggered: true,
-            v: vec![0.0; (set.horizon + 1) * set.states],
-            policy: vec![u32::MAX; set.horizon * set.states],
-            version: 0,
-            updates: 0,
+            plan: Plan::new(&set),
         }
     }
 
@@ -106,46 +100,35 @@ impl Learner for Mvp {
         let set = self.set;
         let (hh, l, scale) = (set.horizon as f64, self.l, self.scale);
         let frozen = &self.frozen;
-        let changed = plan(
-            &set,
-            &mut self.v,
-            &mut self.policy,
-            rng,
-            |h, s, a, v_next, _| {
-                let b = &frozen[set.row(h, s, a)];
-                if b.size == 0 {
-                    return hh;
-                }
-                let m = b.size as f64;
-                let (mut pv, mut pv2) = (0.0, 0.0);
-                for &(y, p) in &b.next {
-                    let x = v_next[y as usize];
-                    pv += p * x;
-                    pv2 += p * x * x;
-                }
-                let var = (pv2 - pv * pv).max(0.0);
-                let rvar = (b.reward_second_moment - b.reward_mean * b.reward_mean).max(0.0);
-                let bonus =
-                    C1 * (var * l / m).sqrt() + C2 * (rvar * l / m).sqrt() + C3 * hh * l / m;
-                (b.reward_mean + pv + scale * bonus).min(hh)
-            },
-        );
-        self.updates += 1;
-        if changed {
-            self.version += 1;
-        }
+        self.plan.replan(&set, rng, |h, s, a, v_next, _| {
+            let b = &frozen[set.row(h, s, a)];
+            if b.size == 0 {
+                return hh;
+            }
+            let m = b.size as f64;
+            let (mut pv, mut pv2) = (0.0, 0.0);
+            for &(y, p) in &b.next {
+                let x = v_next[y as usize];
+                pv += p * x;
+                pv2 += p * x * x;
+            }
+            let var = (pv2 - pv * pv).max(0.0);
+            let rvar = (b.reward_second_moment - b.reward_mean * b.reward_mean).max(0.0);
+            let bonus = C1 * (var * l / m).sqrt() + C2 * (rvar * l / m).sqrt() + C3 * hh * l / m;
+            (b.reward_mean + pv + scale * bonus).min(hh)
+        });
     }
 
     fn policy(&self) -> PolicyView<'_> {
-        PolicyView::Greedy(&self.policy)
+        PolicyView::Greedy(self.plan.policy())
     }
 
     fn policy_version(&self) -> u64 {
-        self.version
+        self.plan.version()
     }
 
     fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
-        self.policy[h * self.set.states + s] as usize
+        self.plan.action(h, s)
     }
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
@@ -168,6 +151,6 @@ impl Learner for Mvp {
     }
 
     fn model_updates(&self) -> u64 {
-        self.updates
+        self.plan.updates()
     }
 }

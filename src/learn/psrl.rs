@@ -19,7 +19,7 @@
 
 use rand::Rng;
 
-use super::{LearnRng, Learner, PolicyView, Setting, plan};
+use super::{LearnRng, Learner, Plan, PolicyView, Setting};
 use crate::sample::{beta, gamma};
 
 pub struct Psrl {
@@ -30,10 +30,7 @@ pub struct Psrl {
     successes: Vec<f64>,
     trials: Vec<f64>,
     weights: Vec<f64>,
-    v: Vec<f64>,
-    policy: Vec<u32>,
-    version: u64,
-    updates: u64,
+    plan: Plan,
 }
 
 impl Psrl {
@@ -45,10 +42,7 @@ impl Psrl {
             successes: vec![0.0; set.rows()],
             trials: vec![0.0; set.rows()],
             weights: vec![0.0; set.states],
-            v: vec![0.0; (set.horizon + 1) * set.states],
-            policy: vec![u32::MAX; set.horizon * set.states],
-            version: 0,
-            updates: 0,
+            plan: Plan::new(&set),
         }
     }
 }
@@ -62,47 +56,37 @@ impl Learner for Psrl {
         let weights = &mut self.weights;
         // The sampled model is drawn row by row as the planner needs it; the
         // planner's own tie-breaking draws interleave with these, in a fixed order.
-        let changed = plan(
-            &set,
-            &mut self.v,
-            &mut self.policy,
-            rng,
-            |h, s, a, v_next, draw| {
-                let row = set.row(h, s, a);
-                let c = &counts[row * s_n..(row + 1) * s_n];
-                let mut total = 0.0;
-                for (w, &k) in weights.iter_mut().zip(c) {
-                    *w = gamma(draw, prior + k as f64);
-                    total += *w;
-                }
-                let r = beta(
-                    draw,
-                    1.0 + successes[row],
-                    1.0 + trials[row] - successes[row],
-                );
-                let mut pv = 0.0;
-                for (w, x) in weights.iter().zip(v_next) {
-                    pv += w * x;
-                }
-                r + if total > 0.0 { pv / total } else { 0.0 }
-            },
-        );
-        self.updates += 1;
-        if changed {
-            self.version += 1;
-        }
+        self.plan.replan(&set, rng, |h, s, a, v_next, draw| {
+            let row = set.row(h, s, a);
+            let c = &counts[row * s_n..(row + 1) * s_n];
+            let mut total = 0.0;
+            for (w, &k) in weights.iter_mut().zip(c) {
+                *w = gamma(draw, prior + k as f64);
+                total += *w;
+            }
+            let r = beta(
+                draw,
+                1.0 + successes[row],
+                1.0 + trials[row] - successes[row],
+            );
+            let mut pv = 0.0;
+            for (w, x) in weights.iter().zip(v_next) {
+                pv += w * x;
+            }
+            r + if total > 0.0 { pv / total } else { 0.0 }
+        });
     }
 
     fn policy(&self) -> PolicyView<'_> {
-        PolicyView::Greedy(&self.policy)
+        PolicyView::Greedy(self.plan.policy())
     }
 
     fn policy_version(&self) -> u64 {
-        self.version
+        self.plan.version()
     }
 
     fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
-        self.policy[h * self.set.states + s] as usize
+        self.plan.action(h, s)
     }
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, rng: &mut LearnRng) {
@@ -115,6 +99,6 @@ impl Learner for Psrl {
     }
 
     fn model_updates(&self) -> u64 {
-        self.updates
+        self.plan.updates()
     }
 }

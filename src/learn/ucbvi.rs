@@ -23,7 +23,7 @@
 //!   (Algorithm 1; bonus_1 and bonus_2). The Bernstein–Freedman bonus is
 //!   written here as we recall it from the paper, from memory.
 
-use super::{LearnRng, Learner, PolicyView, RowCounts, Setting, plan};
+use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting};
 
 pub struct Ucbvi {
     set: Setting,
@@ -34,10 +34,7 @@ pub struct Ucbvi {
     /// N'_h(y): visits to state y at step h, `[h·S + y]`.
     state_visits: Vec<u32>,
     q_prev: Vec<f64>,
-    v: Vec<f64>,
-    policy: Vec<u32>,
-    version: u64,
-    updates: u64,
+    plan: Plan,
 }
 
 impl Ucbvi {
@@ -51,10 +48,7 @@ impl Ucbvi {
             counts: vec![RowCounts::default(); set.rows()],
             state_visits: vec![0; set.horizon * set.states],
             q_prev: vec![set.horizon as f64; set.rows()],
-            v: vec![0.0; (set.horizon + 1) * set.states],
-            policy: vec![u32::MAX; set.horizon * set.states],
-            version: 0,
-            updates: 0,
+            plan: Plan::new(&set),
         }
     }
 }
@@ -67,66 +61,56 @@ impl Learner for Ucbvi {
         let cap = 100.0 * 100.0 * hh * hh * hh * s_f * s_f * a_f * l * l;
         let (counts, q_prev, visits) = (&self.counts, &mut self.q_prev, &self.state_visits);
         let (scale, bernstein) = (self.scale, self.bernstein);
-        let changed = plan(
-            &set,
-            &mut self.v,
-            &mut self.policy,
-            rng,
-            |h, s, a, v_next, _| {
-                let row = set.row(h, s, a);
-                let c = &counts[row];
-                if c.n == 0 {
-                    return q_prev[row];
-                }
-                let n = c.n as f64;
-                let (pv, var) = c.mean_var(v_next);
-                let bonus = if bernstein {
-                    let correction = if h + 1 < set.horizon {
-                        let base = (h + 1) * set.states;
-                        let e: f64 = c
-                            .next
-                            .iter()
-                            .map(|&(y, k)| {
-                                let nv = visits[base + y as usize];
-                                let t = if nv == 0 {
-                                    hh * hh
-                                } else {
-                                    (cap / nv as f64).min(hh * hh)
-                                };
-                                k as f64 / n * t
-                            })
-                            .sum();
-                        (8.0 * e / n).sqrt()
-                    } else {
-                        0.0
-                    };
-                    (8.0 * l * var / n).sqrt() + 14.0 * hh * l / (3.0 * n) + correction
+        self.plan.replan(&set, rng, |h, s, a, v_next, _| {
+            let row = set.row(h, s, a);
+            let c = &counts[row];
+            if c.n == 0 {
+                return q_prev[row];
+            }
+            let n = c.n as f64;
+            let (pv, var) = c.mean_var(v_next);
+            let bonus = if bernstein {
+                let correction = if h + 1 < set.horizon {
+                    let base = (h + 1) * set.states;
+                    let e: f64 = c
+                        .next
+                        .iter()
+                        .map(|&(y, k)| {
+                            let nv = visits[base + y as usize];
+                            let t = if nv == 0 {
+                                hh * hh
+                            } else {
+                                (cap / nv as f64).min(hh * hh)
+                            };
+                            k as f64 / n * t
+                        })
+                        .sum();
+                    (8.0 * e / n).sqrt()
                 } else {
-                    7.0 * hh * l * (1.0 / n).sqrt()
+                    0.0
                 };
-                let q = (c.mean_reward() + pv + scale * bonus)
-                    .min(hh)
-                    .min(q_prev[row]);
-                q_prev[row] = q;
-                q
-            },
-        );
-        self.updates += 1;
-        if changed {
-            self.version += 1;
-        }
+                (8.0 * l * var / n).sqrt() + 14.0 * hh * l / (3.0 * n) + correction
+            } else {
+                7.0 * hh * l * (1.0 / n).sqrt()
+            };
+            let q = (c.mean_reward() + pv + scale * bonus)
+                .min(hh)
+                .min(q_prev[row]);
+            q_prev[row] = q;
+            q
+        });
     }
 
     fn policy(&self) -> PolicyView<'_> {
-        PolicyView::Greedy(&self.policy)
+        PolicyView::Greedy(self.plan.policy())
     }
 
     fn policy_version(&self) -> u64 {
-        self.version
+        self.plan.version()
     }
 
     fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
-        self.policy[h * self.set.states + s] as usize
+        self.plan.action(h, s)
     }
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
@@ -135,6 +119,6 @@ impl Learner for Ucbvi {
     }
 
     fn model_updates(&self) -> u64 {
-        self.updates
+        self.plan.updates()
     }
 }
