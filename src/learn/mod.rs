@@ -132,17 +132,19 @@ impl RowCounts {
         }
     }
 
-    /// (P̂·V, Var_P̂(V)) over the empirical next-state distribution.
+    /// (P̂·V, Var_P̂(V)) over the empirical next-state distribution (sums
+    /// of counts, divided by n once).
     #[inline]
     pub fn mean_var(&self, v: &[f64]) -> (f64, f64) {
-        let n = self.n as f64;
         let (mut m1, mut m2) = (0.0, 0.0);
         for &(s, c) in &self.next {
             let x = v[s as usize];
-            let p = c as f64 / n;
-            m1 += p * x;
-            m2 += p * x * x;
+            let c = c as f64;
+            m1 += c * x;
+            m2 += c * x * x;
         }
+        let inv = 1.0 / self.n as f64;
+        let (m1, m2) = (m1 * inv, m2 * inv);
         (m1, (m2 - m1 * m1).max(0.0))
     }
 

@@ -31,6 +31,8 @@ pub struct Ucbvi {
     bernstein: bool,
     l: f64,
     counts: Vec<RowCounts>,
+    /// 7·H·L·√(1/n) of each row, kept up to date as it is visited.
+    hoeffding: Vec<f64>,
     /// N'_h(y): visits to state y at step h, `[h·S + y]`.
     state_visits: Vec<u32>,
     q_prev: Vec<f64>,
@@ -46,6 +48,7 @@ impl Ucbvi {
             bernstein,
             l,
             counts: vec![RowCounts::default(); set.rows()],
+            hoeffding: vec![0.0; set.rows()],
             state_visits: vec![0; set.horizon * set.states],
             q_prev: vec![set.horizon as f64; set.rows()],
             plan: Plan::new(&set),
@@ -59,7 +62,12 @@ impl Learner for Ucbvi {
         let hh = set.horizon as f64;
         let (s_f, a_f, l) = (set.states as f64, set.actions as f64, self.l);
         let cap = 100.0 * 100.0 * hh * hh * hh * s_f * s_f * a_f * l * l;
-        let (counts, q_prev, visits) = (&self.counts, &mut self.q_prev, &self.state_visits);
+        let (counts, q_prev, visits, hoeffding) = (
+            &self.counts,
+            &mut self.q_prev,
+            &self.state_visits,
+            &self.hoeffding,
+        );
         let (scale, bernstein) = (self.scale, self.bernstein);
         self.plan.replan(&set, rng, |h, s, a, v_next, _| {
             let row = set.row(h, s, a);
@@ -91,7 +99,7 @@ impl Learner for Ucbvi {
                 };
                 (8.0 * l * var / n).sqrt() + 14.0 * hh * l / (3.0 * n) + correction
             } else {
-                7.0 * hh * l * (1.0 / n).sqrt()
+                hoeffding[row]
             };
             let q = (c.mean_reward() + pv + scale * bonus)
                 .min(hh)
@@ -114,7 +122,10 @@ impl Learner for Ucbvi {
     }
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
-        self.counts[self.set.row(h, s, a)].add(r, next);
+        let row = self.set.row(h, s, a);
+        self.counts[row].add(r, next);
+        let n = self.counts[row].n as f64;
+        self.hoeffding[row] = 7.0 * self.set.horizon as f64 * self.l * (1.0 / n).sqrt();
         self.state_visits[h * self.set.states + s] += 1;
     }
 
