@@ -208,12 +208,12 @@ pub fn bench(quick: bool) -> Result<()> {
     );
     let mut targets = Vec::new();
     for (label, j) in [("native", &native), ("wasm", &wasm)] {
-        if let (Some(s), Some(p)) = (figure(j, "solve"), figure(j, "plain")) {
-            let frac = s.0 * 12.0 / p.0;
+        // The median of the interleaved (solve, stream) pairs' ratios.
+        if let Some(r) = figure(j, "solver share") {
             targets.push(format!(
-                "| solver at ≥ 50% of the streaming rate ({label}) | {:.0}% | {} |",
-                frac * 100.0,
-                mark(frac >= 0.5)
+                "| solver at ≥ 50% of the streaming rate ({label}; median of interleaved pairs) | {:.0}% | {} |",
+                r.1 * 100.0,
+                mark(r.1 >= 0.5)
             ));
         }
     }
