@@ -185,7 +185,7 @@ pub fn argmax_random(q: &[f64], rng: &mut LearnRng) -> usize {
 /// rng)` returns Q_h(s,a) given V_{h+1} (drawing from `rng` if it samples); `v` ((H+1)·S) and `policy` (H·S) are
 /// filled, V_h(s) = max_a Q_h(s,a), the greedy action chosen with random
 /// ties. Returns whether any action of `policy` changed.
-pub fn plan(
+fn plan(
     set: &Setting,
     v: &mut [f64],
     policy: &mut [u32],

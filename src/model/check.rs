@@ -34,23 +34,13 @@ pub fn format_sum(sum: f64) -> String {
     format!("{sum:e}")
 }
 
-/// Renormalises a row whose sum is within [`SUM_TOLERANCE`] but not within
-/// [`SUM_EXACT`] of 1.
-pub fn normalise(row: &mut [(u32, f64)]) {
-    let sum: f64 = row.iter().map(|e| e.1).sum();
+/// Renormalises the probabilities `prob(item)` of `items` when their sum is
+/// within [`SUM_TOLERANCE`] but not within [`SUM_EXACT`] of 1.
+pub fn normalise<T>(items: &mut [T], prob: impl Fn(&mut T) -> &mut f64) {
+    let sum: f64 = items.iter_mut().map(|x| *prob(x)).sum();
     if (sum - 1.0).abs() > SUM_EXACT {
-        for e in row.iter_mut() {
-            e.1 /= sum;
-        }
-    }
-}
-
-/// [`normalise`] for a plain distribution.
-pub fn normalise_plain(d: &mut [f64]) {
-    let sum: f64 = d.iter().sum();
-    if (sum - 1.0).abs() > SUM_EXACT {
-        for p in d.iter_mut() {
-            *p /= sum;
+        for x in items.iter_mut() {
+            *prob(x) /= sum;
         }
     }
 }

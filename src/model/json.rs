@@ -11,7 +11,7 @@
 
 use serde::de::{MapAccess, SeqAccess};
 
-use super::limits::{MAX_FILE_BYTES, MAX_HORIZON};
+use super::limits::MAX_FILE_BYTES;
 use super::{Mdp, MdpParts, Problems, Reward, StepParts};
 use crate::lax::{Accept, Fields, Lax, Reader, syntax_problem};
 
@@ -321,8 +321,13 @@ fn convert(raw: Lax<RawModel>, r: &mut Reader) -> Option<MdpParts> {
     for p in sizes.into_problems().list() {
         r.problems.push(p.path.clone(), p.message.clone());
     }
-    if !ok || states.is_empty() || actions.is_empty() || horizon > MAX_HORIZON {
-        return (r.problems.is_empty()).then_some(MdpParts {
+    if !ok {
+        return None;
+    }
+    if states.is_empty() || actions.is_empty() {
+        // No table can be read without S and A; the checks of
+        // `Mdp::from_parts` report the empty list.
+        return Some(MdpParts {
             name,
             notes,
             horizon,

@@ -158,7 +158,7 @@ impl Mdp {
                 let mut prob = Vec::with_capacity(total);
                 offsets.push(0u32);
                 for mut row in sp.transitions {
-                    check::normalise(&mut row);
+                    check::normalise(&mut row, |e| &mut e.1);
                     for (n, p) in row {
                         next.push(n);
                         prob.push(p);
@@ -176,7 +176,7 @@ impl Mdp {
             })
             .collect();
         let mut start = parts.start;
-        check::normalise_plain(&mut start);
+        check::normalise(&mut start, |p| p);
         Mdp {
             name: parts.name,
             notes: parts.notes,
