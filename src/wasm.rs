@@ -59,8 +59,9 @@ pub fn check_model(text: &str) -> JsValue {
 }
 
 /// Solves a model file's text: the summary plus `optimal_value`, `v`
-/// (Float64Array, H·S, row-major [h][s]), `q` (Float64Array, H·S·A), `gaps`
-/// (Float64Array, H·S·A) and `policy` (Uint32Array, H·S); or the problems.
+/// (Float64Array, H·S, row-major [h][s]), `q` (Float64Array, H·S·A) and
+/// `policy` (Uint32Array, H·S); or the problems. (The gap of (h, s, a) is
+/// max(0, v − q); the page derives it for the step it shows.)
 #[wasm_bindgen(js_name = solveModel)]
 pub fn solve_model(text: &str) -> JsValue {
     let m = match crate::parse_model(text) {
@@ -230,6 +231,15 @@ fn now_seconds() -> f64 {
         / 1000.0
 }
 
+/// The wasm heap's size in bytes (its peak so far: wasm memory never shrinks).
+fn heap_bytes() -> u32 {
+    wasm_bindgen::memory()
+        .unchecked_into::<js_sys::WebAssembly::Memory>()
+        .buffer()
+        .unchecked_into::<js_sys::ArrayBuffer>()
+        .byte_length()
+}
+
 /// Runs the reference workloads (see `src/bench.rs`) and returns their
 /// figures as JSON, with the wasm heap size at the end (its peak: wasm
 /// memory never shrinks).
@@ -241,18 +251,10 @@ pub fn bench_figures(quick: bool) -> String {
         (100_000, 6, 5)
     };
     let mut figures = crate::bench::solve_figures(&now_seconds, reps);
-    let heap_after_solve = wasm_bindgen::memory()
-        .unchecked_into::<js_sys::WebAssembly::Memory>()
-        .buffer()
-        .unchecked_into::<js_sys::ArrayBuffer>()
-        .byte_length();
+    let heap_after_solve = heap_bytes();
     figures.extend(crate::bench::learn_figures(&now_seconds, k, None));
     figures.extend(crate::bench::replan_figures(&now_seconds, max_exp));
-    let heap = wasm_bindgen::memory()
-        .unchecked_into::<js_sys::WebAssembly::Memory>()
-        .buffer()
-        .unchecked_into::<js_sys::ArrayBuffer>()
-        .byte_length();
+    let heap = heap_bytes();
     serde_json::to_string_pretty(&serde_json::json!({
         "target": "wasm",
         "figures": figures,

@@ -2,7 +2,7 @@
 // cancel, and the results (charts with hover, table, visit heat map, exports,
 // presentation view).
 import { runExperiment } from './compute.js';
-import { el } from './dom.js';
+import { el, download, safeName } from './dom.js';
 import { drawChart, CanvasPen, SvgPen, PALETTE, nearestIndex } from './chart.js';
 import { short, grouped, valueColour, inkOn } from './format.js';
 
@@ -35,17 +35,6 @@ export const DEFAULT_SETUP = {
 
 const $ = (id) => document.getElementById(id);
 
-
-function download(name, text, type) {
-  const url = URL.createObjectURL(text instanceof Blob ? text : new Blob([text], { type }));
-  const a = el('a', null, { href: url, download: name });
-  document.body.append(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 1000);
-}
-
-const safeName = (s) => (s || 'burnin').replace(/[^\p{L}\p{N}._-]+/gu, '-').replace(/^-+|-+$/g, '').slice(0, 60) || 'burnin';
 
 export class ExperimentView {
   /** hooks: {model() → {text, name, generator}, changed(), saveResults(experimentText, resultsJson)} */

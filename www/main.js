@@ -8,6 +8,7 @@ import { Editor } from './editor.js';
 import { GraphView } from './graph.js';
 import * as store from './store.js';
 import { stamp } from './format.js';
+import { download, safeName } from './dom.js';
 import * as share from './share.js';
 
 const $ = (id) => document.getElementById(id);
@@ -152,17 +153,6 @@ async function openFile(file) {
   if (!file) return;
   if (file.size > 256 * 1024 * 1024) { notice(`${file.name} is larger than 256 MiB and was not opened.`, true); return; }
   await openText(await file.text(), file.name);
-}
-
-function download(name, text) {
-  const url = URL.createObjectURL(new Blob([text], { type: 'application/json' }));
-  const a = document.createElement('a');
-  a.href = url;
-  a.download = name;
-  document.body.append(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 1000);
 }
 
 // ---- saving ------------------------------------------------------------
@@ -342,7 +332,7 @@ async function start() {
   });
   $('open-file').addEventListener('click', () => $('file-input').click());
   $('file-input').addEventListener('change', (e) => { openFile(e.target.files[0]).catch(fail); e.target.value = ''; });
-  $('save-model').addEventListener('click', () => current && download(`${(current.name || 'model').replace(/[^\p{L}\p{N}._-]+/gu, '-')}.json`, current.text));
+  $('save-model').addEventListener('click', () => current && download(`${safeName(current.name, 'model')}.json`, current.text));
   $('share-link').addEventListener('click', () => copyShareLink().catch(fail));
   $('save-current').addEventListener('click', () => current && saveToLibrary({ kind: 'model', name: current.name, model: current.text }));
   $('step').addEventListener('input', showStep);

@@ -106,7 +106,8 @@ export function renderQ(wrap, sol, step) {
       const i = base + s * A + a;
       const t = (sol.q[i] - lo) / span;
       const td = el('td', cell(sol.q[i]));
-      td.append(el('small', `Δ ${cell(sol.gaps[i])}`));
+      // The gap Δ = V* − Q*, never below 0 (as the core's Solution::gaps).
+      td.append(el('small', `Δ ${cell(Math.max(0, sol.v[step * S + s] - sol.q[i]))}`));
       td.style.background = valueColour(t);
       td.style.color = inkOn(t);
       if (a === best) { td.classList.add('best'); td.title = 'optimal action'; }

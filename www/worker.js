@@ -57,7 +57,7 @@ self.onmessage = async (event) => {
     await ready;
     if (type === 'solve') {
       const result = solveModel(event.data.text);
-      const transfer = result.ok ? [result.v.buffer, result.q.buffer, result.gaps.buffer, result.policy.buffer] : [];
+      const transfer = result.ok ? [result.v.buffer, result.q.buffer, result.policy.buffer] : [];
       self.postMessage({ type: 'done', id, result }, transfer);
     } else if (type === 'check') {
       self.postMessage({ type: 'done', id, result: checkModel(event.data.text) });
