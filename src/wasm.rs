@@ -58,10 +58,28 @@ pub fn check_model(text: &str) -> JsValue {
     }
 }
 
+/// A solved model kept in the worker, so that Q* (H·S·A values) never has to
+/// cross to the page whole: the page asks for the step it shows.
+#[wasm_bindgen]
+pub struct SolvedModel {
+    q: ndarray::Array3<f64>,
+}
+
+#[wasm_bindgen]
+impl SolvedModel {
+    /// Q*_h(s, a) of step `h` (0-based), row-major [s][a] (Float64Array, S·A).
+    #[wasm_bindgen(js_name = qStep)]
+    pub fn q_step(&self, h: u32) -> Float64Array {
+        let h = (h as usize).min(self.q.dim().0.saturating_sub(1));
+        let step = self.q.index_axis(ndarray::Axis(0), h);
+        Float64Array::from(step.as_slice().expect("contiguous"))
+    }
+}
+
 /// Solves a model file's text: the summary plus `optimal_value`, `v`
-/// (Float64Array, H·S, row-major [h][s]), `q` (Float64Array, H·S·A) and
-/// `policy` (Uint32Array, H·S); or the problems. (The gap of (h, s, a) is
-/// max(0, v − q); the page derives it for the step it shows.)
+/// (Float64Array, H·S, row-major [h][s]), `policy` (Uint32Array, H·S) and
+/// `solved` (a [`SolvedModel`] holding Q*); or the problems. The gap of
+/// (h, s, a) is max(0, v − q); the page derives it for the step it shows.
 #[wasm_bindgen(js_name = solveModel)]
 pub fn solve_model(text: &str) -> JsValue {
     let m = match crate::parse_model(text) {
@@ -78,19 +96,10 @@ pub fn solve_model(text: &str) -> JsValue {
     set(&obj, "v", Float64Array::from(v.as_slice()));
     set(
         &obj,
-        "q",
-        Float64Array::from(sol.q.as_slice().expect("contiguous")),
-    );
-    set(
-        &obj,
-        "gaps",
-        Float64Array::from(sol.gaps().as_slice().expect("contiguous")),
-    );
-    set(
-        &obj,
         "policy",
         Uint32Array::from(sol.policy.as_slice().expect("contiguous")),
     );
+    set(&obj, "solved", SolvedModel { q: sol.q });
     obj.into()
 }
 

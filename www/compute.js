@@ -63,6 +63,9 @@ export function warmPool() {
   return Promise.all(pool.map((c) => c.request('check', { text: '{}' }).promise));
 }
 
+/** Q* of step h (Float64Array, S·A) of the model solved last. */
+export const qStep = (h) => quick.request('q-step', { h }).promise;
+
 /** Parses, validates and solves a model file's text. */
 export const solve = (text) => quick.request('solve', { text }).promise;
 

@@ -1,6 +1,6 @@
 // The page: chooses a model, asks the worker to solve it, and wires the
 // views, files, share links and the library together.
-import { solve, generate, warmPool, checkExperiment, onWorkerRestart } from './compute.js';
+import { solve, qStep, generate, warmPool, checkExperiment, onWorkerRestart } from './compute.js';
 import { renderFacts, renderProblems, renderOptimal, renderValues, renderQ } from './views.js';
 import { ExperimentView, ALGORITHMS, DEFAULT_SETUP } from './experiment.js';
 import { initGeneratorForm } from './generator-form.js';
@@ -57,7 +57,7 @@ function show(sol, text, source, generator = null) {
   const step = $('step');
   step.max = String(sol.horizon);
   step.value = '1';
-  showStep();
+  showStep().catch(fail);
   experiment.setSweepChoices(Boolean(generator));
   $('demo-select').value = source.kind === 'demo' ? source.name : '';
   editor.load(text);
@@ -65,11 +65,16 @@ function show(sol, text, source, generator = null) {
   document.title = `${current.name} — Burnin`;
 }
 
-function showStep() {
+/** Shows Q* and the gaps of the chosen step, fetched from the worker. */
+async function showStep() {
   if (!current) return;
+  const shown = current;
   const h = Number($('step').value) - 1;
   $('step-shown').textContent = String(h + 1);
-  renderQ($('q-wrap'), current.solution, h);
+  const q = await qStep(h);
+  // A newer model or step may have been chosen meanwhile.
+  if (current !== shown || Number($('step').value) - 1 !== h) return;
+  renderQ($('q-wrap'), current.solution, h, q);
 }
 
 /** Solves `text`; a bad file shows its problems and leaves the open model as it was. */
@@ -335,7 +340,7 @@ async function start() {
   $('save-model').addEventListener('click', () => current && download(`${safeName(current.name, 'model')}.json`, current.text));
   $('share-link').addEventListener('click', () => copyShareLink().catch(fail));
   $('save-current').addEventListener('click', () => current && saveToLibrary({ kind: 'model', name: current.name, model: current.text }));
-  $('step').addEventListener('input', showStep);
+  $('step').addEventListener('input', () => showStep().catch(fail));
   document.addEventListener('dragover', (e) => { e.preventDefault(); document.body.classList.add('dropping'); });
   document.addEventListener('dragleave', () => document.body.classList.remove('dropping'));
   document.addEventListener('drop', (e) => {

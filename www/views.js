@@ -84,13 +84,12 @@ export function renderValues(wrap, sol) {
   wrap.replaceChildren(table);
 }
 
-/** Q* and gaps at one step: rows states, columns actions. */
-export function renderQ(wrap, sol, step) {
+/** Q* and gaps at one step (`q`: Q* of that step, [s][a]): rows states, columns actions. */
+export function renderQ(wrap, sol, step, q) {
   const S = sol.states.length, A = sol.actions.length;
   const rows = Math.min(S, MAX_ROWS), cols = Math.min(A, MAX_COLS);
-  const base = step * S * A;
   let lo = Infinity, hi = -Infinity;
-  for (let i = base; i < base + S * A; i++) { const x = sol.q[i]; if (x < lo) lo = x; if (x > hi) hi = x; }
+  for (let i = 0; i < S * A; i++) { const x = q[i]; if (x < lo) lo = x; if (x > hi) hi = x; }
   const span = hi - lo || 1;
   const table = el('table');
   const head = el('tr');
@@ -103,11 +102,11 @@ export function renderQ(wrap, sol, step) {
     tr.append(el('th', sol.states[s]));
     const best = sol.policy[step * S + s];
     for (let a = 0; a < cols; a++) {
-      const i = base + s * A + a;
-      const t = (sol.q[i] - lo) / span;
-      const td = el('td', cell(sol.q[i]));
+      const i = s * A + a;
+      const t = (q[i] - lo) / span;
+      const td = el('td', cell(q[i]));
       // The gap Δ = V* − Q*, never below 0 (as the core's Solution::gaps).
-      td.append(el('small', `Δ ${cell(Math.max(0, sol.v[step * S + s] - sol.q[i]))}`));
+      td.append(el('small', `Δ ${cell(Math.max(0, sol.v[step * S + s] - q[i]))}`));
       td.style.background = valueColour(t);
       td.style.color = inkOn(t);
       if (a === best) { td.classList.add('best'); td.title = 'optimal action'; }

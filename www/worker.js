@@ -1,6 +1,7 @@
 // The compute worker: owns the wasm core; never touches the DOM.
 // Requests {type, id, ...}:
-//   solve {text}       → done {result}            (a model file's solution or problems)
+//   solve {text}       → done {result}            (a model file's solution, without Q*, or problems)
+//   q-step {h}         → done {result: Float64Array}  (Q* of step h of the last model solved)
 //   check {text}       → done {result}            (a model's summary or problems)
 //   check-experiment {text} → done {result}       ({ok: true} or problems)
 //   generate {spec}    → done {result}            (a model file's text or problems)
@@ -12,6 +13,8 @@ import init, { solveModel, checkModel, checkExperiment, generateModel, mergeShar
 
 const ready = init();
 const cancelled = new Set();
+/** Q* of the last model solved successfully, kept here for `q-step`. */
+let solved = null;
 /** Milliseconds of work between looks at the message queue. */
 const SLICE_MS = 20;
 
@@ -57,8 +60,16 @@ self.onmessage = async (event) => {
     await ready;
     if (type === 'solve') {
       const result = solveModel(event.data.text);
-      const transfer = result.ok ? [result.v.buffer, result.q.buffer, result.policy.buffer] : [];
+      if (result.ok) {
+        solved?.free();
+        solved = result.solved;
+        delete result.solved;
+      }
+      const transfer = result.ok ? [result.v.buffer, result.policy.buffer] : [];
       self.postMessage({ type: 'done', id, result }, transfer);
+    } else if (type === 'q-step') {
+      const q = solved.qStep(event.data.h);
+      self.postMessage({ type: 'done', id, result: q }, [q.buffer]);
     } else if (type === 'check') {
       self.postMessage({ type: 'done', id, result: checkModel(event.data.text) });
     } else if (type === 'check-experiment') {
