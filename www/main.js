@@ -77,11 +77,26 @@ async function showStep() {
   renderQ($('q-wrap'), current.solution, h, q);
 }
 
-/** Solves `text`; a bad file shows its problems and leaves the open model as it was. */
-async function openModel(text, label, source, generator = null) {
+// Opening is asynchronous (a fetch, then the worker), so two opens started
+// close together could finish in either order: only the latest one started
+// may show its model or its problems.
+let opens = 0;
+/** A ticket for a new open; `ticket()` is true while no newer open has started. */
+function claimOpen() {
+  const mine = ++opens;
+  return () => mine === opens;
+}
+
+/**
+ * Solves `text`; a bad file shows its problems and leaves the open model as
+ * it was. Resolves to true when shown, false for a bad file, and null when a
+ * newer open started meanwhile (nothing is shown then).
+ */
+async function openModel(text, label, source, generator = null, latest = claimOpen()) {
   setStatus(`Solving ${label}…`);
   const t0 = performance.now();
   const result = await solve(text);
+  if (!latest()) return null;
   if (!result.ok) {
     renderProblems($('problems'), label, result);
     setStatus(current ? `Still showing “${current.name}”.` : 'No model open.');
@@ -96,9 +111,12 @@ async function openModel(text, label, source, generator = null) {
 }
 
 async function openDemo(file) {
+  const latest = claimOpen();
   const resp = await fetch(`demo-models/${file}`);
   if (!resp.ok) throw new Error(`cannot load demo model ${file} (${resp.status})`);
-  return openModel(await resp.text(), file, { kind: 'demo', name: file });
+  const text = await resp.text();
+  if (!latest()) return null;
+  return openModel(text, file, { kind: 'demo', name: file }, null, latest);
 }
 
 // ---- files ------------------------------------------------------------
@@ -283,11 +301,12 @@ async function openShared(hash) {
   try {
     const p = await share.decode(hash);
     if (!p || typeof p.model !== 'string') throw new Error('the link holds no model');
-    if (await openModel(p.model, 'the shared link', { kind: 'link', name: 'shared link' })) {
+    const shown = await openModel(p.model, 'the shared link', { kind: 'link', name: 'shared link' });
+    if (shown) {
       if (p.setup) experiment.applySetup(p.setup);
       notice('Opened the model from a share link.');
-      return true;
     }
+    if (shown !== false) return shown;
   } catch (err) {
     notice(`This share link could not be opened: ${err.message}.`, true);
   }
@@ -357,13 +376,21 @@ async function start() {
   });
   window.addEventListener('hashchange', () => { const h = location.hash.slice(1); if (share.isShare(h)) openShared(h); });
 
+  // Each step falls through only when its model could not be shown; when the
+  // person opened something else meanwhile (null), that stays.
   const hash = location.hash.slice(1);
-  if (share.isShare(hash) && await openShared(hash)) return;
+  if (share.isShare(hash)) {
+    const shown = await openShared(hash);
+    if (shown !== false) return;
+  }
   const saved = store.loadAutosave();
-  if (saved && await openModel(saved.model, saved.source?.name || 'your last model', saved.source || { kind: 'file', name: 'autosave' }, saved.generator || null)) {
-    experiment.applySetup(saved.setup);
-    if (saved.results) experiment.setResults(saved.results);
-    return;
+  if (saved) {
+    const shown = await openModel(saved.model, saved.source?.name || 'your last model', saved.source || { kind: 'file', name: 'autosave' }, saved.generator || null);
+    if (shown) {
+      experiment.applySetup(saved.setup);
+      if (saved.results) experiment.setResults(saved.results);
+    }
+    if (shown !== false) return;
   }
   experiment.applySetup(DEFAULT_SETUP);
   await openDemo(index.default);

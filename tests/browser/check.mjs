@@ -41,7 +41,10 @@ async function check(name, body) {
     console.log(`ok   ${name}`);
   } catch (err) {
     failed++;
-    console.log(`FAIL ${name}\n     ${String(err.stack || err).split('\n').join('\n     ')}`);
+    // What the page said may explain a time-out better than the time-out does.
+    const status = await page.locator('#status').textContent({ timeout: 1000 }).catch(() => '(no status line)');
+    const why = [String(err.stack || err), `page status: ${status}`, ...problems].join('\n');
+    console.log(`FAIL ${name}\n     ${why.split('\n').join('\n     ')}`);
   } finally {
     await context.close();
   }
@@ -107,6 +110,28 @@ await check('every demo model shows the same optimal value as `burnin solve`', a
     const v = await shownValue(page, await demoName(file));
     assertEqual(v.data, expected[file], `${file} optimal value`);
   }
+});
+
+// Regression: a demo chosen while the previous one was still loading could be
+// overwritten by it when the two loads finished out of order (seen in CI).
+await check('a demo model chosen while another is loading wins over it', async (page) => {
+  await openPage(page);
+  const [slow, last] = [index.models[1], index.models[2]];
+  // The first choice's file arrives late, after the second choice is shown.
+  let release;
+  const held = new Promise((r) => { release = r; });
+  await page.route(`**/demo-models/${slow}`, async (route) => { await held; await route.continue(); });
+  await page.selectOption('#demo-select', slow);
+  await page.selectOption('#demo-select', last);
+  const v = await shownValue(page, await demoName(last));
+  assertEqual(v.data, expected[last], `${last} optimal value`);
+  const arrived = page.waitForEvent('requestfinished', (r) => r.url().endsWith(`/demo-models/${slow}`));
+  release();
+  await arrived;
+  // Time for the late file to be solved and shown, if the page were to show it.
+  await page.waitForTimeout(300);
+  assertEqual(await page.locator('[data-fact="name"]').textContent(), await demoName(last), 'model shown after the late file arrived');
+  assertEqual(await page.locator('#demo-select').inputValue(), last, 'demo chooser');
 });
 
 await check('the step slider shows Q* and gaps of the chosen step', async (page) => {
