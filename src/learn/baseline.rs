@@ -8,13 +8,15 @@
 
 use rand::Rng;
 
-use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting};
+use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting, Stale};
 
 pub struct EpsGreedy {
     set: Setting,
     epsilon: f64,
     counts: Vec<RowCounts>,
     plan: Plan,
+    /// Rows whose inputs changed since the last plan.
+    pub(super) stale: Stale,
 }
 
 impl EpsGreedy {
@@ -24,6 +26,7 @@ impl EpsGreedy {
             epsilon,
             counts: vec![RowCounts::default(); set.rows()],
             plan: Plan::new(&set),
+            stale: Stale::new(&set),
         }
     }
 }
@@ -32,14 +35,15 @@ impl Learner for EpsGreedy {
     fn begin_episode(&mut self, rng: &mut LearnRng) {
         let set = self.set;
         let counts = &self.counts;
-        self.plan.replan(&set, rng, |h, s, a, v_next, _| {
-            let c = &counts[set.row(h, s, a)];
-            if c.n == 0 {
-                0.0
-            } else {
-                c.mean_reward() + c.mean(v_next)
-            }
-        });
+        self.plan
+            .replan_stale(&set, rng, &mut self.stale, |h, s, a, v_next| {
+                let c = &counts[set.row(h, s, a)];
+                if c.n == 0 {
+                    0.0
+                } else {
+                    c.mean_reward() + c.mean(v_next)
+                }
+            });
     }
 
     fn policy(&self) -> PolicyView<'_> {
@@ -62,7 +66,11 @@ impl Learner for EpsGreedy {
     }
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
-        self.counts[self.set.row(h, s, a)].add(r, next);
+        let row = self.set.row(h, s, a);
+        if self.counts[row].add(r, next) {
+            self.stale.add_successor(h, s, a, next);
+        }
+        self.stale.mark(row);
     }
 
     fn model_updates(&self) -> u64 {

@@ -25,7 +25,7 @@
 //!   Complexity of Online Reinforcement Learning", COLT 2024,
 //!   arXiv:2307.13586, Algorithm 1.
 
-use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting};
+use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting, Stale};
 
 const C1: f64 = 460.0 / 9.0;
 const C2: f64 = 2.0 * std::f64::consts::SQRT_2;
@@ -56,6 +56,10 @@ pub struct Mvp {
     rebuilds: Vec<u32>,
     triggered: bool,
     plan: Plan,
+    /// Rows rebuilt, or whose successors' values changed, since the last plan.
+    pub(super) stale: Stale,
+    /// Every next state any batch of the row has held (registered in `stale`).
+    seen: Vec<Vec<u32>>,
 }
 
 impl Mvp {
@@ -77,6 +81,8 @@ impl Mvp {
             // The first episode starts from a plan (all Q = H).
             triggered: true,
             plan: Plan::new(&set),
+            stale: Stale::new(&set),
+            seen: vec![Vec::new(); set.rows()],
         }
     }
 
@@ -100,23 +106,27 @@ impl Learner for Mvp {
         let set = self.set;
         let (hh, l, scale) = (set.horizon as f64, self.l, self.scale);
         let frozen = &self.frozen;
-        self.plan.replan(&set, rng, |h, s, a, v_next, _| {
-            let b = &frozen[set.row(h, s, a)];
-            if b.size == 0 {
-                return hh;
-            }
-            let m = b.size as f64;
-            let (mut pv, mut pv2) = (0.0, 0.0);
-            for &(y, p) in &b.next {
-                let x = v_next[y as usize];
-                pv += p * x;
-                pv2 += p * x * x;
-            }
-            let var = (pv2 - pv * pv).max(0.0);
-            let rvar = (b.reward_second_moment - b.reward_mean * b.reward_mean).max(0.0);
-            let bonus = C1 * (var * l / m).sqrt() + C2 * (rvar * l / m).sqrt() + C3 * hh * l / m;
-            (b.reward_mean + pv + scale * bonus).min(hh)
-        });
+        // Only rebuilt rows and rows whose successors' values changed are
+        // recomputed; the others keep their Q (see `Stale`).
+        self.plan
+            .replan_stale(&set, rng, &mut self.stale, |h, s, a, v_next| {
+                let b = &frozen[set.row(h, s, a)];
+                if b.size == 0 {
+                    return hh;
+                }
+                let m = b.size as f64;
+                let (mut pv, mut pv2) = (0.0, 0.0);
+                for &(y, p) in &b.next {
+                    let x = v_next[y as usize];
+                    pv += p * x;
+                    pv2 += p * x * x;
+                }
+                let var = (pv2 - pv * pv).max(0.0);
+                let rvar = (b.reward_second_moment - b.reward_mean * b.reward_mean).max(0.0);
+                let bonus =
+                    C1 * (var * l / m).sqrt() + C2 * (rvar * l / m).sqrt() + C3 * hh * l / m;
+                (b.reward_mean + pv + scale * bonus).min(hh)
+            });
     }
 
     fn policy(&self) -> PolicyView<'_> {
@@ -147,6 +157,13 @@ impl Learner for Mvp {
             *cur = RowCounts::default();
             self.rebuilds[row] += 1;
             self.triggered = true;
+            self.stale.mark(row);
+            for &(y, _) in &self.frozen[row].next {
+                if !self.seen[row].contains(&y) {
+                    self.seen[row].push(y);
+                    self.stale.add_successor(h, s, a, y as usize);
+                }
+            }
         }
     }
 

@@ -23,7 +23,7 @@
 //!   (Algorithm 1; bonus_1 and bonus_2). The Bernstein–Freedman bonus is
 //!   written here as we recall it from the paper, from memory.
 
-use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting};
+use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting, Stale};
 
 pub struct Ucbvi {
     set: Setting,
@@ -37,6 +37,8 @@ pub struct Ucbvi {
     state_visits: Vec<u32>,
     q_prev: Vec<f64>,
     plan: Plan,
+    /// Rows whose inputs changed since the last plan.
+    pub(super) stale: Stale,
 }
 
 impl Ucbvi {
@@ -52,6 +54,7 @@ impl Ucbvi {
             state_visits: vec![0; set.horizon * set.states],
             q_prev: vec![set.horizon as f64; set.rows()],
             plan: Plan::new(&set),
+            stale: Stale::new(&set),
         }
     }
 }
@@ -69,44 +72,48 @@ impl Learner for Ucbvi {
             &self.hoeffding,
         );
         let (scale, bernstein) = (self.scale, self.bernstein);
-        self.plan.replan(&set, rng, |h, s, a, v_next, _| {
-            let row = set.row(h, s, a);
-            let c = &counts[row];
-            if c.n == 0 {
-                return q_prev[row];
-            }
-            let n = c.n as f64;
-            let (pv, var) = c.mean_var(v_next);
-            let bonus = if bernstein {
-                let correction = if h + 1 < set.horizon {
-                    let base = (h + 1) * set.states;
-                    let e: f64 = c
-                        .next
-                        .iter()
-                        .map(|&(y, k)| {
-                            let nv = visits[base + y as usize];
-                            let t = if nv == 0 {
-                                hh * hh
-                            } else {
-                                (cap / nv as f64).min(hh * hh)
-                            };
-                            k as f64 / n * t
-                        })
-                        .sum();
-                    (8.0 * e / n).sqrt()
+        // Only rows whose counts, successor values or (Bernstein) successor
+        // visit counts changed are recomputed; the rest keep their Q, which
+        // is what recomputing them would give (see `Stale`).
+        self.plan
+            .replan_stale(&set, rng, &mut self.stale, |h, s, a, v_next| {
+                let row = set.row(h, s, a);
+                let c = &counts[row];
+                if c.n == 0 {
+                    return q_prev[row];
+                }
+                let n = c.n as f64;
+                let (pv, var) = c.mean_var(v_next);
+                let bonus = if bernstein {
+                    let correction = if h + 1 < set.horizon {
+                        let base = (h + 1) * set.states;
+                        let e: f64 = c
+                            .next
+                            .iter()
+                            .map(|&(y, k)| {
+                                let nv = visits[base + y as usize];
+                                let t = if nv == 0 {
+                                    hh * hh
+                                } else {
+                                    (cap / nv as f64).min(hh * hh)
+                                };
+                                k as f64 / n * t
+                            })
+                            .sum();
+                        (8.0 * e / n).sqrt()
+                    } else {
+                        0.0
+                    };
+                    (8.0 * l * var / n).sqrt() + 14.0 * hh * l / (3.0 * n) + correction
                 } else {
-                    0.0
+                    hoeffding[row]
                 };
-                (8.0 * l * var / n).sqrt() + 14.0 * hh * l / (3.0 * n) + correction
-            } else {
-                hoeffding[row]
-            };
-            let q = (c.mean_reward() + pv + scale * bonus)
-                .min(hh)
-                .min(q_prev[row]);
-            q_prev[row] = q;
-            q
-        });
+                let q = (c.mean_reward() + pv + scale * bonus)
+                    .min(hh)
+                    .min(q_prev[row]);
+                q_prev[row] = q;
+                q
+            });
     }
 
     fn policy(&self) -> PolicyView<'_> {
@@ -123,10 +130,18 @@ impl Learner for Ucbvi {
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
         let row = self.set.row(h, s, a);
-        self.counts[row].add(r, next);
+        if self.counts[row].add(r, next) {
+            self.stale.add_successor(h, s, a, next);
+        }
+        self.stale.mark(row);
         let n = self.counts[row].n as f64;
         self.hoeffding[row] = 7.0 * self.set.horizon as f64 * self.l * (1.0 / n).sqrt();
         self.state_visits[h * self.set.states + s] += 1;
+        // The Bernstein bonus of the rows of step h − 1 that lead to s reads
+        // this count.
+        if self.bernstein && h > 0 {
+            self.stale.mark_users(h - 1, s);
+        }
     }
 
     fn model_updates(&self) -> u64 {
