@@ -13,7 +13,9 @@
 
 use serde::Serialize;
 
-use crate::experiment::{Context, Experiment, LearnerSpec, run_all};
+use std::sync::Arc;
+
+use crate::experiment::{Context, Experiment, LearnerSpec, Run, RunRecord};
 use crate::generate::Garnet;
 use crate::learn::Algorithm;
 use crate::solve::solve;
@@ -112,6 +114,23 @@ pub fn solve_figures(now: &dyn Fn() -> f64, reps: usize) -> Vec<Figure> {
     ]
 }
 
+/// Episodes per call when the workloads run, as the page's worker runs
+/// experiments: in short slices. (A wasm engine swaps in its optimised code
+/// for a function between calls, never during one, so a single call lasting
+/// the whole run would be timed mostly in baseline code, unlike the page.)
+const CHUNK: u64 = 1024;
+
+/// Every run of `ctx`, one after another, each advanced `CHUNK` episodes per call.
+fn run_in_chunks(ctx: &Arc<Context>) -> Vec<RunRecord> {
+    (0..ctx.runs())
+        .map(|i| {
+            let mut r = Run::new(Arc::clone(ctx), i);
+            while !r.advance(CHUNK) {}
+            r.finish()
+        })
+        .collect()
+}
+
 /// The learning workload's experiment: one learner, one seed, K episodes.
 pub fn learn_experiment(algorithm: Algorithm, episodes: u64) -> Experiment {
     let model = Garnet {
@@ -164,7 +183,7 @@ pub fn learn_figures(now: &dyn Fn() -> f64, episodes: u64, only: Option<&str>) -
         .map(|a| {
             let ctx = Context::new(learn_experiment(a.clone(), episodes));
             let t = now();
-            let records = run_all(&ctx);
+            let records = run_in_chunks(&ctx);
             let secs = now() - t;
             let r = &records[0];
             figure(
@@ -184,7 +203,7 @@ pub fn replan_figures(now: &dyn Fn() -> f64, max_exp: u32) -> Vec<Figure> {
             let k = 10u64.pow(e);
             let ctx = Context::new(learn_experiment(Algorithm::Mvp { bonus_scale: 1.0 }, k));
             let t = now();
-            let records = run_all(&ctx);
+            let records = run_in_chunks(&ctx);
             let secs = now() - t;
             figure(
                 &format!("mvp replans at K={k}"),

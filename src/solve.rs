@@ -307,34 +307,65 @@ impl Evaluator {
     /// 1 − ε and a uniformly random action with probability ε (ε = 0:
     /// deterministic; `greedy` = None: uniform, ε ignored).
     pub fn value(&mut self, m: &Mdp, greedy: Option<&[u32]>, epsilon: f64) -> f64 {
+        match greedy {
+            Some(g) if epsilon == 0.0 => self.deterministic(m, g),
+            Some(g) => self.mixed(m, Some(g), 1.0 - epsilon, epsilon),
+            None => self.mixed(m, None, 0.0, 1.0),
+        }
+    }
+
+    /// V^π of a deterministic policy: one sparse row per (h, s).
+    fn deterministic(&mut self, m: &Mdp, g: &[u32]) -> f64 {
         let (h_n, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
         let gamma = m.discount();
-        let (w_greedy, w_each) = match greedy {
-            Some(_) => (1.0 - epsilon, epsilon / a_n as f64),
-            None => (0.0, 1.0 / a_n as f64),
-        };
-        self.v_next.iter_mut().for_each(|x| *x = 0.0);
+        self.v_next.fill(0.0);
         for h in (0..h_n).rev() {
             let step = m.step(h);
+            let (offsets, next, prob) = step.csr();
             let r = step.mean_rewards();
-            for s in 0..s_n {
+            let (v, v_next) = (&mut self.v, &self.v_next);
+            for (s, (x, &a)) in v.iter_mut().zip(&g[h * s_n..(h + 1) * s_n]).enumerate() {
+                let row = s * a_n + a as usize;
+                let (lo, hi) = (offsets[row] as usize, offsets[row + 1] as usize);
+                *x = r[row] + gamma * expect(&next[lo..hi], &prob[lo..hi], v_next);
+            }
+            std::mem::swap(&mut self.v, &mut self.v_next);
+        }
+        start_value(m, &self.v_next)
+    }
+
+    /// V^π of the mixture that takes `greedy` with weight `w_greedy` and each
+    /// action with weight `w_random`/A: every action's Q once per (h, s).
+    fn mixed(&mut self, m: &Mdp, greedy: Option<&[u32]>, w_greedy: f64, w_random: f64) -> f64 {
+        let (h_n, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
+        let gamma = m.discount();
+        let w_each = w_random / a_n as f64;
+        self.v_next.fill(0.0);
+        for h in (0..h_n).rev() {
+            let step = m.step(h);
+            let (offsets, next, prob) = step.csr();
+            let r = step.mean_rewards();
+            let (v, v_next) = (&mut self.v, &self.v_next);
+            for (s, x) in v.iter_mut().enumerate() {
                 let q = |a: usize| {
                     let row = s * a_n + a;
-                    let (next, prob) = step.row(row);
-                    r[row] + gamma * expect(next, prob, &self.v_next)
+                    let (lo, hi) = (offsets[row] as usize, offsets[row + 1] as usize);
+                    r[row] + gamma * expect(&next[lo..hi], &prob[lo..hi], v_next)
                 };
-                let mut x = 0.0;
-                if w_each > 0.0 {
-                    for a in 0..a_n {
-                        x += w_each * q(a);
+                let mut acc = 0.0;
+                let mut q_greedy = 0.0;
+                let g = greedy.map(|g| g[h * s_n + s] as usize);
+                for a in 0..a_n {
+                    let qa = q(a);
+                    acc += w_each * qa;
+                    if Some(a) == g {
+                        q_greedy = qa;
                     }
                 }
-                if let Some(g) = greedy
-                    && w_greedy > 0.0
-                {
-                    x += w_greedy * q(g[h * s_n + s] as usize);
+                if g.is_some() && w_greedy > 0.0 {
+                    acc += w_greedy * q_greedy;
                 }
-                self.v[s] = x;
+                *x = acc;
             }
             std::mem::swap(&mut self.v, &mut self.v_next);
         }

@@ -251,18 +251,28 @@ fn heap_bytes() -> u32 {
 
 /// Runs the reference workloads (see `src/bench.rs`) and returns their
 /// figures as JSON, with the wasm heap size at the end (its peak: wasm
-/// memory never shrinks).
+/// memory never shrinks). With `only` (an algorithm key), only that
+/// learner's learning workload, as `burnin bench --only`.
 #[wasm_bindgen(js_name = benchFigures)]
-pub fn bench_figures(quick: bool) -> String {
+pub fn bench_figures(quick: bool, only: Option<String>) -> String {
     let (k, max_exp, reps) = if quick {
         (10_000, 5, 2)
     } else {
         (100_000, 6, 5)
     };
-    let mut figures = crate::bench::solve_figures(&now_seconds, reps);
+    let mut figures = Vec::new();
+    if only.is_none() {
+        figures.extend(crate::bench::solve_figures(&now_seconds, reps));
+    }
     let heap_after_solve = heap_bytes();
-    figures.extend(crate::bench::learn_figures(&now_seconds, k, None));
-    figures.extend(crate::bench::replan_figures(&now_seconds, max_exp));
+    figures.extend(crate::bench::learn_figures(
+        &now_seconds,
+        k,
+        only.as_deref(),
+    ));
+    if only.is_none() {
+        figures.extend(crate::bench::replan_figures(&now_seconds, max_exp));
+    }
     let heap = heap_bytes();
     serde_json::to_string_pretty(&serde_json::json!({
         "target": "wasm",

@@ -5,7 +5,7 @@ const ready = init();
 self.onmessage = async (e) => {
   try {
     await ready;
-    self.postMessage({ json: benchFigures(Boolean(e.data.quick)) });
+    self.postMessage({ json: benchFigures(Boolean(e.data.quick), e.data.only || undefined) });
   } catch (err) {
     self.postMessage({ error: String((err && err.message) || err) });
   }

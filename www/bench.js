@@ -5,4 +5,5 @@ worker.onmessage = (e) => {
   out.textContent = e.data.json || `failed: ${e.data.error}`;
   out.dataset.done = e.data.json ? 'ok' : 'error';
 };
-worker.postMessage({ quick: new URLSearchParams(location.search).has('quick') });
+const params = new URLSearchParams(location.search);
+worker.postMessage({ quick: params.has('quick'), only: params.get('only') });

@@ -30,7 +30,7 @@ use std::sync::Arc;
 
 use rand::SeedableRng;
 
-use crate::learn::{LearnRng, Learner, PolicyView};
+use crate::learn::{AnyLearner, LearnRng, Learner, PolicyView};
 use crate::sample::{self, Sampler};
 use crate::solve::{Evaluator, solve};
 
@@ -118,8 +118,13 @@ pub struct RunRecord {
 
 /// One (learner, seed) run in progress.
 pub struct Run {
+    learner: AnyLearner,
+    state: RunState,
+}
+
+/// Everything of a run but its learner.
+struct RunState {
     ctx: Arc<Context>,
-    learner: Box<dyn Learner>,
     rng: LearnRng,
     eval: Evaluator,
     done: u64,
@@ -153,38 +158,56 @@ impl Run {
             visits: vec![0; m.horizon() * m.n_states()],
         };
         Run {
-            eval: Evaluator::new(m),
             learner,
-            rng: LearnRng::seed_from_u64(seed),
-            done: 0,
-            cum_regret: 0.0,
-            cum_return: 0.0,
-            cached: None,
-            next_cp: 0,
-            record,
-            ctx,
+            state: RunState {
+                eval: Evaluator::new(m),
+                rng: LearnRng::seed_from_u64(seed),
+                done: 0,
+                cum_regret: 0.0,
+                cum_return: 0.0,
+                cached: None,
+                next_cp: 0,
+                record,
+                ctx,
+            },
         }
     }
 
     /// Episodes finished so far.
     pub fn episodes_done(&self) -> u64 {
-        self.done
+        self.state.done
     }
 
     /// Runs up to `max` more episodes; true when the run is complete.
     pub fn advance(&mut self, max: u64) -> bool {
+        let state = &mut self.state;
+        crate::learn::with_learner!(&mut self.learner, l => state.advance(l, max))
+    }
+
+    /// The record of the finished run.
+    pub fn finish(self) -> RunRecord {
+        let mut state = self.state;
+        assert_eq!(state.done, state.ctx.exp.episodes, "the run is complete");
+        state.record.model_updates = self.learner.model_updates();
+        state.record
+    }
+}
+
+impl RunState {
+    /// [`Run::advance`] for one kind of learner (compiled once per kind).
+    fn advance<L: Learner>(&mut self, learner: &mut L, max: u64) -> bool {
         let ctx = Arc::clone(&self.ctx);
         let m = &ctx.exp.model;
         let (h_n, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
         let k_total = ctx.exp.episodes;
         let end = (self.done + max).min(k_total);
         while self.done < end {
-            self.learner.begin_episode(&mut self.rng);
-            let version = self.learner.policy_version();
+            learner.begin_episode(&mut self.rng);
+            let version = learner.policy_version();
             let regret = match self.cached {
                 Some((v, r)) if v == version => r,
                 _ => {
-                    let value = match self.learner.policy() {
+                    let value = match learner.policy() {
                         PolicyView::Greedy(p) => self.eval.value(m, Some(p), 0.0),
                         PolicyView::Mixed { greedy, epsilon } => {
                             self.eval.value(m, Some(greedy), epsilon)
@@ -199,17 +222,17 @@ impl Run {
             let mut s = ctx.sampler.start(&mut self.rng);
             let mut ret = 0.0;
             for h in 0..h_n {
-                let a = self.learner.act(h, s, &mut self.rng);
+                let a = learner.act(h, s, &mut self.rng);
                 debug_assert!(a < a_n);
                 let row = s * a_n + a;
                 let r = sample::reward(&mut self.rng, m.step(h).reward(row));
                 let next = ctx.sampler.next(&mut self.rng, h, row);
-                self.learner.observe(h, s, a, r, next, &mut self.rng);
+                learner.observe(h, s, a, r, next, &mut self.rng);
                 self.record.visits[h * s_n + s] += 1;
                 ret += r;
                 s = next;
             }
-            self.learner.end_episode(&mut self.rng);
+            learner.end_episode(&mut self.rng);
             self.done += 1;
             self.cum_regret += regret;
             self.cum_return += ret;
@@ -226,13 +249,6 @@ impl Run {
             }
         }
         self.done == k_total
-    }
-
-    /// The record of the finished run.
-    pub fn finish(mut self) -> RunRecord {
-        assert_eq!(self.done, self.ctx.exp.episodes, "the run is complete");
-        self.record.model_updates = self.learner.model_updates();
-        self.record
     }
 }
 

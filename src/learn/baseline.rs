@@ -70,7 +70,7 @@ impl Learner for EpsGreedy {
         if self.counts[row].add(r, next) {
             self.stale.add_successor(h, s, a, next);
         }
-        self.stale.mark(row);
+        self.stale.mark(h, s, a);
     }
 
     fn model_updates(&self) -> u64 {

@@ -265,10 +265,13 @@ pub struct Stale {
     actions: usize,
     /// Recompute every row at every plan (the tests' reference).
     always: bool,
+    /// Per row (h, s, a): recompute it.
     row: Vec<bool>,
-    /// `users[h·S + y]`: the rows s·A + a of step h whose observed successors
+    /// Per (h, s), `[h·S + s]`: some row of the state is stale.
+    state: Vec<bool>,
+    /// `users[h·S + y]`: the rows (s, a) of step h whose observed successors
     /// include y (each listed once).
-    users: Vec<Vec<u32>>,
+    users: Vec<Vec<(u32, u32)>>,
 }
 
 impl Stale {
@@ -279,6 +282,7 @@ impl Stale {
             actions: set.actions,
             always: false,
             row: vec![true; set.rows()],
+            state: vec![true; set.horizon * set.states],
             users: vec![Vec::new(); set.horizon * set.states],
         }
     }
@@ -289,25 +293,36 @@ impl Stale {
         self.always = true;
     }
 
-    /// Row (h, s, a), `row` = [`Setting::row`], has new statistics.
+    /// Row (h, s, a) has new statistics.
     #[inline]
-    pub fn mark(&mut self, row: usize) {
-        self.row[row] = true;
+    pub fn mark(&mut self, h: usize, s: usize, a: usize) {
+        let hs = h * self.states + s;
+        self.row[hs * self.actions + a] = true;
+        self.state[hs] = true;
     }
 
     /// Row (h, s, a) has `y` as an observed successor for the first time.
     #[inline]
     pub fn add_successor(&mut self, h: usize, s: usize, a: usize, y: usize) {
-        self.users[h * self.states + y].push((s * self.actions + a) as u32);
+        self.users[h * self.states + y].push((s as u32, a as u32));
     }
 
     /// Every row of step `h` with `y` among its observed successors is stale.
     #[inline]
     pub fn mark_users(&mut self, h: usize, y: usize) {
-        let base = h * self.states * self.actions;
-        for &sa in &self.users[h * self.states + y] {
-            self.row[base + sa as usize] = true;
+        let base = h * self.states;
+        for &(s, a) in &self.users[base + y] {
+            let hs = base + s as usize;
+            self.row[hs * self.actions + a as usize] = true;
+            self.state[hs] = true;
         }
+    }
+
+    /// Every row of step `h` is stale.
+    fn mark_step(&mut self, h: usize) {
+        let (s_n, a_n) = (self.states, self.actions);
+        self.row[h * s_n * a_n..(h + 1) * s_n * a_n].fill(true);
+        self.state[h * s_n..(h + 1) * s_n].fill(true);
     }
 }
 
@@ -358,7 +373,8 @@ impl Plan {
     /// The same plan as [`Plan::replan`] computes, recomputing only the rows
     /// that `stale` marks (and clearing their marks); `q_of` must not draw
     /// from `rng`. When V_h(s) changes, the rows of step h − 1 that lead to
-    /// s become stale.
+    /// s become stale. Marking more rows than needed is harmless: a row
+    /// recomputed from unchanged inputs gets its old value back.
     ///
     /// A state none of whose rows is stale keeps its maximum and its tied
     /// maximisers, so only the tie-break is drawn again — the one draw
@@ -379,30 +395,36 @@ impl Plan {
             self.ties = vec![(0, 0); h_n * s_n];
         }
         let mut changed = false;
+        let mut moved = Vec::new();
         for h in (0..h_n).rev() {
             let (now, next) = self.v.split_at_mut((h + 1) * s_n);
             let v_next = &next[..s_n];
             let v_now = &mut now[h * s_n..];
-            for s in 0..s_n {
-                let base = set.row(h, s, 0);
-                let q = &mut self.q[base..base + a_n];
-                let flags = &mut stale.row[base..base + a_n];
-                if flags.iter().any(|&f| f) {
-                    for (a, (x, f)) in q.iter_mut().zip(flags.iter_mut()).enumerate() {
+            let hs = h * s_n..(h + 1) * s_n;
+            let rows = h * s_n * a_n..(h + 1) * s_n * a_n;
+            let q_h = &mut self.q[rows.clone()];
+            let flags_h = &mut stale.row[rows];
+            let states = stale.state[hs.clone()]
+                .iter_mut()
+                .zip(&mut self.ties[hs.clone()])
+                .zip(&mut self.policy[hs]);
+            for (s, ((state_stale, tie), slot)) in states.enumerate() {
+                let q = &mut q_h[s * a_n..(s + 1) * a_n];
+                if std::mem::take(state_stale) {
+                    let flags = &mut flags_h[s * a_n..(s + 1) * a_n];
+                    for (a, (x, f)) in q.iter_mut().zip(flags).enumerate() {
                         if std::mem::take(f) {
                             *x = q_of(h, s, a, v_next);
                         }
                     }
                     let (best, first, ties) = max_and_ties(q);
-                    self.ties[h * s_n + s] = (first as u32, ties);
+                    *tie = (first as u32, ties);
                     if best.to_bits() != v_now[s].to_bits() {
                         v_now[s] = best;
-                        if h > 0 {
-                            stale.mark_users(h - 1, s);
-                        }
+                        moved.push(s);
                     }
                 }
-                let (first, ties) = self.ties[h * s_n + s];
+                let (first, ties) = *tie;
                 let pick = if ties <= 1 {
                     first
                 } else {
@@ -413,12 +435,24 @@ impl Plan {
                         kth_maximiser(q, v_now[s], first as usize, k) as u32
                     }
                 };
-                let slot = &mut self.policy[h * s_n + s];
-                if *slot != pick {
-                    *slot = pick;
-                    changed = true;
+                // Without a branch: with random tie-breaks, whether the
+                // action changed is a coin flip the processor cannot predict.
+                changed |= *slot != pick;
+                *slot = pick;
+            }
+            // The rows of step h − 1 that lead to a state whose value moved
+            // are stale; when many moved, marking the whole step is cheaper
+            // than following each state's users (and marks a superset).
+            if h > 0 && !moved.is_empty() {
+                if moved.len() * 8 > s_n {
+                    stale.mark_step(h - 1);
+                } else {
+                    for &y in &moved {
+                        stale.mark_users(h - 1, y);
+                    }
                 }
             }
+            moved.clear();
         }
         if changed {
             self.version += 1;
@@ -535,24 +569,84 @@ impl Algorithm {
     }
 
     /// Builds the learner, or says why it cannot run in this setting.
-    pub fn build(&self, set: &Setting) -> Result<Box<dyn Learner>, String> {
+    pub fn build(&self, set: &Setting) -> Result<AnyLearner, String> {
         self.check_setting(set)?;
         Ok(match *self {
-            Algorithm::Mvp { bonus_scale } => Box::new(Mvp::new(*set, bonus_scale)),
+            Algorithm::Mvp { bonus_scale } => AnyLearner::Mvp(Mvp::new(*set, bonus_scale)),
             Algorithm::UcbviHoeffding { bonus_scale } => {
-                Box::new(Ucbvi::new(*set, bonus_scale, false))
+                AnyLearner::Ucbvi(Ucbvi::new(*set, bonus_scale, false))
             }
             Algorithm::UcbviBernstein { bonus_scale } => {
-                Box::new(Ucbvi::new(*set, bonus_scale, true))
+                AnyLearner::Ucbvi(Ucbvi::new(*set, bonus_scale, true))
             }
             Algorithm::QUcbHoeffding { bonus_scale } => {
-                Box::new(QUcbHoeffding::new(*set, bonus_scale))
+                AnyLearner::QUcbHoeffding(QUcbHoeffding::new(*set, bonus_scale))
             }
-            Algorithm::Psrl { prior } => Box::new(Psrl::new(*set, prior)),
-            Algorithm::Ucb1 { bonus_scale } => Box::new(Ucb1::new(set.actions, bonus_scale)),
-            Algorithm::EpsGreedy { epsilon } => Box::new(EpsGreedy::new(*set, epsilon)),
-            Algorithm::Uniform => Box::new(Uniform::new(set.actions)),
+            Algorithm::Psrl { prior } => AnyLearner::Psrl(Psrl::new(*set, prior)),
+            Algorithm::Ucb1 { bonus_scale } => {
+                AnyLearner::Ucb1(Ucb1::new(set.actions, bonus_scale))
+            }
+            Algorithm::EpsGreedy { epsilon } => {
+                AnyLearner::EpsGreedy(EpsGreedy::new(*set, epsilon))
+            }
+            Algorithm::Uniform => AnyLearner::Uniform(Uniform::new(set.actions)),
         })
+    }
+}
+
+/// Any learner, by value: the runner matches on it once per call and runs a
+/// loop compiled for that learner (static calls the compiler can inline),
+/// instead of two dynamic calls per step.
+pub enum AnyLearner {
+    Mvp(Mvp),
+    Ucbvi(Ucbvi),
+    QUcbHoeffding(QUcbHoeffding),
+    Psrl(Psrl),
+    Ucb1(Ucb1),
+    EpsGreedy(EpsGreedy),
+    Uniform(Uniform),
+}
+
+/// `with_learner!(any, l => expr)`: evaluates `expr` with `l` bound to the
+/// concrete learner inside `any` (a `&mut AnyLearner` or `&AnyLearner`).
+#[macro_export]
+#[doc(hidden)]
+macro_rules! with_learner {
+    ($any:expr, $l:ident => $body:expr) => {
+        match $any {
+            $crate::learn::AnyLearner::Mvp($l) => $body,
+            $crate::learn::AnyLearner::Ucbvi($l) => $body,
+            $crate::learn::AnyLearner::QUcbHoeffding($l) => $body,
+            $crate::learn::AnyLearner::Psrl($l) => $body,
+            $crate::learn::AnyLearner::Ucb1($l) => $body,
+            $crate::learn::AnyLearner::EpsGreedy($l) => $body,
+            $crate::learn::AnyLearner::Uniform($l) => $body,
+        }
+    };
+}
+pub use with_learner;
+
+impl Learner for AnyLearner {
+    fn begin_episode(&mut self, rng: &mut LearnRng) {
+        with_learner!(self, l => l.begin_episode(rng))
+    }
+    fn policy(&self) -> PolicyView<'_> {
+        with_learner!(self, l => l.policy())
+    }
+    fn policy_version(&self) -> u64 {
+        with_learner!(self, l => l.policy_version())
+    }
+    fn act(&mut self, h: usize, s: usize, rng: &mut LearnRng) -> usize {
+        with_learner!(self, l => l.act(h, s, rng))
+    }
+    fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, rng: &mut LearnRng) {
+        with_learner!(self, l => l.observe(h, s, a, r, next, rng))
+    }
+    fn end_episode(&mut self, rng: &mut LearnRng) {
+        with_learner!(self, l => l.end_episode(rng))
+    }
+    fn model_updates(&self) -> u64 {
+        with_learner!(self, l => l.model_updates())
     }
 }
 

@@ -157,7 +157,7 @@ impl Learner for Mvp {
             *cur = RowCounts::default();
             self.rebuilds[row] += 1;
             self.triggered = true;
-            self.stale.mark(row);
+            self.stale.mark(h, s, a);
             for &(y, _) in &self.frozen[row].next {
                 if !self.seen[row].contains(&y) {
                     self.seen[row].push(y);

@@ -133,7 +133,7 @@ impl Learner for Ucbvi {
         if self.counts[row].add(r, next) {
             self.stale.add_successor(h, s, a, next);
         }
-        self.stale.mark(row);
+        self.stale.mark(h, s, a);
         let n = self.counts[row].n as f64;
         self.hoeffding[row] = 7.0 * self.set.horizon as f64 * self.l * (1.0 / n).sqrt();
         self.state_visits[h * self.set.states + s] += 1;
