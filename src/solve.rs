@@ -316,59 +316,85 @@ impl Evaluator {
 
     /// V^π of a deterministic policy: one sparse row per (h, s).
     fn deterministic(&mut self, m: &Mdp, g: &[u32]) -> f64 {
-        let (h_n, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
-        let gamma = m.discount();
-        self.v_next.fill(0.0);
-        for h in (0..h_n).rev() {
-            let step = m.step(h);
-            let (offsets, next, prob) = step.csr();
-            let r = step.mean_rewards();
-            let (v, v_next) = (&mut self.v, &self.v_next);
-            for (s, (x, &a)) in v.iter_mut().zip(&g[h * s_n..(h + 1) * s_n]).enumerate() {
-                let row = s * a_n + a as usize;
-                let (lo, hi) = (offsets[row] as usize, offsets[row + 1] as usize);
-                *x = r[row] + gamma * expect(&next[lo..hi], &prob[lo..hi], v_next);
-            }
-            std::mem::swap(&mut self.v, &mut self.v_next);
-        }
-        start_value(m, &self.v_next)
+        let s_n = m.n_states();
+        self.backward(m, |h, s, q| q.of(g[h * s_n + s] as usize))
     }
 
     /// V^π of the mixture that takes `greedy` with weight `w_greedy` and each
     /// action with weight `w_random`/A: every action's Q once per (h, s).
     fn mixed(&mut self, m: &Mdp, greedy: Option<&[u32]>, w_greedy: f64, w_random: f64) -> f64 {
-        let (h_n, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
-        let gamma = m.discount();
+        let (s_n, a_n) = (m.n_states(), m.n_actions());
         let w_each = w_random / a_n as f64;
+        self.backward(m, |h, s, q| {
+            let mut acc = 0.0;
+            let mut q_greedy = 0.0;
+            let g = greedy.map(|g| g[h * s_n + s] as usize);
+            for a in 0..a_n {
+                let qa = q.of(a);
+                acc += w_each * qa;
+                if Some(a) == g {
+                    q_greedy = qa;
+                }
+            }
+            if g.is_some() && w_greedy > 0.0 {
+                acc += w_greedy * q_greedy;
+            }
+            acc
+        })
+    }
+
+    /// Backward induction of a policy's value: V_h(s) = `value_of(h, s, q)`,
+    /// where `q.of(a)` is r̄_h(s,a) + γ·Σ_{s'} P_h(s'|s,a)·V_{h+1}(s').
+    /// Returns Σ_s ρ(s)·V_0(s).
+    #[inline]
+    fn backward(
+        &mut self,
+        m: &Mdp,
+        mut value_of: impl FnMut(usize, usize, &RowValues) -> f64,
+    ) -> f64 {
+        let a_n = m.n_actions();
+        let gamma = m.discount();
         self.v_next.fill(0.0);
-        for h in (0..h_n).rev() {
+        for h in (0..m.horizon()).rev() {
             let step = m.step(h);
             let (offsets, next, prob) = step.csr();
-            let r = step.mean_rewards();
-            let (v, v_next) = (&mut self.v, &self.v_next);
-            for (s, x) in v.iter_mut().enumerate() {
-                let q = |a: usize| {
-                    let row = s * a_n + a;
-                    let (lo, hi) = (offsets[row] as usize, offsets[row + 1] as usize);
-                    r[row] + gamma * expect(&next[lo..hi], &prob[lo..hi], v_next)
-                };
-                let mut acc = 0.0;
-                let mut q_greedy = 0.0;
-                let g = greedy.map(|g| g[h * s_n + s] as usize);
-                for a in 0..a_n {
-                    let qa = q(a);
-                    acc += w_each * qa;
-                    if Some(a) == g {
-                        q_greedy = qa;
-                    }
-                }
-                if g.is_some() && w_greedy > 0.0 {
-                    acc += w_greedy * q_greedy;
-                }
-                *x = acc;
+            let mut q = RowValues {
+                rewards: step.mean_rewards(),
+                offsets,
+                next,
+                prob,
+                v_next: &self.v_next,
+                gamma,
+                base: 0,
+            };
+            for (s, x) in self.v.iter_mut().enumerate() {
+                q.base = s * a_n;
+                *x = value_of(h, s, &q);
             }
             std::mem::swap(&mut self.v, &mut self.v_next);
         }
         start_value(m, &self.v_next)
+    }
+}
+
+/// The action values of one state at one step, from the next step's values.
+struct RowValues<'a> {
+    rewards: &'a [f64],
+    offsets: &'a [u32],
+    next: &'a [u32],
+    prob: &'a [f64],
+    v_next: &'a [f64],
+    gamma: f64,
+    /// The state's first row, s·A.
+    base: usize,
+}
+
+impl RowValues<'_> {
+    /// Q(s, a) = r̄(s,a) + γ·P(·|s,a)·V_{h+1}.
+    #[inline]
+    fn of(&self, a: usize) -> f64 {
+        let row = self.base + a;
+        let (lo, hi) = (self.offsets[row] as usize, self.offsets[row + 1] as usize);
+        self.rewards[row] + self.gamma * expect(&self.next[lo..hi], &self.prob[lo..hi], self.v_next)
     }
 }
