@@ -252,9 +252,10 @@ fn heap_bytes() -> u32 {
 /// Runs the reference workloads (see `src/bench.rs`) and returns their
 /// figures as JSON, with the wasm heap size at the end (its peak: wasm
 /// memory never shrinks). With `only` (an algorithm key), only that
-/// learner's learning workload, as `burnin bench --only`.
+/// learner's learning workload, as `burnin bench --only`; with
+/// `no_learners`, none, as `burnin bench --no-learners`.
 #[wasm_bindgen(js_name = benchFigures)]
-pub fn bench_figures(quick: bool, only: Option<String>) -> String {
+pub fn bench_figures(quick: bool, only: Option<String>, no_learners: bool) -> String {
     let (k, max_exp, reps) = if quick {
         (10_000, 5, 2)
     } else {
@@ -265,11 +266,13 @@ pub fn bench_figures(quick: bool, only: Option<String>) -> String {
         figures.extend(crate::bench::solve_figures(&now_seconds, reps));
     }
     let heap_after_solve = heap_bytes();
-    figures.extend(crate::bench::learn_figures(
-        &now_seconds,
-        k,
-        only.as_deref(),
-    ));
+    if !no_learners {
+        figures.extend(crate::bench::learn_figures(
+            &now_seconds,
+            k,
+            only.as_deref(),
+        ));
+    }
     if only.is_none() {
         figures.extend(crate::bench::replan_figures(&now_seconds, max_exp));
     }

@@ -62,8 +62,11 @@ enum Command {
         #[arg(long)]
         quick: bool,
         /// Only this learner's learning workload (an algorithm key).
-        #[arg(long, value_name = "ALGORITHM")]
+        #[arg(long, value_name = "ALGORITHM", conflicts_with = "no_learners")]
         only: Option<String>,
+        /// The solver and replanning workloads, without the learners'.
+        #[arg(long)]
+        no_learners: bool,
     },
     /// Merge the shard files of one experiment into its results.
     Merge {
@@ -235,7 +238,11 @@ fn main() -> ExitCode {
             shard,
         } => run(&file, json, csv.as_deref(), threads, shard.as_deref()),
         Command::Merge { files, json, csv } => merge(&files, json, csv.as_deref()),
-        Command::Bench { quick, only } => bench(quick, only.as_deref()),
+        Command::Bench {
+            quick,
+            only,
+            no_learners,
+        } => bench(quick, only.as_deref(), no_learners),
         Command::Tidy { file } => load(&file).and_then(|m| emit(&burnin::write_model(&m))),
         Command::Generate { kind, seed, output } => generate(kind, seed, output.as_deref()),
     };
@@ -735,7 +742,7 @@ fn peak_rss() -> Option<u64> {
     Some(kb * 1024)
 }
 
-fn bench(quick: bool, only: Option<&str>) -> Result<(), Failure> {
+fn bench(quick: bool, only: Option<&str>, no_learners: bool) -> Result<(), Failure> {
     use burnin::bench;
     let start = std::time::Instant::now();
     let now = move || start.elapsed().as_secs_f64();
@@ -749,7 +756,9 @@ fn bench(quick: bool, only: Option<&str>) -> Result<(), Failure> {
         figures.extend(bench::solve_figures(&now, reps));
     }
     let solve_rss = peak_rss();
-    figures.extend(bench::learn_figures(&now, k, only));
+    if !no_learners {
+        figures.extend(bench::learn_figures(&now, k, only));
+    }
     if only.is_none() {
         figures.extend(bench::replan_figures(&now, max_exp));
     }

@@ -1,20 +1,62 @@
-// Opens www/bench.html in headless Chromium and prints the wasm figures.
-// Run by `cargo xtask bench` with BURNIN_URL, BURNIN_CHROMIUM and BURNIN_QUICK;
-// BURNIN_ONLY=<algorithm key> runs only that learner's workload.
+// The browser side of `cargo xtask bench`: the wasm core's workloads in
+// headless Chromium (www/bench.html), with each learner's workload run in
+// rounds interleaved with the native CLI's, so that the two sides of every
+// ratio are measured within seconds of each other on a shared machine.
+//
+// Environment (set by `cargo xtask bench`):
+//   BURNIN_URL, BURNIN_CHROMIUM  the served www/ and the browser
+//   BURNIN_QUICK                 smaller workloads
+//   BURNIN_ONLY                  one learner only, no native runs (a quick look)
+//   BURNIN_CLI                   the native `burnin` binary, for the interleaved rounds
+//   BURNIN_PAIRS                 learners to run in rounds (comma-separated keys)
+//   BURNIN_ROUNDS                rounds per learner (3; 1 for psrl, whose runs are long)
+//   BURNIN_PAIRS_OUT             where to write one TSV line per round:
+//                                key, native rate, wasm rate, native checksum, wasm checksum
+//   BURNIN_NUMPY                 "python3 SCRIPT MODEL EPISODES": run once per
+//                                ucbvi-hoeffding round; its rate is a sixth column
+// Prints the wasm figures (JSON) of the solver and replanning workloads, or
+// of BURNIN_ONLY's learner.
+import { execFileSync } from 'node:child_process';
+import { writeFileSync } from 'node:fs';
 import { chromium } from 'playwright-core';
 
+const env = process.env;
+const quick = Boolean(env.BURNIN_QUICK);
 const browser = await chromium.launch({
-  executablePath: process.env.BURNIN_CHROMIUM || '/usr/bin/chromium',
+  executablePath: env.BURNIN_CHROMIUM || '/usr/bin/chromium',
   args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
     '--disable-background-networking', '--disable-component-update', '--disable-sync'],
 });
 const page = await browser.newPage();
 page.on('pageerror', (e) => { console.error(e.message); process.exit(1); });
-const query = new URLSearchParams();
-if (process.env.BURNIN_QUICK) query.set('quick', '');
-if (process.env.BURNIN_ONLY) query.set('only', process.env.BURNIN_ONLY);
-await page.goto(`${process.env.BURNIN_URL}/bench.html?${query}`);
-await page.waitForSelector('#out[data-done]', { timeout: 3_000_000 });
-if ((await page.getAttribute('#out', 'data-done')) !== 'ok') { console.error(await page.textContent('#out')); process.exit(1); }
-process.stdout.write(await page.textContent('#out'));
+await page.goto(`${env.BURNIN_URL}/bench.html?manual`);
+const wasm = (request) => page.evaluate((r) => window.benchRun(r), request);
+/** The best rate and the checksum of the one learning figure in `json`. */
+const learned = (json) => {
+  const f = JSON.parse(json).figures.find((x) => x.name.startsWith('learn '));
+  return { rate: f.best, note: f.note };
+};
+
+if (env.BURNIN_ONLY) {
+  process.stdout.write(await wasm({ quick, only: env.BURNIN_ONLY }));
+} else {
+  process.stdout.write(await wasm({ quick, noLearners: true }));
+  const lines = [];
+  for (const key of (env.BURNIN_PAIRS || '').split(',').filter(Boolean)) {
+    const rounds = key === 'psrl' ? 1 : Number(env.BURNIN_ROUNDS || 3);
+    for (let i = 0; i < rounds; i++) {
+      const args = ['bench', '--only', key, ...(quick ? ['--quick'] : [])];
+      const n = learned(execFileSync(env.BURNIN_CLI, args, { encoding: 'utf8' }));
+      const w = learned(await wasm({ quick, only: key }));
+      const row = [key, n.rate, w.rate, n.note, w.note];
+      if (key === 'ucbvi-hoeffding' && env.BURNIN_NUMPY) {
+        const [cmd, ...rest] = env.BURNIN_NUMPY.split(' ');
+        row.push(JSON.parse(execFileSync(cmd, rest, { encoding: 'utf8' })).episodes_per_second);
+      }
+      lines.push(row.join('\t'));
+      console.error(row.join('\t'));
+    }
+  }
+  writeFileSync(env.BURNIN_PAIRS_OUT, lines.join('\n') + '\n');
+}
 await browser.close();
