@@ -2,8 +2,8 @@
 //! rewards from their distributions.
 //!
 //! **Invariant:** every draw uses the generator passed in and only `f64`
-//! draws from it, and transcendental functions go through `libm`, so a seed
-//! gives the same trajectory natively and in wasm.
+//! and `u64` draws from it, and transcendental functions go through `libm`,
+//! so a seed gives the same trajectory natively and in wasm.
 //!
 //! # References
 //! - M. D. Vose, "A linear algorithm for generating random numbers with a
@@ -12,6 +12,11 @@
 //! - G. Marsaglia and W. W. Tsang, "A simple method for generating gamma
 //!   variables", *ACM Transactions on Mathematical Software* 26(3), 2000,
 //!   363–372.
+//! - G. Marsaglia and W. W. Tsang, "The Ziggurat Method for Generating
+//!   Random Variables", *Journal of Statistical Software* 5(8), 2000 (the
+//!   exponential and normal draws; tables rebuilt here from its r and v;
+//!   the layer and the position come from disjoint bits of one 64-bit
+//!   draw, our choice, so the two are independent).
 
 use rand::Rng;
 
@@ -143,14 +148,124 @@ impl Sampler {
     }
 }
 
-/// A standard normal draw (Marsaglia's polar method).
-fn normal<R: Rng>(rng: &mut R) -> f64 {
+/// The layers of a ziggurat for a decreasing density f on [0, ∞)
+/// (Marsaglia & Tsang 2000, "The Ziggurat Method"): N layers of equal area
+/// v, x[0] = v/f(r), x[1] = r, x[i+1] = f⁻¹(v/x[i] + f(x[i])), x[N] = 0,
+/// with y[i] = f(x[i]) (y[0] = 0, y[N] = f(0) = 1). Built once with `libm`,
+/// so the tables are the same bits natively and in wasm.
+struct Ziggurat {
+    x: Vec<f64>,
+    y: Vec<f64>,
+}
+
+impl Ziggurat {
+    fn new(n: usize, r: f64, v: f64, f: impl Fn(f64) -> f64, f_inv: impl Fn(f64) -> f64) -> Self {
+        let mut x = vec![0.0; n + 1];
+        let mut y = vec![0.0; n + 1];
+        x[0] = v / f(r);
+        x[1] = r;
+        y[1] = f(r);
+        for i in 1..n - 1 {
+            x[i + 1] = f_inv(v / x[i] + y[i]);
+            y[i + 1] = f(x[i + 1]);
+        }
+        y[n] = 1.0;
+        Ziggurat { x, y }
+    }
+
+    /// One try from a u64 draw `bits`: the layer from its low bits (mask
+    /// `n − 1`), the position from its top 53 bits. `Ok(x)` when the point
+    /// falls in the layer's part that is surely under the curve; otherwise
+    /// `Err((layer, x))` for the caller to finish (the tail for layer 0, the
+    /// wedge for the others).
+    #[inline]
+    fn fast(&self, bits: u64) -> Result<f64, (usize, f64)> {
+        let i = (bits as usize) & (self.x.len() - 2);
+        let x = (bits >> 11) as f64 * (1.0 / (1u64 << 53) as f64) * self.x[i];
+        if x < self.x[i + 1] {
+            Ok(x)
+        } else {
+            Err((i, x))
+        }
+    }
+
+    /// Whether a point at `x` in the wedge of layer `i` lies under f.
+    #[inline]
+    fn wedge<R: Rng>(&self, rng: &mut R, i: usize, x: f64, f: impl Fn(f64) -> f64) -> bool {
+        let y = self.y[i] + rng.random::<f64>() * (self.y[i + 1] - self.y[i]);
+        y < f(x)
+    }
+}
+
+/// The exponential ziggurat: 256 layers, r and v from Marsaglia & Tsang (2000).
+fn exp_tables() -> &'static Ziggurat {
+    static T: std::sync::OnceLock<Ziggurat> = std::sync::OnceLock::new();
+    T.get_or_init(|| {
+        Ziggurat::new(
+            256,
+            7.697_117_470_131_05,
+            3.949_659_822_581_557e-3,
+            |x| libm::exp(-x),
+            |y| -libm::log(y),
+        )
+    })
+}
+
+/// The half-normal ziggurat: 128 layers, r and v from Marsaglia & Tsang (2000).
+fn normal_tables() -> &'static Ziggurat {
+    static T: std::sync::OnceLock<Ziggurat> = std::sync::OnceLock::new();
+    T.get_or_init(|| {
+        Ziggurat::new(
+            128,
+            3.442_619_855_899,
+            9.912_563_035_262_17e-3,
+            |x| libm::exp(-0.5 * x * x),
+            |y| (-2.0 * libm::log(y)).sqrt(),
+        )
+    })
+}
+
+/// A standard exponential draw (ziggurat; the tail beyond r is r plus a
+/// fresh exponential, −ln U).
+pub fn exponential<R: Rng>(rng: &mut R) -> f64 {
+    let t = exp_tables();
     loop {
-        let u = 2.0 * rng.random::<f64>() - 1.0;
-        let v = 2.0 * rng.random::<f64>() - 1.0;
-        let s = u * u + v * v;
-        if s > 0.0 && s < 1.0 {
-            return u * (-2.0 * libm::log(s) / s).sqrt();
+        match t.fast(rng.next_u64()) {
+            Ok(x) => return x,
+            Err((0, _)) => return t.x[1] - libm::log(1.0 - rng.random::<f64>()),
+            Err((i, x)) => {
+                if t.wedge(rng, i, x, |x| libm::exp(-x)) {
+                    return x;
+                }
+            }
+        }
+    }
+}
+
+/// A standard normal draw (ziggurat; bit 8 of the draw gives the sign; the
+/// tail beyond r by Marsaglia's method, as in Marsaglia & Tsang 2000).
+pub fn normal<R: Rng>(rng: &mut R) -> f64 {
+    let t = normal_tables();
+    loop {
+        let bits = rng.next_u64();
+        let sign = if bits & 0x100 == 0 { 1.0 } else { -1.0 };
+        match t.fast(bits) {
+            Ok(x) => return sign * x,
+            Err((0, _)) => {
+                let r = t.x[1];
+                loop {
+                    let a = -libm::log(1.0 - rng.random::<f64>()) / r;
+                    let b = -libm::log(1.0 - rng.random::<f64>());
+                    if 2.0 * b > a * a {
+                        return sign * (r + a);
+                    }
+                }
+            }
+            Err((i, x)) => {
+                if t.wedge(rng, i, x, |x| libm::exp(-0.5 * x * x)) {
+                    return sign * x;
+                }
+            }
         }
     }
 }
@@ -159,8 +274,8 @@ fn normal<R: Rng>(rng: &mut R) -> f64 {
 /// boost Gamma(shape + 1)·U^(1/shape) from the same paper).
 pub fn gamma<R: Rng>(rng: &mut R, shape: f64) -> f64 {
     if shape == 1.0 {
-        // Gamma(1, 1) is the standard exponential: −ln U (U uniform on (0, 1]).
-        return -libm::log(1.0 - rng.random::<f64>());
+        // Gamma(1, 1) is the standard exponential.
+        return exponential(rng);
     }
     if shape < 1.0 {
         let u: f64 = rng.random();
@@ -205,5 +320,84 @@ pub fn reward<R: Rng>(rng: &mut R, r: &Reward) -> f64 {
         }
         Reward::Uniform(lo, hi) => lo + (hi - lo) * rng.random::<f64>(),
         Reward::Beta(a, b) => beta(rng, a, b),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use rand::SeedableRng;
+
+    use super::*;
+    use crate::learn::LearnRng;
+
+    /// The Kolmogorov–Smirnov statistic D of `xs` against the CDF `cdf`.
+    fn ks(mut xs: Vec<f64>, cdf: impl Fn(f64) -> f64) -> f64 {
+        xs.sort_by(f64::total_cmp);
+        let n = xs.len() as f64;
+        xs.iter()
+            .enumerate()
+            .map(|(i, &x)| {
+                let c = cdf(x);
+                (c - i as f64 / n).max((i + 1) as f64 / n - c)
+            })
+            .fold(0.0, f64::max)
+    }
+
+    /// 1.9495/√n: the large-sample critical value of D at α = 0.001 (the
+    /// Kolmogorov distribution, as tabulated e.g. by F. J. Massey, "The
+    /// Kolmogorov-Smirnov Test for Goodness of Fit", JASA 46, 1951; from
+    /// memory).
+    fn ks_critical(n: usize) -> f64 {
+        1.9495 / (n as f64).sqrt()
+    }
+
+    const N: usize = 1_000_000;
+
+    #[test]
+    fn ziggurat_layers_have_equal_areas() {
+        // Marsaglia & Tsang (2000): every layer of a ziggurat has area v.
+        for (t, v) in [
+            (exp_tables(), 3.949_659_822_581_557e-3),
+            (normal_tables(), 9.912_563_035_262_17e-3),
+        ] {
+            let n = t.x.len() - 1;
+            for i in 1..n {
+                let area = t.x[i] * (t.y[i + 1] - t.y[i]);
+                assert!((area - v).abs() < 1e-6 * v, "layer {i} of {n}: area {area}");
+            }
+            assert_eq!(t.x[n], 0.0);
+        }
+    }
+
+    #[test]
+    fn exponential_draws_follow_the_exponential_law() {
+        let mut rng = LearnRng::seed_from_u64(3);
+        let xs: Vec<f64> = (0..N).map(|_| exponential(&mut rng)).collect();
+        let d = ks(xs.clone(), |x| 1.0 - libm::exp(-x));
+        assert!(d < ks_critical(N), "D = {d}");
+        // The tail beyond r = 7.697 (probability e^−r ≈ 4.5e-4) is reached.
+        assert!(xs.iter().any(|&x| x > 7.697_117_470_131_05));
+    }
+
+    #[test]
+    fn normal_draws_follow_the_normal_law() {
+        let mut rng = LearnRng::seed_from_u64(4);
+        let xs: Vec<f64> = (0..N).map(|_| normal(&mut rng)).collect();
+        let d = ks(xs.clone(), |x| {
+            0.5 * libm::erfc(-x / std::f64::consts::SQRT_2)
+        });
+        assert!(d < ks_critical(N), "D = {d}");
+        let neg = xs.iter().filter(|&&x| x < 0.0).count();
+        // Sign balance: within 4 standard deviations (√N/2) of N/2.
+        assert!((neg as f64 - N as f64 / 2.0).abs() < 4.0 * (N as f64).sqrt() / 2.0);
+    }
+
+    #[test]
+    fn gamma_draws_follow_the_gamma_law() {
+        // Gamma(3) has CDF 1 − e^−x (1 + x + x²/2) (derived by hand).
+        let mut rng = LearnRng::seed_from_u64(5);
+        let xs: Vec<f64> = (0..N).map(|_| gamma(&mut rng, 3.0)).collect();
+        let d = ks(xs, |x| 1.0 - libm::exp(-x) * (1.0 + x + 0.5 * x * x));
+        assert!(d < ks_critical(N), "D = {d}");
     }
 }
