@@ -227,3 +227,49 @@ pub fn replan_figures(now: &dyn Fn() -> f64, max_exp: u32) -> Vec<Figure> {
         })
         .collect()
 }
+
+/// Which workloads a benchmark run does.
+#[derive(Debug, Clone, Copy)]
+pub struct Selection<'a> {
+    /// Smaller workloads (K = 10 000, replanning to 10⁵, two solver repetitions).
+    pub quick: bool,
+    /// Only this learner's learning workload (an algorithm key).
+    pub only: Option<&'a str>,
+    /// No learning workloads.
+    pub no_learners: bool,
+}
+
+/// Runs the selected workloads and returns the report both front ends
+/// print: `{"target", "figures", "peak_memory_bytes",
+/// "peak_memory_after_solve_bytes"}`, with `memory` read after the solver
+/// workload and at the end (the front end knows how to measure it).
+pub fn report(
+    target: &str,
+    now: &dyn Fn() -> f64,
+    memory: &dyn Fn() -> Option<u64>,
+    sel: Selection,
+) -> String {
+    let (k, max_exp, reps) = if sel.quick {
+        (10_000, 5, 2)
+    } else {
+        (100_000, 6, 5)
+    };
+    let mut figures = Vec::new();
+    if sel.only.is_none() {
+        figures.extend(solve_figures(now, reps));
+    }
+    let after_solve = memory();
+    if !sel.no_learners {
+        figures.extend(learn_figures(now, k, sel.only));
+    }
+    if sel.only.is_none() {
+        figures.extend(replan_figures(now, max_exp));
+    }
+    serde_json::to_string_pretty(&serde_json::json!({
+        "target": target,
+        "figures": figures,
+        "peak_memory_bytes": memory(),
+        "peak_memory_after_solve_bytes": after_solve,
+    }))
+    .expect("plain values")
+}

@@ -256,32 +256,10 @@ fn heap_bytes() -> u32 {
 /// `no_learners`, none, as `burnin bench --no-learners`.
 #[wasm_bindgen(js_name = benchFigures)]
 pub fn bench_figures(quick: bool, only: Option<String>, no_learners: bool) -> String {
-    let (k, max_exp, reps) = if quick {
-        (10_000, 5, 2)
-    } else {
-        (100_000, 6, 5)
+    let sel = crate::bench::Selection {
+        quick,
+        only: only.as_deref(),
+        no_learners,
     };
-    let mut figures = Vec::new();
-    if only.is_none() {
-        figures.extend(crate::bench::solve_figures(&now_seconds, reps));
-    }
-    let heap_after_solve = heap_bytes();
-    if !no_learners {
-        figures.extend(crate::bench::learn_figures(
-            &now_seconds,
-            k,
-            only.as_deref(),
-        ));
-    }
-    if only.is_none() {
-        figures.extend(crate::bench::replan_figures(&now_seconds, max_exp));
-    }
-    let heap = heap_bytes();
-    serde_json::to_string_pretty(&serde_json::json!({
-        "target": "wasm",
-        "figures": figures,
-        "peak_memory_bytes": heap,
-        "peak_memory_after_solve_bytes": heap_after_solve,
-    }))
-    .expect("plain values")
+    crate::bench::report("wasm", &now_seconds, &|| Some(heap_bytes().into()), sel)
 }

@@ -743,30 +743,12 @@ fn peak_rss() -> Option<u64> {
 }
 
 fn bench(quick: bool, only: Option<&str>, no_learners: bool) -> Result<(), Failure> {
-    use burnin::bench;
     let start = std::time::Instant::now();
     let now = move || start.elapsed().as_secs_f64();
-    let (k, max_exp, reps) = if quick {
-        (10_000, 5, 2)
-    } else {
-        (100_000, 6, 5)
+    let sel = burnin::bench::Selection {
+        quick,
+        only,
+        no_learners,
     };
-    let mut figures = Vec::new();
-    if only.is_none() {
-        figures.extend(bench::solve_figures(&now, reps));
-    }
-    let solve_rss = peak_rss();
-    if !no_learners {
-        figures.extend(bench::learn_figures(&now, k, only));
-    }
-    if only.is_none() {
-        figures.extend(bench::replan_figures(&now, max_exp));
-    }
-    let out = serde_json::json!({
-        "target": "native",
-        "figures": figures,
-        "peak_memory_bytes": peak_rss(),
-        "peak_memory_after_solve_bytes": solve_rss,
-    });
-    emit(&(serde_json::to_string_pretty(&out).expect("plain values") + "\n"))
+    emit(&(burnin::bench::report("native", &now, &peak_rss, sel) + "\n"))
 }
