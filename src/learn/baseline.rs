@@ -67,10 +67,7 @@ impl Learner for EpsGreedy {
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
         let row = self.set.row(h, s, a);
-        if self.counts[row].add(r, next) {
-            self.stale.add_successor(h, s, a, next);
-        }
-        self.stale.mark(h, s, a);
+        self.stale.count(&mut self.counts[row], h, s, a, r, next);
     }
 
     fn model_updates(&self) -> u64 {

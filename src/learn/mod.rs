@@ -301,6 +301,17 @@ impl Stale {
         self.state[hs] = true;
     }
 
+    /// Counts a visit of (h, s, a) with reward `r` and next state `next` in
+    /// the row's counts `c`, and marks the row stale (registering `next` as
+    /// a successor the first time it is seen).
+    #[inline]
+    pub fn count(&mut self, c: &mut RowCounts, h: usize, s: usize, a: usize, r: f64, next: usize) {
+        if c.add(r, next) {
+            self.add_successor(h, s, a, next);
+        }
+        self.mark(h, s, a);
+    }
+
     /// Row (h, s, a) has `y` as an observed successor for the first time.
     #[inline]
     pub fn add_successor(&mut self, h: usize, s: usize, a: usize, y: usize) {
@@ -339,6 +350,9 @@ pub struct Plan {
     /// many actions attain the maximum, as last computed (only for
     /// [`Plan::replan_stale`]).
     ties: Vec<(u32, u32)>,
+    /// Scratch for [`Plan::replan_stale`]: the states of one step whose value
+    /// moved (kept to spare an allocation per plan).
+    moved: Vec<usize>,
     version: u64,
     updates: u64,
 }
@@ -351,6 +365,7 @@ impl Plan {
             policy: vec![u32::MAX; set.horizon * set.states],
             q: Vec::new(),
             ties: Vec::new(),
+            moved: Vec::new(),
             version: 0,
             updates: 0,
         }
@@ -395,7 +410,7 @@ impl Plan {
             self.ties = vec![(0, 0); h_n * s_n];
         }
         let mut changed = false;
-        let mut moved = Vec::new();
+        let moved = &mut self.moved;
         for h in (0..h_n).rev() {
             let (now, next) = self.v.split_at_mut((h + 1) * s_n);
             let v_next = &next[..s_n];
@@ -447,7 +462,7 @@ impl Plan {
                 if moved.len() * 8 > s_n {
                     stale.mark_step(h - 1);
                 } else {
-                    for &y in &moved {
+                    for &y in moved.iter() {
                         stale.mark_users(h - 1, y);
                     }
                 }

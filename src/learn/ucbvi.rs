@@ -130,10 +130,7 @@ impl Learner for Ucbvi {
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
         let row = self.set.row(h, s, a);
-        if self.counts[row].add(r, next) {
-            self.stale.add_successor(h, s, a, next);
-        }
-        self.stale.mark(h, s, a);
+        self.stale.count(&mut self.counts[row], h, s, a, r, next);
         let n = self.counts[row].n as f64;
         self.hoeffding[row] = 7.0 * self.set.horizon as f64 * self.l * (1.0 / n).sqrt();
         self.state_visits[h * self.set.states + s] += 1;
