@@ -378,6 +378,9 @@ impl Evaluator {
 }
 
 /// The action values of one state at one step, from the next step's values.
+/// It holds the step's CSR slices rather than calling `Step::row` per row:
+/// that reloads them through the `Step` each time, 2–3% more instructions
+/// on the regret evaluation of every episode (measured with callgrind).
 struct RowValues<'a> {
     rewards: &'a [f64],
     offsets: &'a [u32],
