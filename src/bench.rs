@@ -17,7 +17,7 @@ use std::sync::Arc;
 
 use crate::experiment::{Context, Experiment, LearnerSpec, Run, RunRecord};
 use crate::generate::Garnet;
-use crate::learn::Algorithm;
+use crate::learn::{ALGORITHMS, Algorithm, AlgorithmKind};
 use crate::solve::solve;
 
 /// One measured figure.
@@ -167,17 +167,14 @@ pub fn learn_experiment(algorithm: Algorithm, episodes: u64) -> Experiment {
     }
 }
 
-/// The learners benchmarked, with the bonus scales of the demo experiment.
+/// The learners benchmarked: every algorithm of the catalogue that runs on
+/// an MDP, at its default parameter.
 pub fn bench_learners() -> Vec<Algorithm> {
-    vec![
-        Algorithm::Mvp { bonus_scale: 1.0 },
-        Algorithm::UcbviHoeffding { bonus_scale: 1.0 },
-        Algorithm::UcbviBernstein { bonus_scale: 1.0 },
-        Algorithm::QUcbHoeffding { bonus_scale: 1.0 },
-        Algorithm::Psrl { prior: 1.0 },
-        Algorithm::EpsGreedy { epsilon: 0.1 },
-        Algorithm::Uniform,
-    ]
+    ALGORITHMS
+        .iter()
+        .filter(|i| !i.bandit_only)
+        .map(|i| Algorithm::new(i.kind))
+        .collect()
 }
 
 /// Episodes per second of each learner on the learning workload.
@@ -186,7 +183,7 @@ pub fn learn_figures(now: &dyn Fn() -> f64, episodes: u64, only: Option<&str>) -
         .into_iter()
         .filter(|a| only.is_none_or(|k| a.key() == k))
         .map(|a| {
-            let ctx = Context::new(learn_experiment(a.clone(), episodes));
+            let ctx = Context::new(learn_experiment(a, episodes));
             // Repeated while the repetitions so far took under LEARN_SECONDS
             // (at most LEARN_REPS): a shared machine's noise moves single
             // runs by a quarter, and the ratios compare best against best.
@@ -214,7 +211,7 @@ pub fn replan_figures(now: &dyn Fn() -> f64, max_exp: u32) -> Vec<Figure> {
     (3..=max_exp)
         .map(|e| {
             let k = 10u64.pow(e);
-            let ctx = Context::new(learn_experiment(Algorithm::Mvp { bonus_scale: 1.0 }, k));
+            let ctx = Context::new(learn_experiment(Algorithm::new(AlgorithmKind::Mvp), k));
             let t = now();
             let records = run_in_chunks(&ctx);
             let secs = now() - t;

@@ -1,5 +1,10 @@
-//! Burnin's core: finite-horizon tabular MDPs, their exact solution, model
-//! generators, and (in later modules) learners and regret experiments.
+//! Burnin's core: finite-horizon tabular MDPs (`model`), their exact solution
+//! (`solve`), seeded generators (`generate`), online learners and their
+//! catalogue (`learn`), regret experiments with exact expected regret, their
+//! summaries and shards (`experiment`), statistics and published bounds
+//! (`stats`, `theory`), the file-format plumbing (`format`) and the reference
+//! benchmarks (`bench`). The CLI (`src/bin/burnin.rs`) and the wasm bindings
+//! (`wasm`, for the page) are front ends over it.
 //!
 //! **Invariant:** nothing in the core touches JS types, the file system, the
 //! clock, threads or an unseeded random generator; every random draw comes
@@ -7,8 +12,8 @@
 
 pub mod bench;
 pub mod experiment;
+pub mod format;
 pub mod generate;
-pub mod lax;
 pub mod learn;
 pub mod model;
 pub mod sample;

@@ -21,14 +21,7 @@
 
 use serde::{Deserialize, Serialize};
 
-/// The problem sizes a bound depends on.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Sizes {
-    pub s: f64,
-    pub a: f64,
-    pub h: f64,
-    pub delta: f64,
-}
+use crate::learn::Setting;
 
 /// A published regret bound, as an order in K.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -45,107 +38,132 @@ pub struct Bound {
     pub values: Vec<f64>,
 }
 
+/// S, A, H of a setting as numbers.
+fn sah(set: &Setting) -> (f64, f64, f64) {
+    (set.states as f64, set.actions as f64, set.horizon as f64)
+}
+
 fn curve(
-    z: Sizes,
+    set: &Setting,
     ks: &[u64],
     leading: impl Fn(f64) -> f64,
     lower: impl Fn(f64) -> f64,
 ) -> Vec<f64> {
+    let h = set.horizon as f64;
     ks.iter()
         .map(|&k| {
             let k = k as f64;
-            (leading(k) + lower(k)).min(z.h * k)
+            (leading(k) + lower(k)).min(h * k)
         })
         .collect()
 }
 
-/// √(S·A·H³·K): the minimax rate (lower bound shape and MVP's bound).
-pub fn minimax(z: Sizes, k: f64) -> f64 {
-    (z.s * z.a * z.h * z.h * z.h * k).sqrt()
-}
-
-/// The lower-bound shape min(√(S·A·H³·K), H·K) of Domingues et al. (2021).
-pub fn lower_bound(z: Sizes, ks: &[u64]) -> Bound {
+fn bound(source: &str, formula: &str, logs: &str, burn_in: Option<f64>, values: Vec<f64>) -> Bound {
     Bound {
-        source: "Domingues, Ménard, Kaufmann & Valko, ALT 2021 (Theorem 9, as we recall it)".into(),
-        formula: "Ω(min{√(S·A·H³·K), H·K})".into(),
-        logs_dropped: "none".into(),
-        burn_in: None,
-        values: curve(z, ks, |k| minimax(z, k), |_| 0.0),
+        source: source.into(),
+        formula: formula.into(),
+        logs_dropped: logs.into(),
+        burn_in,
+        values,
     }
 }
 
-/// The published bound of a learner, by its algorithm key.
-pub fn bound(key: &str, z: Sizes, ks: &[u64]) -> Option<Bound> {
-    let (s, a, h) = (z.s, z.a, z.h);
-    let b =
-        |source: &str, formula: &str, logs: &str, burn_in: Option<f64>, values: Vec<f64>| Bound {
-            source: source.into(),
-            formula: formula.into(),
-            logs_dropped: logs.into(),
-            burn_in,
-            values,
-        };
-    Some(match key {
-        "mvp" => b(
-            "Zhang, Chen, Lee & Du, COLT 2024, arXiv:2307.13586, Theorem 1",
-            "min{√(S·A·H³·K), H·K}",
-            "log⁵(S·A·H·K/δ) inside the root",
-            None,
-            curve(z, ks, |k| minimax(z, k), |_| 0.0),
-        ),
-        "ucbvi-hoeffding" => {
-            // Azar et al. (2017), Theorem 1, in the time-inhomogeneous form:
-            // √(S·A·H⁴·K) for the Hoeffding bonus (T = K·H; an extra √H over
-            // the Bernstein bonus), lower order S²·A·H³ (from memory).
-            let lower = s * s * a * h * h * h;
-            b(
-                "Azar, Osband & Munos, ICML 2017, Theorem 1 (time-inhomogeneous form, from memory)",
-                "√(S·A·H⁴·K) + S²·A·H³",
-                "L = ln(S·A·H·K/δ)",
-                Some(lower * lower / (s * a * h.powi(4))),
-                curve(z, ks, |k| (s * a * h.powi(4) * k).sqrt(), |_| lower),
-            )
-        }
-        "ucbvi-bernstein" => {
-            // Table 1 of arXiv:2307.13586 lists UCBVI at √(S·A·H³·K) + S²·A·H³
-            // with burn-in S³·A·H³ (from memory).
-            let lower = s * s * a * h * h * h;
-            b(
-                "Azar, Osband & Munos, ICML 2017, Theorem 2; Table 1 of arXiv:2307.13586 (from memory)",
-                "√(S·A·H³·K) + S²·A·H³",
-                "L = ln(S·A·H·K/δ)",
-                Some(lower * lower / (s * a * h * h * h)),
-                curve(z, ks, |k| minimax(z, k), |_| lower),
-            )
-        }
-        "q-ucb-hoeffding" => b(
-            "Jin, Allen-Zhu, Bubeck & Jordan, NeurIPS 2018, Theorem 1",
-            "√(H⁴·S·A·T) = √(S·A·H⁵·K)",
-            "ι = ln(S·A·T/δ) inside the root",
-            None,
-            curve(z, ks, |k| (s * a * h.powi(5) * k).sqrt(), |_| 0.0),
-        ),
-        "psrl" => b(
-            "Osband, Russo & Van Roy, NeurIPS 2013, Theorem 1 (Bayesian regret)",
-            "H·S·√(A·T) = √(S²·A·H³·K)",
-            "√(log(S·A·T)) factor",
-            None,
-            curve(z, ks, |k| (s * s * a * h * h * h * k).sqrt(), |_| 0.0),
-        ),
-        "ucb1" => b(
-            "Auer, Cesa-Bianchi & Fischer, Machine Learning 2002 (gap-free form √(A·K·ln K), common practice)",
-            "√(A·K)",
-            "√(ln K)",
-            None,
-            curve(z, ks, |k| (a * k).sqrt(), |_| 0.0),
-        ),
-        _ => return None,
-    })
+/// √(S·A·H³·K): the minimax rate (lower bound shape and MVP's bound).
+pub fn minimax(set: &Setting, k: f64) -> f64 {
+    let (s, a, h) = sah(set);
+    (s * a * h * h * h * k).sqrt()
+}
+
+/// The lower-bound shape min(√(S·A·H³·K), H·K) of Domingues et al. (2021).
+pub fn lower_bound(set: &Setting, ks: &[u64]) -> Bound {
+    bound(
+        "Domingues, Ménard, Kaufmann & Valko, ALT 2021 (Theorem 9, as we recall it)",
+        "Ω(min{√(S·A·H³·K), H·K})",
+        "none",
+        None,
+        curve(set, ks, |k| minimax(set, k), |_| 0.0),
+    )
+}
+
+/// MVP: Zhang, Chen, Lee & Du (2024), Theorem 1.
+pub fn mvp(set: &Setting, ks: &[u64]) -> Bound {
+    bound(
+        "Zhang, Chen, Lee & Du, COLT 2024, arXiv:2307.13586, Theorem 1",
+        "min{√(S·A·H³·K), H·K}",
+        "log⁵(S·A·H·K/δ) inside the root",
+        None,
+        curve(set, ks, |k| minimax(set, k), |_| 0.0),
+    )
+}
+
+/// UCBVI with the Hoeffding bonus: Azar et al. (2017), Theorem 1, in the
+/// time-inhomogeneous form: √(S·A·H⁴·K) (T = K·H; an extra √H over the
+/// Bernstein bonus), lower order S²·A·H³ (from memory).
+pub fn ucbvi_hoeffding(set: &Setting, ks: &[u64]) -> Bound {
+    let (s, a, h) = sah(set);
+    let lower = s * s * a * h * h * h;
+    bound(
+        "Azar, Osband & Munos, ICML 2017, Theorem 1 (time-inhomogeneous form, from memory)",
+        "√(S·A·H⁴·K) + S²·A·H³",
+        "L = ln(S·A·H·K/δ)",
+        Some(lower * lower / (s * a * h.powi(4))),
+        curve(set, ks, |k| (s * a * h.powi(4) * k).sqrt(), |_| lower),
+    )
+}
+
+/// UCBVI with the Bernstein bonus: Table 1 of arXiv:2307.13586 lists UCBVI
+/// at √(S·A·H³·K) + S²·A·H³ with burn-in S³·A·H³ (from memory).
+pub fn ucbvi_bernstein(set: &Setting, ks: &[u64]) -> Bound {
+    let (s, a, h) = sah(set);
+    let lower = s * s * a * h * h * h;
+    bound(
+        "Azar, Osband & Munos, ICML 2017, Theorem 2; Table 1 of arXiv:2307.13586 (from memory)",
+        "√(S·A·H³·K) + S²·A·H³",
+        "L = ln(S·A·H·K/δ)",
+        Some(lower * lower / (s * a * h * h * h)),
+        curve(set, ks, |k| minimax(set, k), |_| lower),
+    )
+}
+
+/// Optimistic Q-learning with the Hoeffding bonus: Jin et al. (2018), Theorem 1.
+pub fn q_ucb_hoeffding(set: &Setting, ks: &[u64]) -> Bound {
+    let (s, a, h) = sah(set);
+    bound(
+        "Jin, Allen-Zhu, Bubeck & Jordan, NeurIPS 2018, Theorem 1",
+        "√(H⁴·S·A·T) = √(S·A·H⁵·K)",
+        "ι = ln(S·A·T/δ) inside the root",
+        None,
+        curve(set, ks, |k| (s * a * h.powi(5) * k).sqrt(), |_| 0.0),
+    )
+}
+
+/// PSRL: Osband, Russo & Van Roy (2013), Theorem 1 (Bayesian regret).
+pub fn psrl(set: &Setting, ks: &[u64]) -> Bound {
+    let (s, a, h) = sah(set);
+    bound(
+        "Osband, Russo & Van Roy, NeurIPS 2013, Theorem 1 (Bayesian regret)",
+        "H·S·√(A·T) = √(S²·A·H³·K)",
+        "√(log(S·A·T)) factor",
+        None,
+        curve(set, ks, |k| (s * s * a * h * h * h * k).sqrt(), |_| 0.0),
+    )
+}
+
+/// UCB1: Auer, Cesa-Bianchi & Fischer (2002), in its gap-free form.
+pub fn ucb1(set: &Setting, ks: &[u64]) -> Bound {
+    let (_, a, _) = sah(set);
+    bound(
+        "Auer, Cesa-Bianchi & Fischer, Machine Learning 2002 (gap-free form √(A·K·ln K), common practice)",
+        "√(A·K)",
+        "√(ln K)",
+        None,
+        curve(set, ks, |k| (a * k).sqrt(), |_| 0.0),
+    )
 }
 
 /// Order of the episodes an ε-accurate policy needs: S·A·H³/ε² (the PAC
 /// bound of arXiv:2307.13586, log factors dropped).
-pub fn pac_episodes(z: Sizes, epsilon: f64) -> f64 {
-    z.s * z.a * z.h * z.h * z.h / (epsilon * epsilon)
+pub fn pac_episodes(set: &Setting, epsilon: f64) -> f64 {
+    let (s, a, h) = sah(set);
+    s * a * h * h * h / (epsilon * epsilon)
 }

@@ -170,7 +170,7 @@ fn a_sweep_expands_into_one_experiment_per_value() {
     let p = e.points();
     assert_eq!(
         p[1].learners[1].algorithm,
-        burnin::learn::Algorithm::EpsGreedy { epsilon: 0.5 }
+        burnin::learn::Algorithm::with(burnin::learn::AlgorithmKind::EpsGreedy, 0.5)
     );
     // Learners without the parameter are untouched.
     assert_eq!(p[1].learners[0], e.learners[0]);
@@ -193,7 +193,7 @@ fn bad_sweeps_name_the_value() {
     assert_eq!(
         parse_experiment(&text, None).unwrap_err().lines(),
         [
-            "sweep.parameter: unknown parameter \"gamma\"; known ones are states, actions, horizon, bonus_scale, epsilon, delta"
+            "sweep.parameter: unknown parameter \"gamma\"; known ones here are delta, bonus_scale, prior, epsilon, states, actions, successors, horizon"
         ]
     );
     let mut v = sweep_experiment(json!({"parameter": "bonus_scale", "values": [0.1]}));
@@ -307,4 +307,56 @@ fn run_seeds_fit_in_53_bits() {
     }
     assert_ne!(run_seed(1, 0, 0), run_seed(1, 0, 1));
     assert_ne!(run_seed(1, 0, 0), run_seed(1, 1, 0));
+}
+
+/// Any numeric generator parameter can be swept, not only S, A and H: each
+/// point's model is exactly the generator's model at that value (derived
+/// from the definition of a sweep), and `generator.NAME` reaches a generator
+/// parameter whose name a learner parameter also has.
+#[test]
+fn a_sweep_varies_any_numeric_generator_parameter() {
+    use burnin::generate::GeneratorSpec;
+    let exp = |generator: Value, parameter: &str, values: Value| {
+        json!({
+            "format": "burnin-experiment", "version": 1,
+            "generator": generator, "episodes": 50, "seeds": 2,
+            "sweep": {"parameter": parameter, "values": values},
+            "learners": [{"algorithm": "eps-greedy", "epsilon": 0.2}]
+        })
+        .to_string()
+    };
+    let grid = json!({"kind": "grid", "width": 3, "height": 2, "horizon": 5});
+    let e = parse_experiment(&exp(grid.clone(), "slip", json!([0.0, 0.3])), None).unwrap();
+    for (p, slip) in e.points().iter().zip([0.0, 0.3]) {
+        let mut g = grid.clone();
+        g["slip"] = json!(slip);
+        let want = GeneratorSpec::from_json(&g, "generator")
+            .unwrap()
+            .generate("generator")
+            .unwrap();
+        assert_eq!(p.model, want, "slip {slip}");
+    }
+    let lb = json!({"kind": "lower-bound", "horizon": 8, "depth": 1});
+    let e = parse_experiment(
+        &exp(lb.clone(), "generator.epsilon", json!([0.1, 0.4])),
+        None,
+    )
+    .unwrap();
+    let pts = e.points();
+    assert_ne!(pts[0].model, pts[1].model);
+    // The learners' ε is untouched by the generator's.
+    assert_eq!(pts[1].learners, e.learners);
+    // A value out of the parameter's range names the value and the parameter.
+    let err = parse_experiment(&exp(grid, "slip", json!([0.1, 1.5])), None).unwrap_err();
+    assert_eq!(
+        err.lines(),
+        ["sweep.values[1].generator.slip: 1.5 is not a probability in [0, 1]"]
+    );
+    // A parameter the generator does not have.
+    let err = parse_experiment(&exp(lb, "width", json!([2])), None).unwrap_err();
+    assert!(
+        err.lines()[0]
+            .starts_with("sweep.parameter: unknown parameter \"width\"; known ones here are delta"),
+        "{err}"
+    );
 }

@@ -6,9 +6,9 @@ use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-use clap::{Args, Parser, Subcommand};
+use clap::{Parser, Subcommand};
 
-use burnin::generate::{Bandit, Garnet, Grid, Lock, LowerBound, ParamError, RiverSwim};
+use burnin::generate::{GENERATORS, GeneratorSpec, ParamError, ParamKind, ParamValue, Values};
 use burnin::model::limits::MAX_FILE_BYTES;
 use burnin::{Mdp, Problems};
 
@@ -89,7 +89,7 @@ enum Command {
     /// Write a generated model file to standard output.
     Generate {
         #[command(subcommand)]
-        kind: Kind,
+        kind: GeneratorArgs,
         /// Seed of the generator's random draws.
         #[arg(long, default_value_t = 1, global = true)]
         seed: u64,
@@ -99,122 +99,89 @@ enum Command {
     },
 }
 
-#[derive(Subcommand)]
-enum Kind {
-    /// Random sparse model, Garnet-style (Archibald, McKinnon & Thomas 1995).
-    Random(RandomArgs),
-    /// River-swim-style chain (after Strehl & Littman 2008).
-    River(RiverArgs),
-    /// Grid with slip probability and a paying far corner.
-    Grid(GridArgs),
-    /// Combination lock: one right action per step, a wrong one jams it.
-    Lock(LockArgs),
-    /// Hard instance of the minimax lower bound (Domingues et al., ALT 2021).
-    LowerBound(LowerBoundArgs),
-    /// Bernoulli multi-armed bandit (S = 1, H = 1).
-    Bandit(BanditArgs),
+/// `burnin generate KIND --param …`: one subcommand per generator of the
+/// core's catalogue, one option per parameter (its name with dashes), with
+/// the catalogue's defaults and help.
+struct GeneratorArgs {
+    values: Values,
 }
 
-#[derive(Args)]
-struct RandomArgs {
-    #[arg(long, default_value_t = 10)]
-    states: usize,
-    #[arg(long, default_value_t = 3)]
-    actions: usize,
-    /// Next states per (state, action), drawn without replacement.
-    #[arg(long, default_value_t = 3)]
-    successors: usize,
-    #[arg(long, default_value_t = 10)]
-    horizon: usize,
-    /// Draw a fresh table for every step.
-    #[arg(long)]
-    time_dependent: bool,
-    /// Fixed rewards (the mean) instead of Bernoulli ones.
-    #[arg(long)]
-    fixed_rewards: bool,
+fn option_name(param: &str) -> String {
+    param.replace('_', "-")
 }
 
-#[derive(Args)]
-struct RiverArgs {
-    #[arg(long, default_value_t = 6)]
-    states: usize,
-    #[arg(long, default_value_t = 20)]
-    horizon: usize,
-    /// Probability that swimming moves one state upstream.
-    #[arg(long, default_value_t = 0.3)]
-    p_forward: f64,
-    /// Probability that swimming is pushed one state back.
-    #[arg(long, default_value_t = 0.1)]
-    p_back: f64,
-    /// Reward for drifting at the left bank.
-    #[arg(long, default_value_t = 0.005)]
-    small_reward: f64,
-    /// Reward for swimming at the far end.
-    #[arg(long, default_value_t = 1.0)]
-    big_reward: f64,
+impl clap::Subcommand for GeneratorArgs {
+    fn augment_subcommands(mut cmd: clap::Command) -> clap::Command {
+        use clap::{Arg, ArgAction, value_parser};
+        for g in GENERATORS {
+            let mut sub = clap::Command::new(g.kind).about(g.about);
+            for p in g.params {
+                let arg = Arg::new(p.name).long(option_name(p.name)).help(p.help);
+                let arg = match p.kind {
+                    ParamKind::Whole => arg
+                        .value_name("N")
+                        .value_parser(value_parser!(u64))
+                        .default_value((p.default as u64).to_string()),
+                    ParamKind::Number => arg
+                        .value_name("X")
+                        .value_parser(value_parser!(f64))
+                        .allow_negative_numbers(true)
+                        .default_value(p.default.to_string()),
+                    ParamKind::Flag => arg.action(ArgAction::SetTrue),
+                    ParamKind::OptionalWhole => {
+                        arg.value_name("N").value_parser(value_parser!(u64))
+                    }
+                    ParamKind::Numbers => arg
+                        .value_name("X,…")
+                        .value_parser(value_parser!(f64))
+                        .allow_negative_numbers(true)
+                        .value_delimiter(',')
+                        .action(ArgAction::Append),
+                };
+                sub = sub.arg(arg);
+            }
+            cmd = cmd.subcommand(sub);
+        }
+        cmd.subcommand_required(true)
+    }
+    fn augment_subcommands_for_update(cmd: clap::Command) -> clap::Command {
+        Self::augment_subcommands(cmd)
+    }
+    fn has_subcommand(name: &str) -> bool {
+        burnin::generate::catalog::info(name).is_some()
+    }
 }
 
-#[derive(Args)]
-struct GridArgs {
-    #[arg(long, default_value_t = 4)]
-    width: usize,
-    #[arg(long, default_value_t = 4)]
-    height: usize,
-    /// Probability of slipping sideways (half to each side).
-    #[arg(long, default_value_t = 0.1)]
-    slip: f64,
-    #[arg(long, default_value_t = 12)]
-    horizon: usize,
-    /// Mean reward at the goal (Bernoulli when below 1).
-    #[arg(long, default_value_t = 1.0)]
-    goal_reward: f64,
-}
-
-#[derive(Args)]
-struct LockArgs {
-    #[arg(long, default_value_t = 6)]
-    horizon: usize,
-    #[arg(long, default_value_t = 2)]
-    actions: usize,
-    /// Two states and one table per step instead of one dial state per step.
-    #[arg(long)]
-    time_dependent: bool,
-}
-
-#[derive(Args)]
-struct LowerBoundArgs {
-    #[arg(long, default_value_t = 2)]
-    actions: usize,
-    /// Depth of the action tree (actions^depth leaves).
-    #[arg(long, default_value_t = 2)]
-    depth: usize,
-    #[arg(long, default_value_t = 10)]
-    horizon: usize,
-    /// Last step (0-based) at which the waiting state may still wait.
-    #[arg(long, default_value_t = 3)]
-    wait_until: usize,
-    /// Extra probability of the good state at the perturbed triple.
-    #[arg(long, default_value_t = 0.2)]
-    epsilon: f64,
-    /// Perturbed step, 1-based (default: drawn from the seed).
-    #[arg(long)]
-    special_step: Option<usize>,
-    /// Perturbed leaf, 0-based (default: drawn from the seed).
-    #[arg(long)]
-    special_leaf: Option<usize>,
-    /// Perturbed action, 0-based (default: drawn from the seed).
-    #[arg(long)]
-    special_action: Option<usize>,
-}
-
-#[derive(Args)]
-struct BanditArgs {
-    /// Number of arms, with means drawn from the seed.
-    #[arg(long, default_value_t = 5)]
-    arms: usize,
-    /// Comma-separated arm means (overrides --arms).
-    #[arg(long, value_delimiter = ',')]
-    means: Vec<f64>,
+impl clap::FromArgMatches for GeneratorArgs {
+    fn from_arg_matches(m: &clap::ArgMatches) -> Result<Self, clap::Error> {
+        use clap::error::ErrorKind;
+        let (name, sub) = m
+            .subcommand()
+            .ok_or_else(|| clap::Error::new(ErrorKind::MissingSubcommand))?;
+        let info = burnin::generate::catalog::info(name)
+            .ok_or_else(|| clap::Error::new(ErrorKind::InvalidSubcommand))?;
+        let mut values = Values::defaults(info);
+        for p in info.params {
+            let v = match p.kind {
+                ParamKind::Whole | ParamKind::OptionalWhole => {
+                    sub.get_one::<u64>(p.name).map(|&x| ParamValue::Whole(x))
+                }
+                ParamKind::Number => sub.get_one::<f64>(p.name).map(|&x| ParamValue::Number(x)),
+                ParamKind::Flag => Some(ParamValue::Flag(sub.get_flag(p.name))),
+                ParamKind::Numbers => sub
+                    .get_many::<f64>(p.name)
+                    .map(|xs| ParamValue::Numbers(xs.copied().collect())),
+            };
+            if let Some(v) = v {
+                values.set(p.name, v);
+            }
+        }
+        Ok(GeneratorArgs { values })
+    }
+    fn update_from_arg_matches(&mut self, m: &clap::ArgMatches) -> Result<(), clap::Error> {
+        *self = Self::from_arg_matches(m)?;
+        Ok(())
+    }
 }
 
 /// How a command failed, and so its exit code.
@@ -393,65 +360,15 @@ fn solution_table(m: &Mdp, sol: &burnin::solve::Solution) -> String {
 
 /// A generator's parameter error, named as the CLI option.
 fn param_failure(e: ParamError) -> Failure {
-    Failure::Invalid(vec![format!(
-        "--{}: {}",
-        e.param.replace('_', "-"),
-        e.message
-    )])
+    Failure::Invalid(vec![format!("--{}: {}", option_name(e.param), e.message)])
 }
 
-fn generate(kind: Kind, seed: u64, output: Option<&Path>) -> Result<(), Failure> {
-    let model = match kind {
-        Kind::Random(a) => Garnet {
-            states: a.states,
-            actions: a.actions,
-            successors: a.successors,
-            horizon: a.horizon,
-            time_dependent: a.time_dependent,
-            bernoulli: !a.fixed_rewards,
-        }
-        .generate(seed),
-        Kind::River(a) => RiverSwim {
-            states: a.states,
-            horizon: a.horizon,
-            p_forward: a.p_forward,
-            p_back: a.p_back,
-            small_reward: a.small_reward,
-            big_reward: a.big_reward,
-        }
-        .generate(),
-        Kind::Grid(a) => Grid {
-            width: a.width,
-            height: a.height,
-            slip: a.slip,
-            horizon: a.horizon,
-            goal_reward: a.goal_reward,
-        }
-        .generate(),
-        Kind::Lock(a) => Lock {
-            horizon: a.horizon,
-            actions: a.actions,
-            time_dependent: a.time_dependent,
-        }
-        .generate(seed),
-        Kind::LowerBound(a) => LowerBound {
-            actions: a.actions,
-            depth: a.depth,
-            horizon: a.horizon,
-            wait_until: a.wait_until,
-            epsilon: a.epsilon,
-            special_step: a.special_step,
-            special_leaf: a.special_leaf,
-            special_action: a.special_action,
-        }
-        .generate(seed),
-        Kind::Bandit(a) => Bandit {
-            arms: a.arms,
-            means: a.means,
-        }
-        .generate(seed),
-    }
-    .map_err(param_failure)?;
+fn generate(args: GeneratorArgs, seed: u64, output: Option<&Path>) -> Result<(), Failure> {
+    let spec = GeneratorSpec {
+        values: args.values,
+        seed,
+    };
+    let model = spec.build().map_err(param_failure)?;
     let text = burnin::write_model(&model);
     match output {
         Some(p) => std::fs::write(p, text)

@@ -301,7 +301,7 @@ pub fn assemble(
         None => Output::Single(points.remove(0)),
         Some(s) => Output::Sweep(SweepResults::new(
             &exp.name,
-            s.parameter.key(),
+            &s.parameter.key(),
             &s.values,
             points,
         )),

@@ -5,7 +5,7 @@ use serde::{Deserialize, Serialize};
 
 use super::{Context, RunRecord};
 use crate::stats::{interval95, ls_slope, mean};
-use crate::theory::{self, Bound, Sizes};
+use crate::theory::{self, Bound};
 
 pub const RESULTS_FORMAT: &str = "burnin-results";
 pub const RESULTS_VERSION: u64 = 1;
@@ -128,12 +128,7 @@ pub fn summarise(ctx: &Context, mut records: Vec<RunRecord>) -> Results {
     let exp = &ctx.exp;
     let m = &exp.model;
     let ks = &ctx.checkpoints;
-    let z = Sizes {
-        s: m.n_states() as f64,
-        a: m.n_actions() as f64,
-        h: m.horizon() as f64,
-        delta: exp.delta,
-    };
+    let set = exp.setting();
     let column = |runs: &[&RunRecord], c: usize, f: fn(&RunRecord) -> &Vec<f64>| -> Vec<f64> {
         runs.iter().map(|r| f(r)[c]).collect()
     };
@@ -170,7 +165,7 @@ pub fn summarise(ctx: &Context, mut records: Vec<RunRecord>) -> Results {
                         .iter()
                         .map(|r| (r.last_above[e] < exp.episodes).then_some(r.last_above[e]))
                         .collect(),
-                    pac_order: theory::pac_episodes(z, eps),
+                    pac_order: theory::pac_episodes(&set, eps),
                 })
                 .collect();
             let (hh, ss) = (m.horizon(), m.n_states());
@@ -202,7 +197,7 @@ pub fn summarise(ctx: &Context, mut records: Vec<RunRecord>) -> Results {
                 run_seeds: runs.iter().map(|r| r.seed).collect(),
                 episodes_to_eps,
                 visits,
-                bound: theory::bound(spec.algorithm.key(), z, ks),
+                bound: spec.algorithm.bound(&set, ks),
             }
         })
         .collect();
@@ -219,7 +214,7 @@ pub fn summarise(ctx: &Context, mut records: Vec<RunRecord>) -> Results {
         seeds: exp.seeds,
         seed: exp.seed,
         delta: exp.delta,
-        lower_bound: theory::lower_bound(z, ks),
+        lower_bound: theory::lower_bound(&set, ks),
         learners,
     }
 }

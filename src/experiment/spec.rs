@@ -1,12 +1,12 @@
 //! Experiment format v1 (`"format": "burnin-experiment"`): reading and checks.
 
-use serde::de::MapAccess;
 use serde_json::value::RawValue;
 
-use crate::generate::GeneratorSpec;
-use crate::lax::{Accept, Fields, Lax, Reader, syntax_problem};
-use crate::learn::{Algorithm, Setting};
-use crate::model::json::{check_header, parse_model};
+use crate::format::lax::{Lax, Reader, syntax_problem};
+use crate::format::{check_header, lax_object};
+use crate::generate::{GENERATORS, GenParam, GeneratorInfo, GeneratorSpec};
+use crate::learn::{self, Algorithm, AlgorithmKind, ParamInfo, Setting};
+use crate::model::json::parse_model;
 use crate::model::{Mdp, Problems};
 
 pub const EXPERIMENT_FORMAT: &str = "burnin-experiment";
@@ -23,24 +23,6 @@ pub const MAX_CHECKPOINTS: u64 = 2_000;
 /// Largest seed (seeds travel as JSON numbers, exact up to 2^53).
 pub const MAX_SEED: u64 = 1 << 53;
 
-const FIELDS: &[&str] = &[
-    "format",
-    "version",
-    "name",
-    "model",
-    "model_path",
-    "generator",
-    "episodes",
-    "seeds",
-    "seed",
-    "delta",
-    "checkpoints",
-    "eps_targets",
-    "learners",
-    "sweep",
-];
-const LEARNER_FIELDS: &[&str] = &["algorithm", "label", "bonus_scale", "epsilon", "prior"];
-
 /// One learner of an experiment: its algorithm and a unique label.
 #[derive(Debug, Clone, PartialEq)]
 pub struct LearnerSpec {
@@ -49,42 +31,67 @@ pub struct LearnerSpec {
 }
 
 /// What a sweep varies.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy)]
 pub enum SweepParameter {
-    /// S, through the experiment's generator.
-    States,
-    /// A, through the experiment's generator.
-    Actions,
-    /// H, through the experiment's generator.
-    Horizon,
-    /// Every learner's `bonus_scale`.
-    BonusScale,
-    /// Every eps-greedy learner's `epsilon`.
-    Epsilon,
     /// The experiment's δ.
     Delta,
+    /// This parameter of every learner whose algorithm takes it
+    /// (`bonus_scale`, `epsilon`, `prior`).
+    Learner(&'static ParamInfo),
+    /// A numeric parameter of the experiment's generator, by name.
+    Generator(&'static GenParam),
 }
 
 impl SweepParameter {
-    pub const KEYS: &'static [&'static str] = &[
-        "states",
-        "actions",
-        "horizon",
-        "bonus_scale",
-        "epsilon",
-        "delta",
-    ];
-
-    pub fn key(self) -> &'static str {
-        Self::KEYS[self as usize]
+    /// The key as results name it: `delta`, the learner parameter's key, or
+    /// the generator parameter's name (`generator.NAME` where a learner
+    /// parameter has the same name).
+    pub fn key(self) -> String {
+        match self {
+            SweepParameter::Delta => "delta".into(),
+            SweepParameter::Learner(p) => p.key.into(),
+            SweepParameter::Generator(p) if learner_param(p.name).is_some() => {
+                format!("generator.{}", p.name)
+            }
+            SweepParameter::Generator(p) => p.name.into(),
+        }
     }
+}
 
-    fn from_key(k: &str) -> Option<SweepParameter> {
-        use SweepParameter::*;
-        [States, Actions, Horizon, BonusScale, Epsilon, Delta]
-            .into_iter()
-            .find(|p| p.key() == k)
+impl PartialEq for SweepParameter {
+    fn eq(&self, other: &Self) -> bool {
+        self.key() == other.key()
     }
+}
+
+/// The learner parameter with this key, from the algorithm catalogue.
+fn learner_param(key: &str) -> Option<&'static ParamInfo> {
+    learn::ALGORITHMS
+        .iter()
+        .filter_map(|a| a.param)
+        .find(|p| p.key == key)
+}
+
+/// Every sweepable key: delta, the learner parameters, and the numeric
+/// parameters of `generator` (of any generator when None).
+fn sweep_keys(generator: Option<&GeneratorSpec>) -> String {
+    let mut keys: Vec<String> = vec!["delta".into()];
+    for p in learn::ALGORITHMS.iter().filter_map(|a| a.param) {
+        if !keys.iter().any(|k| k == p.key) {
+            keys.push(p.key.into());
+        }
+    }
+    let infos: Vec<&GeneratorInfo> = match generator {
+        Some(g) => vec![g.info()],
+        None => GENERATORS.iter().collect(),
+    };
+    for p in infos.iter().flat_map(|i| i.params.iter()) {
+        let k = SweepParameter::Generator(p).key();
+        if p.sweepable() && !keys.contains(&k) {
+            keys.push(k);
+        }
+    }
+    keys.join(", ")
 }
 
 /// One parameter varied over a list of values; every value is a whole
@@ -138,101 +145,38 @@ impl Experiment {
     }
 }
 
-#[derive(Default)]
-struct RawExperiment {
-    format: Option<Lax<String>>,
-    version: Option<Lax<f64>>,
-    name: Option<Lax<String>>,
-    model: Option<Box<RawValue>>,
-    model_path: Option<Lax<String>>,
-    episodes: Option<Lax<f64>>,
-    seeds: Option<Lax<f64>>,
-    seed: Option<Lax<f64>>,
-    delta: Option<Lax<f64>>,
-    checkpoints: Option<Lax<f64>>,
-    eps_targets: Option<Lax<Vec<Lax<f64>>>>,
-    learners: Option<Lax<Vec<Lax<RawLearner>>>>,
-    generator: Option<serde_json::Value>,
-    sweep: Option<serde_json::Value>,
-    fields: Fields,
-}
-
-impl Accept for RawExperiment {
-    fn map<'de, M: MapAccess<'de>>(mut map: M) -> Result<Option<Self>, M::Error> {
-        let mut e = RawExperiment::default();
-        while let Some(key) = map.next_key::<String>()? {
-            let f = &mut e.fields;
-            match key.as_str() {
-                "format" => f.store(&mut map, &key, &mut e.format)?,
-                "version" => f.store(&mut map, &key, &mut e.version)?,
-                "name" => f.store(&mut map, &key, &mut e.name)?,
-                "model" => f.store(&mut map, &key, &mut e.model)?,
-                "model_path" => f.store(&mut map, &key, &mut e.model_path)?,
-                "episodes" => f.store(&mut map, &key, &mut e.episodes)?,
-                "seeds" => f.store(&mut map, &key, &mut e.seeds)?,
-                "seed" => f.store(&mut map, &key, &mut e.seed)?,
-                "delta" => f.store(&mut map, &key, &mut e.delta)?,
-                "checkpoints" => f.store(&mut map, &key, &mut e.checkpoints)?,
-                "eps_targets" => f.store(&mut map, &key, &mut e.eps_targets)?,
-                "learners" => f.store(&mut map, &key, &mut e.learners)?,
-                "generator" => f.store(&mut map, &key, &mut e.generator)?,
-                "sweep" => f.store(&mut map, &key, &mut e.sweep)?,
-                _ => f.skip(&mut map, key)?,
-            }
-        }
-        Ok(Some(e))
+lax_object! {
+    struct RawExperiment {
+        format: Lax<String>,
+        version: Lax<f64>,
+        name: Lax<String>,
+        model: Box<RawValue>,
+        model_path: Lax<String>,
+        generator: serde_json::Value,
+        episodes: Lax<f64>,
+        seeds: Lax<f64>,
+        seed: Lax<f64>,
+        delta: Lax<f64>,
+        checkpoints: Lax<f64>,
+        eps_targets: Lax<Vec<Lax<f64>>>,
+        learners: Lax<Vec<Lax<RawLearner>>>,
+        sweep: serde_json::Value,
     }
 }
 
-#[derive(Default)]
-struct RawLearner {
-    algorithm: Option<Lax<String>>,
-    label: Option<Lax<String>>,
-    bonus_scale: Option<Lax<f64>>,
-    epsilon: Option<Lax<f64>>,
-    prior: Option<Lax<f64>>,
-    fields: Fields,
-}
-
-impl Accept for RawLearner {
-    fn map<'de, M: MapAccess<'de>>(mut map: M) -> Result<Option<Self>, M::Error> {
-        let mut l = RawLearner::default();
-        while let Some(key) = map.next_key::<String>()? {
-            let f = &mut l.fields;
-            match key.as_str() {
-                "algorithm" => f.store(&mut map, &key, &mut l.algorithm)?,
-                "label" => f.store(&mut map, &key, &mut l.label)?,
-                "bonus_scale" => f.store(&mut map, &key, &mut l.bonus_scale)?,
-                "epsilon" => f.store(&mut map, &key, &mut l.epsilon)?,
-                "prior" => f.store(&mut map, &key, &mut l.prior)?,
-                _ => f.skip(&mut map, key)?,
-            }
-        }
-        Ok(Some(l))
+lax_object! {
+    struct RawLearner {
+        algorithm: Lax<String>,
+        label: Lax<String>,
+        bonus_scale: Lax<f64>,
+        epsilon: Lax<f64>,
+        prior: Lax<f64>,
     }
 }
 
 /// Resolves an experiment's `model_path` (as written in the file) to the
 /// model file's text, or a message saying why it cannot be read.
 pub type ModelLoader<'a> = &'a dyn Fn(&str) -> Result<String, String>;
-
-/// Copies `p` into `into` with every path put under `prefix`.
-fn prefixed(prefix: &str, p: &Problems, into: &mut Problems) {
-    for pr in p.list() {
-        let path = if pr.path.is_empty() {
-            prefix.to_owned()
-        } else {
-            format!("{prefix}.{}", pr.path)
-        };
-        into.push(path, pr.message.clone());
-    }
-    if p.unlisted() > 0 {
-        into.push(
-            prefix,
-            format!("… and {} more problems in the model", p.unlisted()),
-        );
-    }
-}
 
 /// Whether learners can run on `m`: undiscounted, and every reward supported
 /// in [0, 1].
@@ -313,76 +257,49 @@ fn number(
 }
 
 fn learner(r: &mut Reader, path: &str, raw: RawLearner) -> Option<LearnerSpec> {
-    raw.fields.finish(path, LEARNER_FIELDS, r.problems);
+    raw.fields.finish(path, RawLearner::FIELDS, r.problems);
     let key = r.require(
         &format!("{path}.algorithm"),
         raw.algorithm,
-        &format!("one of {}", Algorithm::KEYS.join(", ")),
+        &format!("one of {}", learn::keys()),
     )?;
-    let positive = |x: f64| x.is_finite() && x > 0.0;
-    // Which parameters each algorithm takes.
-    let takes: &[&str] = match key.as_str() {
-        "mvp" | "ucbvi-hoeffding" | "ucbvi-bernstein" | "q-ucb-hoeffding" | "ucb1" => {
-            &["bonus_scale"]
-        }
-        "psrl" => &["prior"],
-        "eps-greedy" => &["epsilon"],
-        "uniform" => &[],
-        other => {
-            r.problems.push(
-                format!("{path}.algorithm"),
-                format!(
-                    "unknown algorithm {other:?}; known ones are {}",
-                    Algorithm::KEYS.join(", ")
-                ),
-            );
-            return None;
-        }
+    let Some(kind) = AlgorithmKind::from_key(&key) else {
+        r.problems.push(
+            format!("{path}.algorithm"),
+            format!(
+                "unknown algorithm {key:?}; known ones are {}",
+                learn::keys()
+            ),
+        );
+        return None;
     };
-    for (name, given) in [
-        ("bonus_scale", raw.bonus_scale.is_some()),
-        ("epsilon", raw.epsilon.is_some()),
-        ("prior", raw.prior.is_some()),
-    ] {
-        if given && !takes.contains(&name) {
-            r.problems
-                .push(format!("{path}.{name}"), format!("{key} takes no {name}"));
+    let info = kind.info();
+    // Every parameter key any algorithm takes, with the value given.
+    let given = [
+        ("bonus_scale", raw.bonus_scale),
+        ("epsilon", raw.epsilon),
+        ("prior", raw.prior),
+    ];
+    let mut value = None;
+    for (name, v) in given {
+        let Some(v) = v else { continue };
+        match info.param {
+            Some(p) if p.key == name => value = Some((p, v)),
+            _ => r
+                .problems
+                .push(format!("{path}.{name}"), format!("{key} takes no {name}")),
         }
     }
-    let bonus_scale = number(
-        r,
-        &format!("{path}.bonus_scale"),
-        raw.bonus_scale,
-        1.0,
-        positive,
-        "a number > 0",
-    )?;
-    let epsilon = number(
-        r,
-        &format!("{path}.epsilon"),
-        raw.epsilon,
-        0.1,
-        |x| (0.0..=1.0).contains(&x),
-        "a probability in [0, 1]",
-    )?;
-    let prior = number(
-        r,
-        &format!("{path}.prior"),
-        raw.prior,
-        1.0,
-        positive,
-        "a number > 0",
-    )?;
-    let algorithm = match key.as_str() {
-        "mvp" => Algorithm::Mvp { bonus_scale },
-        "ucbvi-hoeffding" => Algorithm::UcbviHoeffding { bonus_scale },
-        "ucbvi-bernstein" => Algorithm::UcbviBernstein { bonus_scale },
-        "q-ucb-hoeffding" => Algorithm::QUcbHoeffding { bonus_scale },
-        "ucb1" => Algorithm::Ucb1 { bonus_scale },
-        "psrl" => Algorithm::Psrl { prior },
-        "eps-greedy" => Algorithm::EpsGreedy { epsilon },
-        _ => Algorithm::Uniform,
-    };
+    let mut algorithm = Algorithm::new(kind);
+    if let Some((p, v)) = value {
+        let at = format!("{path}.{}", p.key);
+        let x = r.take(&at, v, "a number")?;
+        if let Err(msg) = p.check(x) {
+            r.problems.push(at, msg);
+            return None;
+        }
+        algorithm.param = x;
+    }
     let label = match raw.label {
         Some(l) => r.take(&format!("{path}.label"), l, "a string")?,
         None => algorithm.default_label(),
@@ -444,12 +361,12 @@ fn model_of(
         let m = match g.generate("generator") {
             Ok(m) => m,
             Err(p) => {
-                prefixed_plain(&p, r.problems);
+                r.problems.nest("", &p);
                 return None;
             }
         };
         if let Err(p) = check_learnable(&m) {
-            prefixed("generator", &p, r.problems);
+            r.problems.nest("generator", &p);
             return None;
         }
         return Some(m);
@@ -485,12 +402,12 @@ fn model_of(
     let m = match parse_model(&text) {
         Ok(m) => m,
         Err(p) => {
-            prefixed(&prefix, &p, r.problems);
+            r.problems.nest(&prefix, &p);
             return None;
         }
     };
     if let Err(p) = check_learnable(&m) {
-        prefixed(&prefix, &p, r.problems);
+        r.problems.nest(&prefix, &p);
         return None;
     }
     Some(m)
@@ -511,7 +428,7 @@ fn convert(
     ) {
         return None;
     }
-    e.fields.finish("", FIELDS, r.problems);
+    e.fields.finish("", RawExperiment::FIELDS, r.problems);
     let name = match e.name {
         Some(n) => r.take("name", n, "a string"),
         None => Some(String::new()),
@@ -521,7 +438,7 @@ fn convert(
         Some(v) => match GeneratorSpec::from_json(v, "generator") {
             Ok(g) => Some(g),
             Err(p) => {
-                prefixed_plain(&p, r.problems);
+                r.problems.nest("", &p);
                 return None;
             }
         },
@@ -530,7 +447,7 @@ fn convert(
     let sweep = e
         .sweep
         .as_ref()
-        .and_then(|v| sweep_of(r, v, generator.is_some()));
+        .and_then(|v| sweep_of(r, v, generator.as_ref()));
     let episodes = whole_in(r, "episodes", e.episodes, None, 1, MAX_EPISODES);
     let seeds = whole_in(r, "seeds", e.seeds, Some(1), 1, MAX_SEEDS);
     let seed = whole_in(r, "seed", e.seed, Some(1), 0, MAX_SEED);
@@ -635,7 +552,7 @@ fn convert(
         // Every point must be runnable before anything runs.
         for (i, &x) in sweep.values.iter().enumerate() {
             if let Err(p) = exp.point(sweep.parameter, x) {
-                prefixed(&format!("sweep.values[{i}]"), &p, r.problems);
+                r.problems.nest(&format!("sweep.values[{i}]"), &p);
             }
         }
         return Some(Experiment {
@@ -646,7 +563,11 @@ fn convert(
     Some(exp)
 }
 
-fn sweep_of(r: &mut Reader, v: &serde_json::Value, has_generator: bool) -> Option<Sweep> {
+fn sweep_of(
+    r: &mut Reader,
+    v: &serde_json::Value,
+    generator: Option<&GeneratorSpec>,
+) -> Option<Sweep> {
     use serde_json::Value;
     let Some(map) = v.as_object() else {
         r.problems.push(
@@ -663,38 +584,14 @@ fn sweep_of(r: &mut Reader, v: &serde_json::Value, has_generator: bool) -> Optio
             );
         }
     }
-    let keys = SweepParameter::KEYS.join(", ");
-    let parameter = match map.get("parameter") {
-        Some(Value::String(k)) => match SweepParameter::from_key(k) {
-            Some(p) => p,
-            None => {
-                r.problems.push(
-                    "sweep.parameter",
-                    format!("unknown parameter {k:?}; known ones are {keys}"),
-                );
-                return None;
-            }
-        },
-        _ => {
-            r.problems
-                .push("sweep.parameter", format!("expected one of {keys}"));
-            return None;
-        }
-    };
-    if matches!(
-        parameter,
-        SweepParameter::States | SweepParameter::Actions | SweepParameter::Horizon
-    ) && !has_generator
-    {
+    let Some(Value::String(key)) = map.get("parameter") else {
         r.problems.push(
             "sweep.parameter",
-            format!(
-                "sweeping {} needs a \"generator\" instead of a fixed model",
-                parameter.key()
-            ),
+            format!("expected one of {}", sweep_keys(generator)),
         );
         return None;
-    }
+    };
+    let parameter = sweep_parameter(r, key, generator)?;
     let values: Vec<f64> = match map.get("values") {
         Some(Value::Array(xs)) if !xs.is_empty() && xs.len() <= MAX_SWEEP_VALUES => {
             let mut out = Vec::with_capacity(xs.len());
@@ -720,26 +617,75 @@ fn sweep_of(r: &mut Reader, v: &serde_json::Value, has_generator: bool) -> Optio
     Some(Sweep { parameter, values })
 }
 
+/// Resolves a sweep's `parameter`: `delta`, a learner parameter, a numeric
+/// parameter of the experiment's generator, or `generator.NAME`.
+fn sweep_parameter(
+    r: &mut Reader,
+    key: &str,
+    generator: Option<&GeneratorSpec>,
+) -> Option<SweepParameter> {
+    let at = "sweep.parameter";
+    let (name, explicit) = match key.strip_prefix("generator.") {
+        Some(rest) => (rest, true),
+        None => (key, false),
+    };
+    if !explicit {
+        if key == "delta" {
+            return Some(SweepParameter::Delta);
+        }
+        if let Some(p) = learner_param(key) {
+            return Some(SweepParameter::Learner(p));
+        }
+    }
+    let any_generator_has = GENERATORS
+        .iter()
+        .flat_map(|g| g.params.iter())
+        .any(|p| p.name == name && p.sweepable());
+    let Some(g) = generator else {
+        let msg = if any_generator_has {
+            format!("sweeping {name} needs a \"generator\" instead of a fixed model")
+        } else {
+            format!(
+                "unknown parameter {key:?}; known ones are {}",
+                sweep_keys(None)
+            )
+        };
+        r.problems.push(at, msg);
+        return None;
+    };
+    match g
+        .info()
+        .params
+        .iter()
+        .find(|p| p.name == name && p.sweepable())
+    {
+        Some(p) => Some(SweepParameter::Generator(p)),
+        None => {
+            r.problems.push(
+                at,
+                format!(
+                    "unknown parameter {key:?}; known ones here are {}",
+                    sweep_keys(Some(g))
+                ),
+            );
+            None
+        }
+    }
+}
+
 impl Experiment {
     /// The experiment with the sweep parameter set to `x` (no sweep of its own).
     pub fn point(&self, parameter: SweepParameter, x: f64) -> Result<Experiment, Problems> {
-        use SweepParameter::*;
         let mut e = Experiment {
             sweep: None,
             ..self.clone()
         };
         let bad = |msg: String| Err(Problems::single("", msg));
         match parameter {
-            States | Actions | Horizon => {
-                if !(x.fract() == 0.0 && (1.0..=1e6).contains(&x)) {
-                    return bad(format!("expected a whole number ≥ 1, found {x}"));
-                }
+            SweepParameter::Generator(p) => {
                 let g = self.generator.as_ref().expect("checked when read");
-                let Some(g) = g.with(parameter.key(), x as usize) else {
-                    return bad(format!(
-                        "this generator has no parameter {}",
-                        parameter.key()
-                    ));
+                let Some(g) = g.with(p.name, x) else {
+                    return bad(format!("expected a whole number for {}, found {x}", p.name));
                 };
                 e.model = g.generate("generator")?;
                 check_learnable(&e.model)?;
@@ -755,25 +701,17 @@ impl Experiment {
                     }
                 }
             }
-            BonusScale => {
-                if !(x.is_finite() && x > 0.0) {
-                    return bad(format!("expected a bonus scale > 0, found {x}"));
+            SweepParameter::Learner(p) => {
+                if let Err(msg) = p.check(x) {
+                    return bad(msg);
                 }
                 for l in &mut e.learners {
-                    l.algorithm = l.algorithm.with_bonus_scale(x);
-                }
-            }
-            Epsilon => {
-                if !(0.0..=1.0).contains(&x) {
-                    return bad(format!("expected a probability in [0, 1], found {x}"));
-                }
-                for l in &mut e.learners {
-                    if let Algorithm::EpsGreedy { epsilon } = &mut l.algorithm {
-                        *epsilon = x;
+                    if let Some(a) = l.algorithm.with_param(p.key, x) {
+                        l.algorithm = a;
                     }
                 }
             }
-            Delta => {
+            SweepParameter::Delta => {
                 if !(x > 0.0 && x < 1.0) {
                     return bad(format!("expected 0 < delta < 1, found {x}"));
                 }
@@ -796,11 +734,5 @@ impl Experiment {
                 })
                 .collect(),
         }
-    }
-}
-
-fn prefixed_plain(p: &Problems, into: &mut Problems) {
-    for pr in p.list() {
-        into.push(pr.path.clone(), pr.message.clone());
     }
 }

@@ -8,7 +8,7 @@
 
 use rand::Rng;
 
-use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting, Stale};
+use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting, StaleRows};
 
 pub struct EpsGreedy {
     set: Setting,
@@ -16,7 +16,7 @@ pub struct EpsGreedy {
     counts: Vec<RowCounts>,
     plan: Plan,
     /// Rows whose inputs changed since the last plan.
-    pub(super) stale: Stale,
+    pub(super) stale: StaleRows,
 }
 
 impl EpsGreedy {
@@ -26,7 +26,7 @@ impl EpsGreedy {
             epsilon,
             counts: vec![RowCounts::default(); set.rows()],
             plan: Plan::new(&set),
-            stale: Stale::new(&set),
+            stale: StaleRows::new(&set),
         }
     }
 }

@@ -25,7 +25,7 @@
 //!   Complexity of Online Reinforcement Learning", COLT 2024,
 //!   arXiv:2307.13586, Algorithm 1.
 
-use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting, Stale};
+use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting, StaleRows};
 
 const C1: f64 = 460.0 / 9.0;
 const C2: f64 = 2.0 * std::f64::consts::SQRT_2;
@@ -33,7 +33,7 @@ const C3: f64 = 544.0 / 9.0;
 
 /// The estimates of one (h, s, a) from its latest completed batch.
 #[derive(Debug, Clone, Default, PartialEq)]
-pub struct Batch {
+pub struct FrozenStats {
     /// m, the batch size (0 before the first batch).
     pub size: u32,
     pub reward_mean: f64,
@@ -51,13 +51,13 @@ pub struct Mvp {
     /// Statistics of the batch being collected.
     current: Vec<RowCounts>,
     /// Estimates from the latest completed batch.
-    frozen: Vec<Batch>,
+    frozen: Vec<FrozenStats>,
     /// How often each row's estimates were rebuilt.
     rebuilds: Vec<u32>,
     triggered: bool,
     plan: Plan,
     /// Rows rebuilt, or whose successors' values changed, since the last plan.
-    pub(super) stale: Stale,
+    pub(super) stale: StaleRows,
     /// Every next state any batch of the row has held (registered in `stale`).
     seen: Vec<Vec<u32>>,
 }
@@ -76,12 +76,12 @@ impl Mvp {
             l: libm::log(200.0 * s * a * h * h * k * k / set.delta),
             visits: vec![0; set.rows()],
             current: vec![RowCounts::default(); set.rows()],
-            frozen: vec![Batch::default(); set.rows()],
+            frozen: vec![FrozenStats::default(); set.rows()],
             rebuilds: vec![0; set.rows()],
             // The first episode starts from a plan (all Q = H).
             triggered: true,
             plan: Plan::new(&set),
-            stale: Stale::new(&set),
+            stale: StaleRows::new(&set),
             seen: vec![Vec::new(); set.rows()],
         }
     }
@@ -92,7 +92,7 @@ impl Mvp {
     }
 
     /// The estimates of (h, s, a) from its latest completed batch.
-    pub fn batch(&self, h: usize, s: usize, a: usize) -> &Batch {
+    pub fn batch(&self, h: usize, s: usize, a: usize) -> &FrozenStats {
         &self.frozen[self.set.row(h, s, a)]
     }
 }
@@ -107,7 +107,7 @@ impl Learner for Mvp {
         let (hh, l, scale) = (set.horizon as f64, self.l, self.scale);
         let frozen = &self.frozen;
         // Only rebuilt rows and rows whose successors' values changed are
-        // recomputed; the others keep their Q (see `Stale`).
+        // recomputed; the others keep their Q (see `StaleRows`).
         self.plan
             .replan_stale(&set, rng, &mut self.stale, |h, s, a, v_next| {
                 let b = &frozen[set.row(h, s, a)];
@@ -148,7 +148,7 @@ impl Learner for Mvp {
         cur.add(r, next);
         if self.visits[row].is_power_of_two() {
             let m = cur.n as f64;
-            self.frozen[row] = Batch {
+            self.frozen[row] = FrozenStats {
                 size: cur.n,
                 reward_mean: cur.r_sum / m,
                 reward_second_moment: cur.r2_sum / m,

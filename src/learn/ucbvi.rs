@@ -23,7 +23,7 @@
 //!   (Algorithm 1; bonus_1 and bonus_2). The Bernstein–Freedman bonus is
 //!   written here as we recall it from the paper, from memory.
 
-use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting, Stale};
+use super::{LearnRng, Learner, Plan, PolicyView, RowCounts, Setting, StaleRows};
 
 pub struct Ucbvi {
     set: Setting,
@@ -38,7 +38,7 @@ pub struct Ucbvi {
     q_prev: Vec<f64>,
     plan: Plan,
     /// Rows whose inputs changed since the last plan.
-    pub(super) stale: Stale,
+    pub(super) stale: StaleRows,
 }
 
 impl Ucbvi {
@@ -54,7 +54,7 @@ impl Ucbvi {
             state_visits: vec![0; set.horizon * set.states],
             q_prev: vec![set.horizon as f64; set.rows()],
             plan: Plan::new(&set),
-            stale: Stale::new(&set),
+            stale: StaleRows::new(&set),
         }
     }
 }
@@ -74,7 +74,7 @@ impl Learner for Ucbvi {
         let (scale, bernstein) = (self.scale, self.bernstein);
         // Only rows whose counts, successor values or (Bernstein) successor
         // visit counts changed are recomputed; the rest keep their Q, which
-        // is what recomputing them would give (see `Stale`).
+        // is what recomputing them would give (see `StaleRows`).
         self.plan
             .replan_stale(&set, rng, &mut self.stale, |h, s, a, v_next| {
                 let row = set.row(h, s, a);

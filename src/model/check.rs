@@ -5,9 +5,9 @@
 
 use std::collections::HashSet;
 
-use super::error::Problems;
 use super::limits::*;
 use super::{MdpParts, Reward, StepParts};
+use crate::format::Problems;
 
 /// Distance from 1 within which a probability sum is renormalised.
 pub const SUM_TOLERANCE: f64 = 1e-6;

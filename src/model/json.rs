@@ -13,91 +13,38 @@ use serde::de::{MapAccess, SeqAccess};
 
 use super::limits::MAX_FILE_BYTES;
 use super::{Mdp, MdpParts, Problems, Reward, StepParts};
-use crate::lax::{Accept, Fields, Lax, Reader, syntax_problem};
+use crate::format::lax::{Accept, Lax, Reader, syntax_problem};
+use crate::format::{check_header, lax_object};
 
 /// The `format` value of a model file.
 pub const MODEL_FORMAT: &str = "burnin-model";
 /// The model format version this build reads and writes.
 pub const MODEL_VERSION: u64 = 1;
 
-const MODEL_FIELDS: &[&str] = &[
-    "format",
-    "version",
-    "name",
-    "notes",
-    "horizon",
-    "discount",
-    "states",
-    "actions",
-    "start",
-    "stationary",
-    "steps",
-    "layout",
-];
-
-#[derive(Default)]
-struct RawModel {
-    format: Option<Lax<String>>,
-    version: Option<Lax<f64>>,
-    name: Option<Lax<String>>,
-    notes: Option<Lax<String>>,
-    horizon: Option<Lax<f64>>,
-    discount: Option<Lax<f64>>,
-    states: Option<Lax<Vec<Lax<String>>>>,
-    actions: Option<Lax<Vec<Lax<String>>>>,
-    start: Option<Lax<Vec<Lax<f64>>>>,
-    stationary: Option<Lax<bool>>,
-    steps: Option<Lax<Vec<Lax<RawStep>>>>,
-    layout: Option<Lax<RawLayout>>,
-    fields: Fields,
-}
-
-impl Accept for RawModel {
-    fn map<'de, M: MapAccess<'de>>(mut map: M) -> Result<Option<Self>, M::Error> {
-        let mut m = RawModel::default();
-        while let Some(key) = map.next_key::<String>()? {
-            let f = &mut m.fields;
-            match key.as_str() {
-                "format" => f.store(&mut map, &key, &mut m.format)?,
-                "version" => f.store(&mut map, &key, &mut m.version)?,
-                "name" => f.store(&mut map, &key, &mut m.name)?,
-                "notes" => f.store(&mut map, &key, &mut m.notes)?,
-                "horizon" => f.store(&mut map, &key, &mut m.horizon)?,
-                "discount" => f.store(&mut map, &key, &mut m.discount)?,
-                "states" => f.store(&mut map, &key, &mut m.states)?,
-                "actions" => f.store(&mut map, &key, &mut m.actions)?,
-                "start" => f.store(&mut map, &key, &mut m.start)?,
-                "stationary" => f.store(&mut map, &key, &mut m.stationary)?,
-                "steps" => f.store(&mut map, &key, &mut m.steps)?,
-                "layout" => f.store(&mut map, &key, &mut m.layout)?,
-                _ => f.skip(&mut map, key)?,
-            }
-        }
-        Ok(Some(m))
+lax_object! {
+    struct RawModel {
+        format: Lax<String>,
+        version: Lax<f64>,
+        name: Lax<String>,
+        notes: Lax<String>,
+        horizon: Lax<f64>,
+        discount: Lax<f64>,
+        states: Lax<Vec<Lax<String>>>,
+        actions: Lax<Vec<Lax<String>>>,
+        start: Lax<Vec<Lax<f64>>>,
+        stationary: Lax<bool>,
+        steps: Lax<Vec<Lax<RawStep>>>,
+        layout: Lax<RawLayout>,
     }
 }
 
 /// An array of arrays, each level read leniently.
 type Table<T> = Lax<Vec<Lax<Vec<T>>>>;
 
-#[derive(Default)]
-struct RawStep {
-    transitions: Option<Table<Lax<Vec<Lax<RawEntry>>>>>,
-    rewards: Option<Table<Lax<RawReward>>>,
-    fields: Fields,
-}
-
-impl Accept for RawStep {
-    fn map<'de, M: MapAccess<'de>>(mut map: M) -> Result<Option<Self>, M::Error> {
-        let mut s = RawStep::default();
-        while let Some(key) = map.next_key::<String>()? {
-            match key.as_str() {
-                "transitions" => s.fields.store(&mut map, &key, &mut s.transitions)?,
-                "rewards" => s.fields.store(&mut map, &key, &mut s.rewards)?,
-                _ => s.fields.skip(&mut map, key)?,
-            }
-        }
-        Ok(Some(s))
+lax_object! {
+    struct RawStep {
+        transitions: Table<Lax<Vec<Lax<RawEntry>>>>,
+        rewards: Table<Lax<RawReward>>,
     }
 }
 
@@ -121,8 +68,8 @@ impl Accept for RawEntry {
             len += 1;
         }
         Ok(Some(RawEntry {
-            next: next.unwrap_or(Lax::Wrong(crate::lax::Kind::Null)),
-            prob: prob.unwrap_or(Lax::Wrong(crate::lax::Kind::Null)),
+            next: next.unwrap_or(Lax::Wrong(crate::format::lax::Kind::Null)),
+            prob: prob.unwrap_or(Lax::Wrong(crate::format::lax::Kind::Null)),
             len,
         }))
     }
@@ -170,22 +117,9 @@ impl Accept for RawReward {
     }
 }
 
-#[derive(Default)]
-struct RawLayout {
-    positions: Option<Table<Lax<f64>>>,
-    fields: Fields,
-}
-
-impl Accept for RawLayout {
-    fn map<'de, M: MapAccess<'de>>(mut map: M) -> Result<Option<Self>, M::Error> {
-        let mut l = RawLayout::default();
-        while let Some(key) = map.next_key::<String>()? {
-            match key.as_str() {
-                "positions" => l.fields.store(&mut map, &key, &mut l.positions)?,
-                _ => l.fields.skip(&mut map, key)?,
-            }
-        }
-        Ok(Some(l))
+lax_object! {
+    struct RawLayout {
+        positions: Table<Lax<f64>>,
     }
 }
 
@@ -223,42 +157,6 @@ pub fn parse_model_parts(text: &str) -> Result<MdpParts, Problems> {
     }
 }
 
-/// Checks `format` and `version` of a document of the given kind; a wrong
-/// format or version stops the read, since nothing else can be trusted.
-pub fn check_header(
-    r: &mut Reader,
-    format: Option<Lax<String>>,
-    version: Option<Lax<f64>>,
-    want: &str,
-    want_version: u64,
-) -> bool {
-    let Some(f) = r.require("format", format, &format!("the string {want:?}")) else {
-        return false;
-    };
-    if f != want {
-        let hint = match f.as_str() {
-            "burnin-model" => " (this is a model file)".to_string(),
-            "burnin-experiment" => " (this is an experiment file)".to_string(),
-            "burnin-results" => " (this is a results file)".to_string(),
-            _ => String::new(),
-        };
-        r.problems
-            .push("format", format!("expected {want:?}, found {f:?}{hint}"));
-        return false;
-    }
-    let Some(v) = r.require("version", version, "a whole number") else {
-        return false;
-    };
-    if v != want_version as f64 {
-        r.problems.push(
-            "version",
-            format!("version {v} is not supported; this build reads version {want_version}"),
-        );
-        return false;
-    }
-    true
-}
-
 fn labels(r: &mut Reader, path: &str, v: Option<Lax<Vec<Lax<String>>>>) -> Option<Vec<String>> {
     let list = r.require(path, v, "an array of strings")?;
     let mut out = Vec::with_capacity(list.len());
@@ -289,7 +187,7 @@ fn convert(raw: Lax<RawModel>, r: &mut Reader) -> Option<MdpParts> {
     if !check_header(r, m.format, m.version, MODEL_FORMAT, MODEL_VERSION) {
         return None;
     }
-    m.fields.finish("", MODEL_FIELDS, r.problems);
+    m.fields.finish("", RawModel::FIELDS, r.problems);
     let name = match m.name {
         Some(n) => r.take("name", n, "a string"),
         None => Some(String::new()),
@@ -364,7 +262,7 @@ fn convert(raw: Lax<RawModel>, r: &mut Reader) -> Option<MdpParts> {
 
 fn layout(r: &mut Reader, l: Lax<RawLayout>) -> Option<Vec<[f64; 2]>> {
     let l = r.take("layout", l, "an object with \"positions\"")?;
-    l.fields.finish("layout", &["positions"], r.problems);
+    l.fields.finish("layout", RawLayout::FIELDS, r.problems);
     let list = r.require("layout.positions", l.positions, "an array of [x, y] pairs")?;
     let mut out = Vec::with_capacity(list.len());
     for (i, p) in list.into_iter().enumerate() {
@@ -434,8 +332,7 @@ fn table<T, U>(
 
 fn step(r: &mut Reader, path: &str, st: Lax<RawStep>, s: usize, a: usize) -> Option<StepParts> {
     let st = r.take(path, st, "an object with \"transitions\" and \"rewards\"")?;
-    st.fields
-        .finish(path, &["transitions", "rewards"], r.problems);
+    st.fields.finish(path, RawStep::FIELDS, r.problems);
     let transitions = table(
         r,
         &format!("{path}.transitions"),

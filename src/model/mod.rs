@@ -8,11 +8,10 @@
 //! Steps are numbered h = 0..H−1 in code and shown to people as 1..H.
 
 pub mod check;
-pub mod error;
 pub mod json;
 pub mod limits;
 
-pub use error::{Problem, Problems};
+pub use crate::format::{Problem, Problems};
 
 use check::Checker;
 

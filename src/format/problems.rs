@@ -1,8 +1,8 @@
-//! Validation problems, each with the JSON path where it was found.
+//! Problems found in a file, each with the JSON path where it was found.
 
 use std::fmt;
 
-use super::limits::MAX_REPORTED_PROBLEMS;
+use crate::model::limits::MAX_REPORTED_PROBLEMS;
 
 /// One problem found in a model: where (a JSON path such as
 /// `steps[1].transitions[2][0]`) and what was expected.
@@ -70,6 +70,23 @@ impl Problems {
         let mut p = Problems::default();
         p.push(path, message);
         p
+    }
+
+    /// Adds every problem of `other` with its path put under `prefix`
+    /// (`prefix.path`; an empty prefix keeps the paths), and a count of the
+    /// ones `other` did not list.
+    pub fn nest(&mut self, prefix: &str, other: &Problems) {
+        for pr in &other.list {
+            let path = match (prefix.is_empty(), pr.path.is_empty()) {
+                (true, _) => pr.path.clone(),
+                (false, true) => prefix.to_owned(),
+                (false, false) => format!("{prefix}.{}", pr.path),
+            };
+            self.push(path, pr.message.clone());
+        }
+        if other.unlisted > 0 {
+            self.push(prefix, format!("… and {} more problems", other.unlisted));
+        }
     }
 
     /// Ok(()) when empty, otherwise the problems as an error.

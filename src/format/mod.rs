@@ -1,0 +1,88 @@
+//! File-format plumbing shared by every format: the lenient reader
+//! ([`lax`]), the problem list ([`problems`]), object reading with unknown
+//! and repeated keys reported ([`lax_object!`]), and the header check every
+//! file starts with.
+
+pub mod lax;
+pub mod problems;
+
+pub use problems::{Problem, Problems};
+
+use lax::{Lax, Reader};
+
+/// Declares a lenient object reader: a struct whose fields are every key the
+/// object may have (each `Option<T>`, `None` when absent), plus `fields`
+/// noting unknown and repeated keys; its [`lax::Accept`] implementation; and
+/// `FIELDS`, the keys in declaration order (what messages list as known).
+///
+/// ```ignore
+/// lax_object! { struct RawPair { left: Lax<f64>, right: Lax<f64> } }
+/// ```
+#[macro_export]
+#[doc(hidden)]
+macro_rules! lax_object {
+    ($(#[$meta:meta])* $vis:vis struct $name:ident { $($field:ident : $ty:ty),* $(,)? }) => {
+        $(#[$meta])*
+        #[derive(Default)]
+        $vis struct $name {
+            $($field: Option<$ty>,)*
+            fields: $crate::format::lax::Fields,
+        }
+
+        impl $name {
+            #[allow(dead_code)]
+            const FIELDS: &'static [&'static str] = &[$(stringify!($field)),*];
+        }
+
+        impl $crate::format::lax::Accept for $name {
+            fn map<'de, M: serde::de::MapAccess<'de>>(mut map: M) -> Result<Option<Self>, M::Error> {
+                let mut out = $name::default();
+                while let Some(key) = map.next_key::<String>()? {
+                    let f = &mut out.fields;
+                    match key.as_str() {
+                        $(stringify!($field) => f.store(&mut map, &key, &mut out.$field)?,)*
+                        _ => f.skip(&mut map, key)?,
+                    }
+                }
+                Ok(Some(out))
+            }
+        }
+    };
+}
+pub use lax_object;
+
+/// Checks `format` and `version` of a document of the given kind; a wrong
+/// format or version stops the read, since nothing else can be trusted.
+pub fn check_header(
+    r: &mut Reader,
+    format: Option<Lax<String>>,
+    version: Option<Lax<f64>>,
+    want: &str,
+    want_version: u64,
+) -> bool {
+    let Some(f) = r.require("format", format, &format!("the string {want:?}")) else {
+        return false;
+    };
+    if f != want {
+        let hint = match f.as_str() {
+            "burnin-model" => " (this is a model file)".to_string(),
+            "burnin-experiment" => " (this is an experiment file)".to_string(),
+            "burnin-results" => " (this is a results file)".to_string(),
+            _ => String::new(),
+        };
+        r.problems
+            .push("format", format!("expected {want:?}, found {f:?}{hint}"));
+        return false;
+    }
+    let Some(v) = r.require("version", version, "a whole number") else {
+        return false;
+    };
+    if v != want_version as f64 {
+        r.problems.push(
+            "version",
+            format!("version {v} is not supported; this build reads version {want_version}"),
+        );
+        return false;
+    }
+    true
+}

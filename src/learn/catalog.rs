@@ -1,0 +1,414 @@
+//! The catalogue of built-in algorithms: the one place that says, for each,
+//! its key in files, its display name, its parameter (with default, range and
+//! meaning), its published source, where it can run and which published bound
+//! belongs to it. The experiment reader, the default labels, the sweeps, the
+//! theory bounds, the benchmarks, the CLI and the page (through the worker)
+//! are all built from [`ALGORITHMS`].
+//!
+//! Adding a learner: its own file in `src/learn/`, one [`AlgorithmKind`]
+//! variant, one [`AlgorithmInfo`] entry below, and one arm in
+//! [`Algorithm::build`] and [`AnyLearner`].
+
+use serde::Serialize;
+
+use super::{
+    EpsGreedy, LearnRng, Learner, Mvp, PolicyView, Psrl, QUcbHoeffding, Setting, Ucb1, Ucbvi,
+    Uniform,
+};
+use crate::theory::{self, Bound};
+
+/// Which built-in algorithm.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum AlgorithmKind {
+    Mvp,
+    UcbviHoeffding,
+    UcbviBernstein,
+    QUcbHoeffding,
+    Psrl,
+    Ucb1,
+    EpsGreedy,
+    Uniform,
+}
+
+/// An algorithm's one numeric parameter.
+#[derive(Debug, Serialize)]
+pub struct ParamInfo {
+    /// The key in files and sweeps (`"bonus_scale"`).
+    pub key: &'static str,
+    /// How people call it (`"bonus scale"`).
+    pub name: &'static str,
+    pub default: f64,
+    /// Smallest value allowed (excluded when `min_open`).
+    pub min: f64,
+    pub min_open: bool,
+    /// Largest value allowed (None: no upper bound).
+    pub max: Option<f64>,
+    /// What the parameter does, in a sentence.
+    pub help: &'static str,
+    /// The allowed range in words, as messages say it ("a bonus scale > 0").
+    pub want: &'static str,
+    /// How a default label writes the value: the key, this, the value.
+    #[serde(skip)]
+    label: &'static str,
+    /// The default label shows the value even at its default.
+    #[serde(skip)]
+    label_always: bool,
+}
+
+impl ParamInfo {
+    /// Whether `x` is in the parameter's range.
+    pub fn allows(&self, x: f64) -> bool {
+        let above = if self.min_open {
+            x > self.min
+        } else {
+            x >= self.min
+        };
+        x.is_finite() && above && self.max.is_none_or(|m| x <= m)
+    }
+
+    /// `Ok` or "expected {want}, found {x}".
+    pub fn check(&self, x: f64) -> Result<(), String> {
+        if self.allows(x) {
+            Ok(())
+        } else {
+            Err(format!("expected {}, found {x}", self.want))
+        }
+    }
+}
+
+/// One built-in algorithm, as every front end shows it.
+#[derive(Debug, Serialize)]
+pub struct AlgorithmInfo {
+    #[serde(skip)]
+    pub kind: AlgorithmKind,
+    /// The key in files (`"algorithm"`).
+    pub key: &'static str,
+    /// The display name.
+    pub name: &'static str,
+    pub param: Option<&'static ParamInfo>,
+    /// Where it is published (or "common practice").
+    pub reference: &'static str,
+    /// Runs only on bandits (S = 1, H = 1).
+    pub bandit_only: bool,
+    /// Whether a published regret bound is drawn beside it.
+    pub has_bound: bool,
+    /// Its published regret bound as an order, when it has one.
+    #[serde(skip)]
+    pub bound: Option<fn(&Setting, &[u64]) -> Bound>,
+}
+
+const BONUS_HELP: &str =
+    "multiplies the exploration bonus; 1 is the published constant, below 1 explores less";
+
+static BONUS: ParamInfo = ParamInfo {
+    key: "bonus_scale",
+    name: "bonus scale",
+    default: 1.0,
+    min: 0.0,
+    min_open: true,
+    max: None,
+    help: BONUS_HELP,
+    want: "a bonus scale > 0",
+    label: " ×",
+    label_always: false,
+};
+
+static EPSILON: ParamInfo = ParamInfo {
+    key: "epsilon",
+    name: "ε",
+    default: 0.1,
+    min: 0.0,
+    min_open: false,
+    max: Some(1.0),
+    help: "probability of a uniformly random action at each step",
+    want: "a probability ε in [0, 1]",
+    label: " ε=",
+    label_always: true,
+};
+
+static PRIOR: ParamInfo = ParamInfo {
+    key: "prior",
+    name: "prior",
+    default: 1.0,
+    min: 0.0,
+    min_open: true,
+    max: None,
+    help: "α₀ of the Dirichlet prior on each transition row; 1 is uniform on the simplex",
+    want: "a prior α₀ > 0",
+    label: " prior ",
+    label_always: false,
+};
+
+/// Every built-in algorithm, in the order the docs and the page list them.
+pub static ALGORITHMS: &[AlgorithmInfo] = &[
+    AlgorithmInfo {
+        kind: AlgorithmKind::Mvp,
+        key: "mvp",
+        name: "MVP (doubling batches)",
+        param: Some(&BONUS),
+        reference: "Zhang, Chen, Lee & Du, Settling the Sample Complexity of Online Reinforcement Learning, COLT 2024, arXiv:2307.13586",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::mvp),
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::UcbviHoeffding,
+        key: "ucbvi-hoeffding",
+        name: "UCBVI, Hoeffding bonus",
+        param: Some(&BONUS),
+        reference: "Azar, Osband & Munos, Minimax Regret Bounds for Reinforcement Learning, ICML 2017, arXiv:1703.05449",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::ucbvi_hoeffding),
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::UcbviBernstein,
+        key: "ucbvi-bernstein",
+        name: "UCBVI, Bernstein bonus",
+        param: Some(&BONUS),
+        reference: "Azar, Osband & Munos, Minimax Regret Bounds for Reinforcement Learning, ICML 2017, arXiv:1703.05449",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::ucbvi_bernstein),
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::QUcbHoeffding,
+        key: "q-ucb-hoeffding",
+        name: "Q-learning, UCB-Hoeffding",
+        param: Some(&BONUS),
+        reference: "Jin, Allen-Zhu, Bubeck & Jordan, Is Q-learning Provably Efficient?, NeurIPS 2018, arXiv:1807.03765",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::q_ucb_hoeffding),
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::Psrl,
+        key: "psrl",
+        name: "PSRL (posterior sampling)",
+        param: Some(&PRIOR),
+        reference: "Osband, Russo & Van Roy, (More) Efficient Reinforcement Learning via Posterior Sampling, NeurIPS 2013, arXiv:1306.0940",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::psrl),
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::Ucb1,
+        key: "ucb1",
+        name: "UCB1 (bandits only)",
+        param: Some(&BONUS),
+        reference: "Auer, Cesa-Bianchi & Fischer, Finite-time Analysis of the Multiarmed Bandit Problem, Machine Learning 47, 2002",
+        bandit_only: true,
+        has_bound: true,
+        bound: Some(theory::ucb1),
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::EpsGreedy,
+        key: "eps-greedy",
+        name: "ε-greedy (empirical model)",
+        param: Some(&EPSILON),
+        reference: "common practice (no single source)",
+        bandit_only: false,
+        has_bound: false,
+        bound: None,
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::Uniform,
+        key: "uniform",
+        name: "Uniform random",
+        param: None,
+        reference: "common practice (no single source)",
+        bandit_only: false,
+        has_bound: false,
+        bound: None,
+    },
+];
+
+impl AlgorithmKind {
+    /// This algorithm's catalogue entry.
+    pub fn info(self) -> &'static AlgorithmInfo {
+        ALGORITHMS
+            .iter()
+            .find(|i| i.kind == self)
+            .expect("every kind has a catalogue entry")
+    }
+
+    /// The algorithm of a file key.
+    pub fn from_key(key: &str) -> Option<AlgorithmKind> {
+        ALGORITHMS.iter().find(|i| i.key == key).map(|i| i.kind)
+    }
+}
+
+/// Every algorithm key, comma-separated, as messages list them.
+pub fn keys() -> String {
+    ALGORITHMS
+        .iter()
+        .map(|i| i.key)
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// A built-in algorithm with its parameter's value.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Algorithm {
+    pub kind: AlgorithmKind,
+    /// The parameter's value (0 for an algorithm without one).
+    pub param: f64,
+}
+
+impl Algorithm {
+    /// The algorithm with its parameter at the catalogue's default.
+    pub fn new(kind: AlgorithmKind) -> Algorithm {
+        Algorithm {
+            kind,
+            param: kind.info().param.map_or(0.0, |p| p.default),
+        }
+    }
+
+    /// The algorithm with parameter `x` (unchecked; see [`ParamInfo::check`]).
+    pub fn with(kind: AlgorithmKind, x: f64) -> Algorithm {
+        Algorithm { kind, param: x }
+    }
+
+    pub fn info(&self) -> &'static AlgorithmInfo {
+        self.kind.info()
+    }
+
+    /// The name used in files (`"algorithm"`).
+    pub fn key(&self) -> &'static str {
+        self.info().key
+    }
+
+    /// A default label: the key, and the parameter where it is not the
+    /// default (ε always).
+    pub fn default_label(&self) -> String {
+        let info = self.info();
+        match info.param {
+            Some(p) if p.label_always || self.param != p.default => {
+                format!("{}{}{}", info.key, p.label, self.param)
+            }
+            _ => info.key.to_string(),
+        }
+    }
+
+    /// The same algorithm with parameter `key` set to `x`, when it takes one.
+    pub fn with_param(&self, key: &str, x: f64) -> Option<Algorithm> {
+        (self.info().param?.key == key).then_some(Algorithm {
+            kind: self.kind,
+            param: x,
+        })
+    }
+
+    /// Why this algorithm cannot run in `set`, if it cannot.
+    pub fn check_setting(&self, set: &Setting) -> Result<(), String> {
+        if self.info().bandit_only && (set.states != 1 || set.horizon != 1) {
+            return Err(format!(
+                "{} is for bandits (S = 1, H = 1); this model has S = {}, H = {}",
+                self.key(),
+                set.states,
+                set.horizon
+            ));
+        }
+        Ok(())
+    }
+
+    /// Its published regret bound at the checkpoints `ks`, if it has one.
+    pub fn bound(&self, set: &Setting, ks: &[u64]) -> Option<Bound> {
+        self.info().bound.map(|b| b(set, ks))
+    }
+
+    /// Builds the learner, or says why it cannot run in this setting.
+    pub fn build(&self, set: &Setting) -> Result<AnyLearner, String> {
+        self.check_setting(set)?;
+        let (set, x) = (*set, self.param);
+        Ok(match self.kind {
+            AlgorithmKind::Mvp => AnyLearner::Mvp(Mvp::new(set, x)),
+            AlgorithmKind::UcbviHoeffding => AnyLearner::Ucbvi(Ucbvi::new(set, x, false)),
+            AlgorithmKind::UcbviBernstein => AnyLearner::Ucbvi(Ucbvi::new(set, x, true)),
+            AlgorithmKind::QUcbHoeffding => AnyLearner::QUcbHoeffding(QUcbHoeffding::new(set, x)),
+            AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
+            AlgorithmKind::Ucb1 => AnyLearner::Ucb1(Ucb1::new(set.actions, x)),
+            AlgorithmKind::EpsGreedy => AnyLearner::EpsGreedy(EpsGreedy::new(set, x)),
+            AlgorithmKind::Uniform => AnyLearner::Uniform(Uniform::new(set.actions)),
+        })
+    }
+}
+
+/// Any learner, by value: the runner matches on it once per call and runs a
+/// loop compiled for that learner (static calls the compiler can inline),
+/// instead of two dynamic calls per step.
+pub enum AnyLearner {
+    Mvp(Mvp),
+    Ucbvi(Ucbvi),
+    QUcbHoeffding(QUcbHoeffding),
+    Psrl(Psrl),
+    Ucb1(Ucb1),
+    EpsGreedy(EpsGreedy),
+    Uniform(Uniform),
+}
+
+/// `with_learner!(any, l => expr)`: evaluates `expr` with `l` bound to the
+/// concrete learner inside `any` (a `&mut AnyLearner` or `&AnyLearner`).
+#[macro_export]
+#[doc(hidden)]
+macro_rules! with_learner {
+    ($any:expr, $l:ident => $body:expr) => {
+        match $any {
+            $crate::learn::AnyLearner::Mvp($l) => $body,
+            $crate::learn::AnyLearner::Ucbvi($l) => $body,
+            $crate::learn::AnyLearner::QUcbHoeffding($l) => $body,
+            $crate::learn::AnyLearner::Psrl($l) => $body,
+            $crate::learn::AnyLearner::Ucb1($l) => $body,
+            $crate::learn::AnyLearner::EpsGreedy($l) => $body,
+            $crate::learn::AnyLearner::Uniform($l) => $body,
+        }
+    };
+}
+pub use with_learner;
+
+impl Learner for AnyLearner {
+    fn begin_episode(&mut self, rng: &mut LearnRng) {
+        with_learner!(self, l => l.begin_episode(rng))
+    }
+    fn policy(&self) -> PolicyView<'_> {
+        with_learner!(self, l => l.policy())
+    }
+    fn policy_version(&self) -> u64 {
+        with_learner!(self, l => l.policy_version())
+    }
+    fn act(&mut self, h: usize, s: usize, rng: &mut LearnRng) -> usize {
+        with_learner!(self, l => l.act(h, s, rng))
+    }
+    fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, rng: &mut LearnRng) {
+        with_learner!(self, l => l.observe(h, s, a, r, next, rng))
+    }
+    fn end_episode(&mut self, rng: &mut LearnRng) {
+        with_learner!(self, l => l.end_episode(rng))
+    }
+    fn model_updates(&self) -> u64 {
+        with_learner!(self, l => l.model_updates())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Every kind has exactly one entry and keys are unique (the catalogue
+    /// is the one home of these facts).
+    #[test]
+    fn every_kind_has_one_entry_with_a_unique_key() {
+        for (i, a) in ALGORITHMS.iter().enumerate() {
+            assert_eq!(a.kind.info().key, a.key);
+            assert_eq!(AlgorithmKind::from_key(a.key), Some(a.kind));
+            assert!(
+                ALGORITHMS[..i]
+                    .iter()
+                    .all(|b| b.key != a.key && b.kind != a.kind)
+            );
+            assert_eq!(a.has_bound, a.bound.is_some(), "{}", a.key);
+            if let Some(p) = a.param {
+                assert!(p.allows(p.default), "{}: default in range", a.key);
+            }
+        }
+    }
+}

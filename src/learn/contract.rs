@@ -1,0 +1,67 @@
+//! The learner contract: what a learner is told ([`Setting`]), what it
+//! gives back before each episode ([`PolicyView`]), and the calls the runner
+//! makes ([`Learner`]). A learner sees only S, A, H, K, δ and its own
+//! trajectories, never the model.
+
+/// The generator every run (learner and simulator) draws from: Xoshiro256++,
+/// seeded through SplitMix64 by `seed_from_u64` (Blackman & Vigna, "Scrambled
+/// Linear Pseudorandom Number Generators", ACM TOMS 47(4), 2021).
+pub type LearnRng = rand_xoshiro::Xoshiro256PlusPlus;
+
+/// What a learner is told about its problem.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Setting {
+    pub states: usize,
+    pub actions: usize,
+    pub horizon: usize,
+    /// K, the number of episodes the run will last.
+    pub episodes: u64,
+    /// δ, the failure probability of confidence-based learners.
+    pub delta: f64,
+}
+
+impl Setting {
+    /// Index of the row (h, s, a) in per-step tables.
+    #[inline]
+    pub fn row(&self, h: usize, s: usize, a: usize) -> usize {
+        (h * self.states + s) * self.actions + a
+    }
+    /// Number of (h, s, a) rows.
+    pub fn rows(&self) -> usize {
+        self.horizon * self.states * self.actions
+    }
+    /// T = K·H, the total number of steps.
+    pub fn steps(&self) -> f64 {
+        self.episodes as f64 * self.horizon as f64
+    }
+}
+
+/// The policy a learner follows in the coming episode, as the runner
+/// evaluates it.
+#[derive(Debug, Clone, Copy)]
+pub enum PolicyView<'a> {
+    /// A deterministic policy, `[h·S + s]` → action.
+    Greedy(&'a [u32]),
+    /// With probability ε a uniformly random action, else the greedy one.
+    Mixed { greedy: &'a [u32], epsilon: f64 },
+    /// Every action with probability 1/A.
+    Uniform,
+}
+
+/// An online learner.
+pub trait Learner: Send {
+    /// Called before each episode; plans if the learner plans now.
+    fn begin_episode(&mut self, rng: &mut LearnRng);
+    /// The policy of the coming episode (valid after `begin_episode`).
+    fn policy(&self) -> PolicyView<'_>;
+    /// Changes whenever [`Learner::policy`] changes.
+    fn policy_version(&self) -> u64;
+    /// The action in state `s` at step `h`.
+    fn act(&mut self, h: usize, s: usize, rng: &mut LearnRng) -> usize;
+    /// One observed transition.
+    fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, rng: &mut LearnRng);
+    /// Called after each episode.
+    fn end_episode(&mut self, _rng: &mut LearnRng) {}
+    /// How often the plan was recomputed (the initial plan included).
+    fn model_updates(&self) -> u64;
+}
