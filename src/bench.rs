@@ -15,7 +15,7 @@ use serde::Serialize;
 
 use std::sync::Arc;
 
-use crate::experiment::{Context, Experiment, LearnerSpec, Run, RunRecord};
+use crate::experiment::{Experiment, LearnerSpec, Point, Run, RunRecord};
 use crate::generate::Garnet;
 use crate::learn::{ALGORITHMS, Algorithm, AlgorithmKind};
 use crate::solve::solve;
@@ -126,7 +126,7 @@ const LEARN_REPS: usize = 5;
 const LEARN_SECONDS: f64 = 4.0;
 
 /// Every run of `ctx`, one after another, each advanced `CHUNK` episodes per call.
-fn run_in_chunks(ctx: &Arc<Context>) -> Vec<RunRecord> {
+fn run_in_chunks(ctx: &Arc<Point>) -> Vec<RunRecord> {
     (0..ctx.runs())
         .map(|i| {
             let mut r = Run::new(Arc::clone(ctx), i);
@@ -183,7 +183,7 @@ pub fn learn_figures(now: &dyn Fn() -> f64, episodes: u64, only: Option<&str>) -
         .into_iter()
         .filter(|a| only.is_none_or(|k| a.key() == k))
         .map(|a| {
-            let ctx = Context::new(learn_experiment(a, episodes));
+            let ctx = Point::new(learn_experiment(a, episodes));
             // Repeated while the repetitions so far took under LEARN_SECONDS
             // (at most LEARN_REPS): a shared machine's noise moves single
             // runs by a quarter, and the ratios compare best against best.
@@ -211,7 +211,7 @@ pub fn replan_figures(now: &dyn Fn() -> f64, max_exp: u32) -> Vec<Figure> {
     (3..=max_exp)
         .map(|e| {
             let k = 10u64.pow(e);
-            let ctx = Context::new(learn_experiment(Algorithm::new(AlgorithmKind::Mvp), k));
+            let ctx = Point::new(learn_experiment(Algorithm::new(AlgorithmKind::Mvp), k));
             let t = now();
             let records = run_in_chunks(&ctx);
             let secs = now() - t;

@@ -11,6 +11,7 @@
 //! from a generator passed in by the caller.
 
 pub mod bench;
+pub mod catalogue;
 pub mod experiment;
 pub mod format;
 pub mod generate;

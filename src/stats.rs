@@ -153,7 +153,7 @@ mod tests {
     use super::*;
 
     /// Two-sided 95% critical values t_{0.975, df} of Student's t, from the
-    /// NIST/SEMATECH e-Handbook of Statistical Methods, Table 1.4.7.2
+    /// NIST/SEMATECH e-Handbook of Statistical Methods, section 1.3.6.7.2
     /// ("Critical values of the Student's t distribution"), to three decimals;
     /// the values are quoted from memory of that standard table (they agree
     /// with every printed t table).

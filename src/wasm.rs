@@ -116,7 +116,7 @@ pub fn format_model(text: &str) -> JsValue {
 /// stepped in chunks so the worker can report progress and hear a cancel.
 #[wasm_bindgen]
 pub struct ExperimentRun {
-    batch: crate::experiment::Batch,
+    batch: crate::experiment::RunQueue,
     text: String,
     index: usize,
     count: usize,
@@ -133,7 +133,7 @@ impl ExperimentRun {
         let count = count.max(1) as usize;
         let index = (index as usize).min(count - 1);
         Ok(ExperimentRun {
-            batch: crate::experiment::Batch::shard(exp, index, count),
+            batch: crate::experiment::RunQueue::shard(exp, index, count),
             text: text.to_owned(),
             index,
             count,
@@ -143,15 +143,13 @@ impl ExperimentRun {
     /// The finished shard as a burnin-shard file's text (for `mergeShards`).
     #[wasm_bindgen(js_name = shardJson)]
     pub fn shard_json(&self) -> String {
-        crate::experiment::ShardFile {
-            format: crate::experiment::SHARD_FORMAT.into(),
-            version: crate::experiment::SHARD_VERSION,
-            shard: self.index + 1,
-            of: self.count,
-            experiment: self.text.clone(),
-            model: None,
-            records: self.batch.records(),
-        }
+        crate::experiment::ShardFile::new(
+            self.index,
+            self.count,
+            self.text.clone(),
+            None,
+            self.batch.records(),
+        )
         .to_json()
     }
 
@@ -177,12 +175,75 @@ impl ExperimentRun {
 pub fn generate_model(spec: &str) -> JsValue {
     let value: serde_json::Value = match serde_json::from_str(spec) {
         Ok(v) => v,
-        Err(e) => return problems_value(&Problems::single("", crate::lax::syntax_problem(&e))),
+        Err(e) => {
+            return problems_value(&Problems::single(
+                "",
+                crate::format::lax::syntax_problem(&e),
+            ));
+        }
     };
     match crate::generate::GeneratorSpec::from_json(&value, "generator")
         .and_then(|g| g.generate("generator"))
     {
         Ok(m) => JsValue::from_str(&crate::write_model(&m)),
+        Err(p) => problems_value(&p),
+    }
+}
+
+/// The catalogues of algorithms and generators and the file limits (see
+/// `src/catalogue.rs`), as plain objects.
+#[wasm_bindgen]
+pub fn catalogue() -> JsValue {
+    to_js(&crate::catalogue::catalogue())
+}
+
+/// A serialisable value as a plain JS value (objects, not Maps).
+fn to_js<T: serde::Serialize>(v: &T) -> JsValue {
+    v.serialize(&serde_wasm_bindgen::Serializer::json_compatible())
+        .expect("catalogue and summaries serialise")
+}
+
+/// What a file is, read by the core: `{kind: "experiment", experiment}`
+/// (its set-up, model text and generator), `{kind: "results", json, csv}`,
+/// or `{kind: "model"}` for anything else (solving it reports its
+/// problems); problems for a broken experiment or results file.
+#[wasm_bindgen(js_name = readDocument)]
+pub fn read_document(text: &str) -> JsValue {
+    use crate::experiment::{EXPERIMENT_FORMAT, RESULTS_FORMAT, SWEEP_FORMAT};
+    let obj = Object::new();
+    match crate::format::identify(text).as_deref() {
+        Some(EXPERIMENT_FORMAT) => match crate::experiment::parse_experiment(text, None) {
+            Ok(e) => {
+                set(&obj, "kind", "experiment");
+                set(&obj, "experiment", to_js(&e.summary()));
+            }
+            Err(p) => return problems_value(&p),
+        },
+        Some(RESULTS_FORMAT) | Some(SWEEP_FORMAT) => match crate::experiment::parse_results(text) {
+            Ok(out) => {
+                set(&obj, "kind", "results");
+                set(&obj, "json", out.to_json());
+                set(&obj, "csv", out.to_csv());
+            }
+            Err(p) => return problems_value(&p),
+        },
+        _ => set(&obj, "kind", "model"),
+    }
+    set(&obj, "ok", true);
+    obj.into()
+}
+
+/// The model with its graph layout replaced by `positions` (x, y pairs,
+/// flattened), as canonical text; or the problems.
+#[wasm_bindgen(js_name = withLayout)]
+pub fn with_layout(text: &str, positions: &[f64]) -> JsValue {
+    let mut m = match crate::parse_model(text) {
+        Ok(m) => m,
+        Err(p) => return problems_value(&p),
+    };
+    let layout: Vec<[f64; 2]> = positions.chunks_exact(2).map(|c| [c[0], c[1]]).collect();
+    match m.set_layout(Some(layout)) {
+        Ok(()) => JsValue::from_str(&crate::write_model(&m)),
         Err(p) => problems_value(&p),
     }
 }

@@ -211,7 +211,7 @@ fn bad_sweeps_name_the_value() {
 /// the mean, at most H·K; curves end at K).
 #[test]
 fn every_demo_model_runs_with_every_learner() {
-    use burnin::experiment::{Context, run_all, summarise};
+    use burnin::experiment::{Point, run_all, summarise};
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models");
     let index: Value =
         serde_json::from_str(&std::fs::read_to_string(dir.join("index.json")).unwrap()).unwrap();
@@ -234,7 +234,7 @@ fn every_demo_model_runs_with_every_learner() {
         }
         let exp = json!({"format": "burnin-experiment", "version": 1, "model": model,
             "episodes": 200, "seeds": 2, "checkpoints": 16, "learners": learners});
-        let ctx = Context::new(parse_experiment(&exp.to_string(), None).unwrap());
+        let ctx = Point::new(parse_experiment(&exp.to_string(), None).unwrap());
         let r = summarise(&ctx, run_all(&ctx));
         let hk = r.horizon as f64 * 200.0;
         for l in &r.learners {
@@ -280,11 +280,11 @@ fn demo_experiments_read_with_their_model_paths() {
 /// CLI's thread pool gets (the same records, summarised the same way).
 #[test]
 fn stepping_in_chunks_gives_the_same_output_as_running_whole() {
-    use burnin::experiment::{Batch, Context, assemble, run_all};
+    use burnin::experiment::{Point, RunQueue, assemble, run_all};
     let text =
         sweep_experiment(json!({"parameter": "bonus_scale", "values": [0.01, 0.1]})).to_string();
     let exp = parse_experiment(&text, None).unwrap();
-    let mut b = Batch::new(exp.clone());
+    let mut b = RunQueue::new(exp.clone());
     assert_eq!(b.total_episodes(), 2 * 2 * 2 * 300);
     let mut calls = 0;
     while !b.advance(37) {
@@ -292,7 +292,7 @@ fn stepping_in_chunks_gives_the_same_output_as_running_whole() {
         assert!(b.episodes_done() <= b.total_episodes());
     }
     assert!(calls > 30);
-    let contexts: Vec<_> = exp.points().into_iter().map(Context::new).collect();
+    let contexts: Vec<_> = exp.points().into_iter().map(Point::new).collect();
     let records = contexts.iter().map(run_all).collect();
     assert_eq!(b.output(), assemble(&exp, &contexts, records));
 }

@@ -4,7 +4,7 @@ mod common;
 
 use std::sync::Arc;
 
-use burnin::experiment::{Context, Results, parse_experiment, run_all, summarise};
+use burnin::experiment::{Point, Results, parse_experiment, run_all, summarise};
 use burnin::generate::{Bandit, Garnet};
 use burnin::learn::{LearnRng, Learner, Mvp, Setting};
 use burnin::solve::{Policy, evaluate, solve};
@@ -23,7 +23,7 @@ fn experiment(model: &Mdp, episodes: u64, seeds: u64, learners: &str) -> String 
 
 fn run(text: &str) -> Results {
     let exp = parse_experiment(text, None).expect("a valid experiment");
-    let ctx = Context::new(exp);
+    let ctx = Point::new(exp);
     let records = run_all(&ctx);
     summarise(&ctx, records)
 }
@@ -179,7 +179,8 @@ fn optimistic_learners_are_sublinear_and_uniform_is_linear() {
 
 /// The χ² goodness-of-fit statistic of 200 000 next-state draws from a
 /// 10-outcome row stays below the 0.1% critical value χ²₀.₉₉₉(9) = 27.877
-/// (NIST/SEMATECH e-Handbook, Table 1.4.7.4, from memory); and so do those
+/// (NIST/SEMATECH e-Handbook of Statistical Methods, section 1.3.6.7.4,
+/// "Critical values of the chi-square distribution", from memory); and so do those
 /// of Bernoulli and uniform reward draws binned in 5 (χ²₀.₉₉₉(4) = 18.467).
 #[test]
 fn sampler_passes_a_chi_square_goodness_of_fit_test() {
@@ -263,7 +264,7 @@ fn same_file_and_seed_give_identical_results() {
     assert_eq!(a, b);
     assert_eq!(a.to_json(), b.to_json());
     // Runs are independent: any order of the records gives the same summary.
-    let ctx = Context::new(parse_experiment(&text, None).unwrap());
+    let ctx = Point::new(parse_experiment(&text, None).unwrap());
     let mut records = run_all(&ctx);
     records.reverse();
     assert_eq!(summarise(&ctx, records), a);

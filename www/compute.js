@@ -75,6 +75,18 @@ export const check = (text) => quick.request('check', { text }).promise;
 /** Checks an experiment file's text: {ok: true} or its problems. */
 export const checkExperiment = (text) => quick.request('check-experiment', { text }).promise;
 
+/** The core's catalogues of algorithms and generators, and its file limits. */
+export const catalogue = () => quick.request('catalogue', {}).promise;
+
+/** What a file is, read by the core: {ok, kind: 'model' | 'experiment' | 'results', …} or problems. */
+export const readDocument = (text) => quick.request('read-document', { text }).promise;
+
+/** A model file's text in the canonical layout (every field explicit, as the core reads it), or problems. */
+export const canonical = (text) => quick.request('format', { text }).promise;
+
+/** The model's text with its graph layout replaced (positions: [[x, y], …]), or problems. */
+export const withLayout = (text, positions) => quick.request('with-layout', { text, positions: new Float64Array(positions.flat()) }).promise;
+
 /** A generated model file's text (or problems) from a generator object. */
 export const generate = (spec) => quick.request('generate', { spec: JSON.stringify(spec) }).promise;
 

@@ -40,7 +40,7 @@ export class Editor {
     this.step = 0;
     this.seq = 0;
     $('ed-apply').addEventListener('click', () => this.onUse(JSON.stringify(this.doc)));
-    $('ed-revert').addEventListener('click', () => this.load(this.original));
+    $('ed-revert').addEventListener('click', () => this.load(this.original, this.facts));
     $('ed-step').addEventListener('change', () => { this.step = Number($('ed-step').value); this.renderGrid(); this.validate(); });
     $('ed-stationary').addEventListener('change', () => this.setStationary($('ed-stationary').checked));
     for (const [id, key, conv] of [['ed-name', 'name', String], ['ed-notes', 'notes', String], ['ed-horizon', 'horizon', Number]]) {
@@ -50,10 +50,15 @@ export class Editor {
     $('ed-actions').addEventListener('change', () => this.setLabels('actions', $('ed-actions').value));
   }
 
-  /** Loads a model file's text into the editor. */
-  load(text) {
-    this.original = text;
-    this.doc = JSON.parse(text);
+  /**
+   * Loads a model into the editor: `doc` is the model in the core's
+   * canonical form (every field explicit), `facts` the core's summary of it
+   * (sizes, stationary or not). The editor works on its own copy.
+   */
+  load(doc, facts) {
+    this.original = doc;
+    this.facts = facts;
+    this.doc = structuredClone(doc);
     this.step = 0;
     const d = this.doc;
     $('ed-name').value = d.name || '';
@@ -61,17 +66,17 @@ export class Editor {
     $('ed-horizon').value = String(d.horizon);
     $('ed-states').value = d.states.join(', ');
     $('ed-actions').value = d.actions.join(', ');
-    $('ed-stationary').checked = d.stationary !== false && (d.steps || []).length === 1;
+    $('ed-stationary').checked = facts.stationary;
     this.render();
     this.validate();
   }
 
-  tables() { return this.doc.stationary === false ? this.doc.steps.length : 1; }
+  tables() { return this.doc.stationary ? 1 : this.doc.steps.length; }
 
   /** Keeps one table per step when H changes in the per-step form. */
   fitSteps() {
     const d = this.doc;
-    if (d.stationary !== false) return;
+    if (d.stationary) return;
     const h = Math.max(1, Math.min(500, Math.floor(d.horizon) || 1));
     while (d.steps.length < h) d.steps.push(structuredClone(d.steps[d.steps.length - 1]));
     d.steps.length = h;
@@ -124,9 +129,9 @@ export class Editor {
     const d = this.doc;
     const sel = $('ed-step');
     sel.replaceChildren();
-    for (let h = 0; h < this.tables(); h++) sel.append(el('option', d.stationary === false ? `step ${h + 1}` : 'every step', { value: String(h) }));
+    for (let h = 0; h < this.tables(); h++) sel.append(el('option', d.stationary ? 'every step' : `step ${h + 1}`, { value: String(h) }));
     sel.value = String(this.step);
-    sel.disabled = d.stationary !== false ? true : false;
+    sel.disabled = d.stationary;
     const start = $('ed-start');
     start.replaceChildren();
     if (d.states.length > MAX_START_FIELDS) {

@@ -5,18 +5,7 @@ import { runExperiment } from './compute.js';
 import { el, download, safeName } from './dom.js';
 import { drawChart, CanvasPen, SvgPen, PALETTE, nearestIndex } from './chart.js';
 import { short, grouped, valueColour, inkOn } from './format.js';
-
-export const ALGORITHMS = {
-  mvp: { param: 'bonus_scale', def: 1, name: 'MVP (doubling batches)' },
-  'ucbvi-hoeffding': { param: 'bonus_scale', def: 1, name: 'UCBVI, Hoeffding bonus' },
-  'ucbvi-bernstein': { param: 'bonus_scale', def: 1, name: 'UCBVI, Bernstein bonus' },
-  'q-ucb-hoeffding': { param: 'bonus_scale', def: 1, name: 'Q-learning, UCB-Hoeffding' },
-  psrl: { param: 'prior', def: 1, name: 'PSRL' },
-  ucb1: { param: 'bonus_scale', def: 1, name: 'UCB1 (bandits only)' },
-  'eps-greedy': { param: 'epsilon', def: 0.1, name: 'ε-greedy' },
-  uniform: { param: null, def: null, name: 'Uniform' },
-};
-const PARAM_NAMES = { bonus_scale: 'bonus scale', prior: 'prior', epsilon: 'ε' };
+import { sweepableParams } from './generator-form.js';
 
 /** The ready experiment of a first visit: a few seconds in the browser. */
 export const DEFAULT_SETUP = {
@@ -37,9 +26,16 @@ const $ = (id) => document.getElementById(id);
 
 
 export class ExperimentView {
-  /** hooks: {model() → {text, name, generator}, changed(), saveResults(experimentText, resultsJson)} */
-  constructor(hooks) {
+  /**
+   * hooks: {model() → {text, name, generator}, changed(), saveResults(experimentText, resultsJson)};
+   * catalogue: the core's catalogues (src/catalogue.rs), whose algorithms
+   * the learner table offers.
+   */
+  constructor(hooks, catalogue) {
     this.hooks = hooks;
+    this.catalogue = catalogue;
+    /** key → the catalogue's algorithm entry. */
+    this.algorithms = new Map(catalogue.algorithms.map((a) => [a.key, a]));
     this.results = null;
     this.running = null;
     this.layout = null;
@@ -68,18 +64,28 @@ export class ExperimentView {
     const canvas = $('chart');
     canvas.addEventListener('mousemove', (e) => this.hover(e));
     canvas.addEventListener('mouseleave', () => { $('chart-tip').hidden = true; });
-    this.setSweepChoices(false);
+    this.setSweepChoices(null);
   }
 
   fileBase() { return safeName(this.results?.data?.name || this.results?.data?.model_name || this.hooks.model().name); }
 
-  /** Sweep parameters on offer; S, A and H only for a generated model. */
-  setSweepChoices(generated) {
+  /**
+   * Sweep parameters on offer: δ, the learners' parameters, and for a
+   * generated model every numeric parameter of its generator (named as the
+   * core names them: `generator.NAME` where a learner parameter has the name).
+   */
+  setSweepChoices(generator) {
     const sel = $('sweep-param');
     const keep = sel.value;
     sel.replaceChildren(el('option', 'nothing', { value: '' }));
-    for (const p of ['bonus_scale', 'epsilon', 'delta'].concat(generated ? ['states', 'actions', 'horizon'] : [])) {
-      sel.append(el('option', p.replace('_', ' '), { value: p }));
+    const learnerKeys = this.catalogue.sweep_keys;
+    for (const k of learnerKeys) {
+      const p = this.catalogue.algorithms.find((a) => a.param?.key === k)?.param;
+      sel.append(el('option', p ? `${p.name} (learners)` : k, { value: k }));
+    }
+    for (const p of sweepableParams(this.catalogue.generators, generator)) {
+      const key = learnerKeys.includes(p.name) ? `generator.${p.name}` : p.name;
+      sel.append(el('option', `${p.name.replace(/_/g, ' ')} (generator)`, { value: key, title: p.help }));
     }
     sel.value = [...sel.options].some((o) => o.value === keep) ? keep : '';
   }
@@ -89,18 +95,18 @@ export class ExperimentView {
     const use = el('input', null, { type: 'checkbox', 'aria-label': 'use this learner' });
     use.checked = l.use !== false;
     const alg = el('select', null, { 'aria-label': 'algorithm' });
-    for (const [k, v] of Object.entries(ALGORITHMS)) alg.append(el('option', v.name, { value: k }));
+    for (const a of this.catalogue.algorithms) alg.append(el('option', a.name, { value: a.key, title: a.reference }));
     alg.value = l.algorithm;
     const param = el('input', null, { type: 'number', step: 'any', min: '0' });
     const label = el('input', null, { type: 'text', 'aria-label': 'label', placeholder: 'default label' });
     label.value = l.label || '';
     const remove = el('button', '✕', { type: 'button', 'aria-label': 'remove this learner' });
     const syncParam = (value) => {
-      const a = ALGORITHMS[alg.value];
-      param.disabled = !a.param;
-      param.setAttribute('aria-label', a.param ? PARAM_NAMES[a.param] : 'no parameter');
-      param.value = a.param ? String(value ?? a.def) : '';
-      param.title = a.param ? PARAM_NAMES[a.param] : '';
+      const p = this.algorithms.get(alg.value).param;
+      param.disabled = !p;
+      param.setAttribute('aria-label', p ? p.name : 'no parameter');
+      param.value = p ? String(value ?? p.default) : '';
+      param.title = p ? `${p.name}: ${p.help}` : '';
     };
     syncParam(l.value);
     alg.addEventListener('change', () => syncParam(null));
@@ -131,7 +137,7 @@ export class ExperimentView {
     $('exp-delta').value = String(d.delta);
     this.rows.replaceChildren();
     for (const l of Array.isArray(d.learners) ? d.learners : DEFAULT_SETUP.learners) {
-      if (l && ALGORITHMS[l.algorithm]) this.addRow(l);
+      if (l && this.algorithms.has(l.algorithm)) this.addRow(l);
     }
     $('sweep-param').value = d.sweep?.parameter || '';
     $('sweep-values').value = d.sweep?.values || '';
@@ -146,9 +152,9 @@ export class ExperimentView {
     [...this.rows.children].forEach((tr, i) => {
       const l = s.learners[i];
       if (!l.use) return;
-      const a = ALGORITHMS[l.algorithm];
+      const p = this.algorithms.get(l.algorithm).param;
       const o = { algorithm: l.algorithm };
-      if (a.param) o[a.param] = l.value;
+      if (p) o[p.key] = l.value;
       if (l.label.trim()) o.label = l.label.trim();
       learners.push(o);
       rows.push(tr);
@@ -157,9 +163,11 @@ export class ExperimentView {
     if (s.sweep.parameter) {
       exp.sweep = { parameter: s.sweep.parameter, values: s.sweep.values.split(/[,\s]+/).filter(Boolean).map(Number) };
     }
-    if (s.sweep.parameter && ['states', 'actions', 'horizon'].includes(s.sweep.parameter) && m.generator) exp.generator = m.generator;
-    else exp.model = JSON.parse(m.text);
-    return { text: JSON.stringify(exp), rows };
+    const byGenerator = s.sweep.parameter && m.generator && !this.catalogue.sweep_keys.includes(s.sweep.parameter);
+    if (byGenerator) return { text: JSON.stringify({ ...exp, generator: m.generator }), rows };
+    // The model file's text goes in as it is (the core reads it), unparsed.
+    const head = JSON.stringify(exp);
+    return { text: `${head.slice(0, -1)},"model":${m.text}}`, rows };
   }
 
   showProblems(result, rows) {

@@ -1,55 +1,60 @@
-// The generator form: one field per parameter of the chosen kind, with the
-// defaults of the Rust generators (src/generate/mod.rs).
+// The generator form: one field per parameter of the chosen kind, built from
+// the core's catalogue of generators (src/generate/catalog.rs): names,
+// defaults, ranges and help all come from there.
+import { el } from './dom.js';
 
-export const KINDS = {
-  random: { label: 'Random sparse (Garnet-style)', params: { states: 10, actions: 3, successors: 3, horizon: 10, time_dependent: false, fixed_rewards: false } },
-  river: { label: 'River chain', params: { states: 6, horizon: 20, p_forward: 0.3, p_back: 0.1, small_reward: 0.005, big_reward: 1 } },
-  grid: { label: 'Slippery grid', params: { width: 4, height: 4, slip: 0.1, horizon: 12, goal_reward: 1 } },
-  lock: { label: 'Combination lock', params: { horizon: 6, actions: 2, time_dependent: false } },
-  'lower-bound': { label: 'Lower-bound instance', params: { actions: 2, depth: 2, horizon: 10, wait_until: 3, epsilon: 0.2 } },
-  bandit: { label: 'Bernoulli bandit', params: { arms: 5 } },
-};
-
-const SEEDED = new Set(['random', 'lock', 'lower-bound', 'bandit']);
-
-export function initGeneratorForm(kindSelect, paramsBox) {
-  for (const [k, v] of Object.entries(KINDS)) {
-    const o = document.createElement('option');
-    o.value = k;
-    o.textContent = v.label;
-    kindSelect.append(o);
-  }
+/**
+ * Fills `kindSelect` with the catalogue's generators and `paramsBox` with the
+ * chosen one's parameters; returns a function giving the generator object
+ * the form describes (what a file's "generator" holds).
+ */
+export function initGeneratorForm(kindSelect, paramsBox, generators) {
+  const byKind = new Map(generators.map((g) => [g.kind, g]));
+  for (const g of generators) kindSelect.append(el('option', g.name, { value: g.kind, title: g.source }));
   const render = () => {
-    const kind = kindSelect.value;
-    const params = { ...KINDS[kind].params };
-    if (SEEDED.has(kind)) params.seed = 1;
+    const g = byKind.get(kindSelect.value);
     paramsBox.replaceChildren();
-    for (const [name, def] of Object.entries(params)) {
-      const label = document.createElement('label');
-      const input = document.createElement('input');
-      input.name = name;
-      input.id = `gen-${name}`;
-      if (typeof def === 'boolean') {
+    const params = g.params.slice();
+    if (g.seeded) params.push({ name: 'seed', kind: 'whole', default: 1, min: 0, max: 2 ** 53, help: 'seed of the generator’s random draws' });
+    for (const p of params) {
+      const input = el('input', null, { name: p.name, id: `gen-${p.name}`, title: p.help, 'data-kind': p.kind });
+      if (p.kind === 'flag') {
         input.type = 'checkbox';
-        input.checked = def;
+        input.checked = p.default !== 0;
+      } else if (p.kind === 'numbers') {
+        input.type = 'text';
+        input.placeholder = 'comma-separated, or empty';
       } else {
         input.type = 'number';
-        input.step = 'any';
-        input.value = String(def);
+        input.step = p.kind === 'number' ? 'any' : '1';
+        input.min = String(p.min);
+        input.max = String(p.max);
+        if (p.kind === 'optional-whole') input.placeholder = 'from the seed';
+        else input.value = String(p.default);
       }
+      const label = el('label', p.name.replace(/_/g, ' '), { title: p.help });
       label.htmlFor = input.id;
-      label.textContent = name.replace(/_/g, ' ');
       paramsBox.append(label, input);
     }
   };
   kindSelect.addEventListener('change', render);
   render();
-  /** The generator object the form describes. */
   return () => {
     const spec = { kind: kindSelect.value };
     for (const input of paramsBox.querySelectorAll('input')) {
-      spec[input.name] = input.type === 'checkbox' ? input.checked : Number(input.value);
+      const kind = input.dataset.kind;
+      if (kind === 'flag') spec[input.name] = input.checked;
+      else if (kind === 'numbers') {
+        const xs = input.value.split(/[,\s]+/).filter(Boolean).map(Number);
+        if (xs.length) spec[input.name] = xs;
+      } else if (input.value !== '' || kind !== 'optional-whole') spec[input.name] = Number(input.value);
     }
     return spec;
   };
+}
+
+/** The numeric parameters of a generator object's kind that a sweep can vary. */
+export function sweepableParams(generators, spec) {
+  const g = spec && generators.find((x) => x.kind === spec.kind);
+  return g ? g.params.filter((p) => p.kind === 'whole' || p.kind === 'number') : [];
 }

@@ -36,9 +36,9 @@ export class GraphView {
       this.positions = doc.layout.positions.map((p) => [p[0], -p[1]]);
     }
     const step = $('graph-step');
-    step.max = String(doc.stationary === false ? doc.horizon : 1);
+    step.max = String(solution.stationary ? 1 : solution.horizon);
     step.value = '1';
-    step.disabled = doc.stationary !== false ? true : false;
+    step.disabled = solution.stationary;
     $('graph-step-shown').textContent = '1';
     this.render();
   }
@@ -65,7 +65,7 @@ export class GraphView {
       return;
     }
     const h = Number($('graph-step').value) - 1;
-    const step = d.steps[d.stationary === false ? h : 0];
+    const step = d.steps[d.stationary ? 0 : h];
     const policy = $('graph-policy').checked && this.solution ? this.solution.policy : null;
     const f = this.frame();
     this.fr = f;

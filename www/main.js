@@ -1,8 +1,8 @@
 // The page: chooses a model, asks the worker to solve it, and wires the
 // views, files, share links and the library together.
-import { solve, qStep, generate, warmPool, checkExperiment, onWorkerRestart } from './compute.js';
+import { solve, qStep, generate, warmPool, onWorkerRestart, catalogue, readDocument, canonical, withLayout } from './compute.js';
 import { renderFacts, renderProblems, renderOptimal, renderValues, renderQ } from './views.js';
-import { ExperimentView, ALGORITHMS, DEFAULT_SETUP } from './experiment.js';
+import { ExperimentView, DEFAULT_SETUP } from './experiment.js';
 import { initGeneratorForm } from './generator-form.js';
 import { Editor } from './editor.js';
 import { GraphView } from './graph.js';
@@ -15,6 +15,8 @@ const $ = (id) => document.getElementById(id);
 /** The model on screen: {text, solution, name, generator, source}. */
 let current = null;
 let autosaveBlocked = false;
+/** The core's catalogues and limits (src/catalogue.rs), fetched at start. */
+let CATALOGUE = null;
 
 function notice(text, warn = false) {
   const n = $('notice');
@@ -48,7 +50,8 @@ for (const t of TABS) {
 }
 
 // ---- the model --------------------------------------------------------
-function show(sol, text, source, generator = null) {
+/** `doc` is the model in the core's canonical form (every field explicit). */
+function show(sol, text, doc, source, generator = null) {
   current = { text, solution: sol, name: sol.name || 'Untitled model', source, generator };
   $('problems').hidden = true;
   renderFacts($('model-facts'), sol);
@@ -58,10 +61,10 @@ function show(sol, text, source, generator = null) {
   step.max = String(sol.horizon);
   step.value = '1';
   showStep().catch(fail);
-  experiment.setSweepChoices(Boolean(generator));
+  experiment.setSweepChoices(generator);
   $('demo-select').value = source.kind === 'demo' ? source.name : '';
-  editor.load(text);
-  graph.show(JSON.parse(text), sol);
+  editor.load(doc, sol);
+  graph.show(doc, sol);
   document.title = `${current.name} — Burnin`;
 }
 
@@ -102,8 +105,10 @@ async function openModel(text, label, source, generator = null, latest = claimOp
     setStatus(current ? `Still showing “${current.name}”.` : 'No model open.');
     return false;
   }
+  const canon = await canonical(text);
+  if (!latest()) return null;
   const changed = !current || current.text !== text;
-  show(result, text, source, generator);
+  show(result, text, JSON.parse(canon), source, generator);
   if (changed) experiment.clearResults();
   setStatus(`Solved ${label} by backward induction in ${Math.max(1, Math.round(performance.now() - t0))} ms.`);
   saveWork();
@@ -120,52 +125,35 @@ async function openDemo(file) {
 }
 
 // ---- files ------------------------------------------------------------
-/** Learner rows of the form from an experiment file's learners. */
-function setupFromExperiment(exp) {
-  const learners = (exp.learners || []).filter((l) => ALGORITHMS[l.algorithm]).map((l) => {
-    const p = ALGORITHMS[l.algorithm].param;
-    return { use: true, algorithm: l.algorithm, value: p ? (l[p] ?? ALGORITHMS[l.algorithm].def) : null, label: l.label || '' };
-  });
+/** The form's set-up from the core's summary of an experiment file. */
+function setupFromSummary(e) {
   return {
-    episodes: exp.episodes ?? DEFAULT_SETUP.episodes, seeds: exp.seeds ?? 1, seed: exp.seed ?? 1, delta: exp.delta ?? 0.05,
-    learners: learners.length ? learners : DEFAULT_SETUP.learners,
-    sweep: exp.sweep ? { parameter: exp.sweep.parameter, values: (exp.sweep.values || []).join(', ') } : { parameter: '', values: '' },
+    episodes: e.episodes, seeds: e.seeds, seed: e.seed, delta: e.delta,
+    learners: e.learners.map((l) => ({ use: true, algorithm: l.algorithm, value: l.param, label: l.default_label ? '' : l.label })),
+    sweep: e.sweep ? { parameter: e.sweep.parameter, values: e.sweep.values.join(', ') } : { parameter: '', values: '' },
   };
 }
 
-/** Opens a model, experiment or results file by its "format". */
+/** Opens a model, experiment or results file, as the core reads it. */
 async function openText(text, label) {
-  let doc = null;
-  try { doc = JSON.parse(text); } catch { /* the model reader reports the syntax error */ }
-  const format = doc && typeof doc === 'object' ? doc.format : undefined;
-  if (format === 'burnin-experiment') {
-    const checked = await checkExperiment(text);
-    if (!checked.ok) {
-      renderProblems($('problems'), label, checked);
-      return;
-    }
-    if (!doc.model || typeof doc.model !== 'object') {
-      renderProblems($('problems'), label, { problems: [{ path: 'model', message: 'this experiment names a model file (model_path); the page needs the model inline as "model"' }], unlisted: 0 });
-      return;
-    }
-    if (await openModel(JSON.stringify(doc.model), label, { kind: 'file', name: label })) {
-      experiment.applySetup(setupFromExperiment(doc));
+  const doc = await readDocument(text);
+  if (!doc.ok) { renderProblems($('problems'), label, doc); return; }
+  if (doc.kind === 'experiment') {
+    const e = doc.experiment;
+    if (await openModel(e.model, label, { kind: 'file', name: label }, e.generator)) {
+      experiment.applySetup(setupFromSummary(e));
       showTab('experiment');
       saveWork();
     }
     return;
   }
-  if (format === 'burnin-results' || format === 'burnin-sweep') {
-    if (doc.version !== 1 || !Array.isArray(doc.learners) || doc.learners.length === 0) {
-      renderProblems($('problems'), label, { problems: [{ path: 'version', message: `results version ${doc.version} with ${Array.isArray(doc.learners) ? doc.learners.length : 'no'} learners cannot be shown; this build reads version 1` }], unlisted: 0 });
-      return;
-    }
+  if (doc.kind === 'results') {
     try {
-      experiment.setResults({ text, csv: '', experiment: null });
+      experiment.setResults({ text: doc.json, csv: doc.csv, experiment: null });
       showTab('experiment');
       notice(`Showing results from ${label}.`);
     } catch (err) {
-      renderProblems($('problems'), label, { problems: [{ path: '', message: `these results are incomplete (${err.message})` }], unlisted: 0 });
+      renderProblems($('problems'), label, { problems: [{ path: '', message: `these results cannot be shown (${err.message})` }], unlisted: 0 });
     }
     return;
   }
@@ -174,7 +162,9 @@ async function openText(text, label) {
 
 async function openFile(file) {
   if (!file) return;
-  if (file.size > 256 * 1024 * 1024) { notice(`${file.name} is larger than 256 MiB and was not opened.`, true); return; }
+  // The core's own limit, checked before the file is read into memory.
+  const limit = CATALOGUE.max_file_bytes;
+  if (file.size > limit) { notice(`${file.name} is over the limit of ${limit} bytes and was not opened.`, true); return; }
   await openText(await file.text(), file.name);
 }
 
@@ -278,8 +268,12 @@ async function openEntry(id) {
   const e = store.getEntry(id);
   if (!e) { renderLibrary(); return; }
   if (await openModel(e.model, e.name, { kind: 'library', name: e.name })) {
-    if (e.experiment) experiment.applySetup(setupFromExperiment(JSON.parse(e.experiment)));
-    if (e.results) { experiment.setResults({ text: e.results, csv: '', experiment: e.experiment }); showTab('experiment'); } else showTab('solution');
+    if (e.experiment) {
+      const doc = await readDocument(e.experiment);
+      if (doc.ok && doc.kind === 'experiment') experiment.applySetup(setupFromSummary(doc.experiment));
+    }
+    const results = e.results ? await readDocument(e.results) : null;
+    if (results?.ok && results.kind === 'results') { experiment.setResults({ text: results.json, csv: results.csv, experiment: e.experiment }); showTab('experiment'); } else showTab('solution');
     saveWork();
   }
 }
@@ -315,23 +309,28 @@ async function openShared(hash) {
 
 // ---- editor and graph ---------------------------------------------------
 const editor = new Editor((text) => openModel(text, 'the edited model', { kind: 'edited', name: 'edited model' }).then((ok) => ok && showTab('solution')));
-const graph = new GraphView((positions) => {
+const graph = new GraphView(async (positions) => {
   if (!current) return;
-  const doc = JSON.parse(current.text);
-  doc.layout = { positions };
-  current.text = JSON.stringify(doc, null, 1);
+  const shown = current;
+  const text = await withLayout(shown.text, positions);
+  // Another model may have been opened meanwhile; a refused layout changes nothing.
+  if (current !== shown || typeof text !== 'string') return;
+  current.text = text;
   saveWork();
 });
 
 // ---- start -------------------------------------------------------------
 onWorkerRestart((why) => notice(`A compute worker stopped (${why}) and was replaced; anything it was running has to be run again.`, true));
-const experiment = new ExperimentView({
+let experiment = null;
+const experimentHooks = {
   model: () => ({ text: current?.text, name: current?.name || 'model', generator: current?.generator, states: current?.solution.states }),
   changed: saveWork,
   saveResults: (expText, resultsText) => saveToLibrary({ kind: 'experiment', name: `${current.name} — ${stamp(new Date().toISOString())}`, model: current.text, experiment: expText, results: resultsText }),
-});
+};
 
 async function start() {
+  CATALOGUE = await catalogue();
+  experiment = new ExperimentView(experimentHooks, CATALOGUE);
   const index = await (await fetch('demo-models/index.json')).json();
   const select = $('demo-select');
   const other = document.createElement('option');
@@ -347,7 +346,7 @@ async function start() {
   }
   select.value = index.default;
   select.addEventListener('change', () => openDemo(select.value).catch(fail));
-  const genSpec = initGeneratorForm($('gen-kind'), $('gen-params'));
+  const genSpec = initGeneratorForm($('gen-kind'), $('gen-params'), CATALOGUE.generators);
   $('gen-run').addEventListener('click', async () => {
     const spec = genSpec();
     const r = await generate(spec);

@@ -8,8 +8,12 @@
 //   run {text, shard, of} → progress {done, total}…, then done {result: shard file text},
 //                        or error {problems} for a bad experiment
 //   merge {shards}     → done {result: {json, csv}} or problems
+//   format {text}      → done {result}            (the model's canonical text, or problems)
+//   catalogue          → done {result}            (algorithms, generators, limits: src/catalogue.rs)
+//   read-document {text} → done {result}          (what a file is, read by the core)
+//   with-layout {text, positions} → done {result} (the model's text with a new layout, or problems)
 //   cancel {id}        → the run with that id stops and answers cancelled
-import init, { solveModel, checkModel, checkExperiment, generateModel, mergeShards, ExperimentRun } from './pkg/burnin.js';
+import init, { solveModel, formatModel, checkModel, checkExperiment, generateModel, mergeShards, catalogue, readDocument, withLayout, ExperimentRun } from './pkg/burnin.js';
 
 const ready = init();
 const cancelled = new Set();
@@ -78,6 +82,14 @@ self.onmessage = async (event) => {
       self.postMessage({ type: 'done', id, result: generateModel(event.data.spec) });
     } else if (type === 'run') {
       await run(id, event.data.text, event.data.shard, event.data.of);
+    } else if (type === 'format') {
+      self.postMessage({ type: 'done', id, result: formatModel(event.data.text) });
+    } else if (type === 'catalogue') {
+      self.postMessage({ type: 'done', id, result: catalogue() });
+    } else if (type === 'read-document') {
+      self.postMessage({ type: 'done', id, result: readDocument(event.data.text) });
+    } else if (type === 'with-layout') {
+      self.postMessage({ type: 'done', id, result: withLayout(event.data.text, event.data.positions) });
     } else if (type === 'merge') {
       self.postMessage({ type: 'done', id, result: mergeShards(event.data.shards) });
     } else {

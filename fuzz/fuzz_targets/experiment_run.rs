@@ -2,7 +2,7 @@
 //! that reads runs (shortened to a few episodes) to finite results.
 #![no_main]
 
-use burnin::experiment::{parse_experiment, Batch, Output};
+use burnin::experiment::{parse_experiment, RunQueue, Output};
 use libfuzzer_sys::fuzz_target;
 
 /// Most (step, state, action) rows × runs × episodes a fuzz case may run.
@@ -19,7 +19,7 @@ fuzz_target!(|data: &[u8]| {
     if rows * points * exp.seeds * exp.learners.len() as u64 * exp.episodes > WORK {
         return;
     }
-    let mut b = Batch::new(exp);
+    let mut b = RunQueue::new(exp);
     while !b.advance(64) {}
     let json = match b.output() {
         Output::Single(r) => r.to_json(),

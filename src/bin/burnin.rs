@@ -402,9 +402,7 @@ fn run(
     threads: Option<usize>,
     shard: Option<&str>,
 ) -> Result<(), Failure> {
-    use burnin::experiment::{
-        Context, Run, SHARD_FORMAT, ShardFile, assemble, parse_experiment, shard_jobs,
-    };
+    use burnin::experiment::{Point, Run, ShardFile, assemble, parse_experiment, shard_jobs};
     use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering};
     use std::sync::{Arc, Mutex};
 
@@ -422,23 +420,23 @@ fn run(
     };
     let exp = parse_experiment(&text, Some(&loader)).map_err(invalid)?;
     // A sweep is one experiment per value; all their runs share one pool.
-    let contexts: Vec<Arc<Context>> = exp.points().into_iter().map(Context::new).collect();
+    let points: Vec<Arc<Point>> = exp.points().into_iter().map(Point::new).collect();
     let (index, count) = shard.map_or((0, 1), |(i, n)| (i - 1, n));
-    let jobs = shard_jobs(&contexts, index, count);
+    let jobs = shard_jobs(&points, index, count);
     let threads = threads
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
         .clamp(1, jobs.len().max(1));
     let next = AtomicUsize::new(0);
     let done_episodes = AtomicU64::new(0);
     let records = Mutex::new(Vec::with_capacity(jobs.len()));
-    let progress = Progress::new(jobs.iter().map(|&(p, _)| contexts[p].exp.episodes).sum());
+    let progress = Progress::new(jobs.iter().map(|&(p, _)| points[p].exp.episodes).sum());
     std::thread::scope(|scope| {
         for _ in 0..threads {
             scope.spawn(|| {
                 loop {
                     let j = next.fetch_add(1, Ordering::Relaxed);
                     let Some(&(p, i)) = jobs.get(j) else { break };
-                    let mut r = Run::new(Arc::clone(&contexts[p]), i);
+                    let mut r = Run::new(Arc::clone(&points[p]), i);
                     const CHUNK: u64 = 512;
                     loop {
                         let before = r.episodes_done();
@@ -461,22 +459,20 @@ fn run(
     let mut records = records.into_inner().expect("no thread panicked");
     records.sort_by_key(|r| r.0);
     if let Some((i, n)) = shard {
-        let file = ShardFile {
-            format: SHARD_FORMAT.into(),
-            version: 1,
-            shard: i,
-            of: n,
-            experiment: text,
-            model: model_text.into_inner().expect("not poisoned"),
-            records: records.into_iter().map(|(_, p, r)| (p, r)).collect(),
-        };
+        let file = ShardFile::new(
+            i - 1,
+            n,
+            text,
+            model_text.into_inner().expect("not poisoned"),
+            records.into_iter().map(|(_, p, r)| (p, r)).collect(),
+        );
         return emit(&file.to_json());
     }
-    let mut by_point = vec![Vec::new(); contexts.len()];
+    let mut by_point = vec![Vec::new(); points.len()];
     for (_, p, r) in records {
         by_point[p].push(r);
     }
-    finish_output(&assemble(&exp, &contexts, by_point), json, csv)
+    finish_output(&assemble(&exp, &points, by_point), json, csv)
 }
 
 fn finish_output(

@@ -19,11 +19,12 @@ pub use shard::{SHARD_FORMAT, SHARD_VERSION, ShardFile, merge};
 
 pub use results::{
     EpsResult, LearnerResult, RESULTS_FORMAT, RESULTS_VERSION, Results, SETTLED_SLOPE,
-    SWEEP_FORMAT, SweepLearner, SweepResults, burn_in, csv_field, summarise, tail_slope,
+    SWEEP_FORMAT, SweepLearner, SweepResults, burn_in, csv_field, parse_results, summarise,
+    tail_slope,
 };
 pub use spec::{
-    EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, LearnerSpec, ModelLoader, Sweep,
-    SweepParameter, check_learnable, parse_experiment,
+    EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary, LearnerSpec,
+    LearnerSummary, ModelLoader, Sweep, SweepParameter, check_learnable, parse_experiment,
 };
 
 use std::sync::Arc;
@@ -64,9 +65,10 @@ pub fn checkpoints(k: u64, n: u64) -> Vec<u64> {
     out
 }
 
-/// What every run of an experiment shares.
+/// One point of an experiment (the whole experiment, or one value of its
+/// sweep): what all its runs share.
 #[derive(Debug)]
-pub struct Context {
+pub struct Point {
     pub exp: Experiment,
     pub sampler: Sampler,
     /// V*₁(ρ).
@@ -74,10 +76,10 @@ pub struct Context {
     pub checkpoints: Vec<u64>,
 }
 
-impl Context {
-    pub fn new(exp: Experiment) -> Arc<Context> {
+impl Point {
+    pub fn new(exp: Experiment) -> Arc<Point> {
         let optimal_value = solve(&exp.model).optimal_value;
-        Arc::new(Context {
+        Arc::new(Point {
             sampler: Sampler::new(&exp.model),
             checkpoints: checkpoints(exp.episodes, exp.checkpoints),
             optimal_value,
@@ -124,7 +126,7 @@ pub struct Run {
 
 /// Everything of a run but its learner.
 struct RunState {
-    ctx: Arc<Context>,
+    ctx: Arc<Point>,
     rng: LearnRng,
     eval: Evaluator,
     done: u64,
@@ -137,7 +139,7 @@ struct RunState {
 
 impl Run {
     /// Starts run number `index` (learner-major: learner = index / seeds).
-    pub fn new(ctx: Arc<Context>, index: usize) -> Run {
+    pub fn new(ctx: Arc<Point>, index: usize) -> Run {
         let seeds = ctx.exp.seeds as usize;
         let (li, si) = (index / seeds, (index % seeds) as u64);
         let seed = run_seed(ctx.exp.seed, li, si);
@@ -254,7 +256,7 @@ impl RunState {
 
 /// Runs every run one after another (the CLI runs them on threads; the
 /// results are the same).
-pub fn run_all(ctx: &Arc<Context>) -> Vec<RunRecord> {
+pub fn run_all(ctx: &Arc<Point>) -> Vec<RunRecord> {
     (0..ctx.runs())
         .map(|i| {
             let mut r = Run::new(Arc::clone(ctx), i);
@@ -286,33 +288,29 @@ impl Output {
     }
 }
 
-/// Summarises the records of every point (records\[p\] for contexts\[p\]).
-pub fn assemble(
-    exp: &Experiment,
-    contexts: &[Arc<Context>],
-    records: Vec<Vec<RunRecord>>,
-) -> Output {
-    let mut points: Vec<Results> = contexts
+/// Summarises the records of every point (records\[p\] for points\[p\]).
+pub fn assemble(exp: &Experiment, points: &[Arc<Point>], records: Vec<Vec<RunRecord>>) -> Output {
+    let mut summaries: Vec<Results> = points
         .iter()
         .zip(records)
         .map(|(c, r)| summarise(c, r))
         .collect();
     match &exp.sweep {
-        None => Output::Single(points.remove(0)),
+        None => Output::Single(summaries.remove(0)),
         Some(s) => Output::Sweep(SweepResults::new(
             &exp.name,
             &s.parameter.key(),
             &s.values,
-            points,
+            summaries,
         )),
     }
 }
 
 /// Every run of an experiment (all sweep points), stepped one after another
 /// in chunks: what a single worker does.
-pub struct Batch {
+pub struct RunQueue {
     exp: Experiment,
-    contexts: Vec<Arc<Context>>,
+    points: Vec<Arc<Point>>,
     /// (point, run index) in order.
     jobs: Vec<(usize, usize)>,
     next: usize,
@@ -323,8 +321,8 @@ pub struct Batch {
 }
 
 /// Every (point, run) of an experiment, in a fixed order.
-pub fn all_jobs(contexts: &[Arc<Context>]) -> Vec<(usize, usize)> {
-    contexts
+pub fn all_jobs(points: &[Arc<Point>]) -> Vec<(usize, usize)> {
+    points
         .iter()
         .enumerate()
         .flat_map(|(p, c)| (0..c.runs()).map(move |i| (p, i)))
@@ -332,8 +330,8 @@ pub fn all_jobs(contexts: &[Arc<Context>]) -> Vec<(usize, usize)> {
 }
 
 /// The jobs of shard `index` (0-based) of `count`: every count-th job.
-pub fn shard_jobs(contexts: &[Arc<Context>], index: usize, count: usize) -> Vec<(usize, usize)> {
-    all_jobs(contexts)
+pub fn shard_jobs(points: &[Arc<Point>], index: usize, count: usize) -> Vec<(usize, usize)> {
+    all_jobs(points)
         .into_iter()
         .enumerate()
         .filter(|(j, _)| j % count == index)
@@ -341,20 +339,20 @@ pub fn shard_jobs(contexts: &[Arc<Context>], index: usize, count: usize) -> Vec<
         .collect()
 }
 
-impl Batch {
-    pub fn new(exp: Experiment) -> Batch {
+impl RunQueue {
+    pub fn new(exp: Experiment) -> RunQueue {
         Self::shard(exp, 0, 1)
     }
 
     /// Only shard `index` (0-based) of `count` of the runs.
-    pub fn shard(exp: Experiment, index: usize, count: usize) -> Batch {
-        let contexts: Vec<Arc<Context>> = exp.points().into_iter().map(Context::new).collect();
-        let jobs = shard_jobs(&contexts, index, count);
-        let total = jobs.iter().map(|&(p, _)| contexts[p].exp.episodes).sum();
-        Batch {
-            records: vec![Vec::new(); contexts.len()],
+    pub fn shard(exp: Experiment, index: usize, count: usize) -> RunQueue {
+        let points: Vec<Arc<Point>> = exp.points().into_iter().map(Point::new).collect();
+        let jobs = shard_jobs(&points, index, count);
+        let total = jobs.iter().map(|&(p, _)| points[p].exp.episodes).sum();
+        RunQueue {
+            records: vec![Vec::new(); points.len()],
             exp,
-            contexts,
+            points,
             jobs,
             next: 0,
             current: None,
@@ -371,7 +369,7 @@ impl Batch {
                     return true;
                 };
                 self.next += 1;
-                self.current = Some((p, Run::new(Arc::clone(&self.contexts[p]), i)));
+                self.current = Some((p, Run::new(Arc::clone(&self.points[p]), i)));
             }
             let (p, run) = self.current.as_mut().expect("set above");
             let before = run.episodes_done();
@@ -403,10 +401,10 @@ impl Batch {
         &self.exp
     }
 
-    /// The results (once [`Batch::is_done`], and for an unsharded batch).
+    /// The results (once [`RunQueue::is_done`], and for an unsharded batch).
     pub fn output(&self) -> Output {
         assert!(self.is_done(), "every run has finished");
-        assemble(&self.exp, &self.contexts, self.records.clone())
+        assemble(&self.exp, &self.points, self.records.clone())
     }
 
     /// The finished runs as (point, record) pairs, for a shard file.

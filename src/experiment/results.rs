@@ -3,7 +3,8 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::{Context, RunRecord};
+use super::{Point, RunRecord};
+use crate::model::Problems;
 use crate::stats::{interval95, ls_slope, mean};
 use crate::theory::{self, Bound};
 
@@ -123,7 +124,7 @@ pub fn tail_slope(ks: &[u64], regret: &[f64]) -> Option<f64> {
 }
 
 /// Summarises finished runs (any order) into results.
-pub fn summarise(ctx: &Context, mut records: Vec<RunRecord>) -> Results {
+pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
     records.sort_by_key(|r| (r.learner, r.seed_index));
     let exp = &ctx.exp;
     let m = &exp.model;
@@ -340,6 +341,53 @@ impl SweepResults {
         }
         o
     }
+}
+
+/// Reads a results file (`burnin-results` or `burnin-sweep`, version 1),
+/// for showing it again: the header is checked first, then the whole
+/// structure.
+pub fn parse_results(text: &str) -> Result<super::Output, Problems> {
+    let format = crate::format::identify(text);
+    let version = serde_json::from_str::<serde_json::Value>(text)
+        .ok()
+        .and_then(|v| v.get("version").and_then(serde_json::Value::as_f64));
+    let want = |f: &str| format.as_deref() == Some(f);
+    if !want(RESULTS_FORMAT) && !want(SWEEP_FORMAT) {
+        return Err(Problems::single(
+            "format",
+            format!("expected {RESULTS_FORMAT:?} or {SWEEP_FORMAT:?}"),
+        ));
+    }
+    if version != Some(RESULTS_VERSION as f64) {
+        return Err(Problems::single(
+            "version",
+            format!(
+                "version {} is not supported; this build reads version {RESULTS_VERSION}",
+                version.map_or("(missing)".to_string(), |v| v.to_string())
+            ),
+        ));
+    }
+    let incomplete = |e: serde_json::Error| {
+        Problems::single("", format!("these results are incomplete or damaged ({e})"))
+    };
+    let out = if want(RESULTS_FORMAT) {
+        super::Output::Single(serde_json::from_str(text).map_err(incomplete)?)
+    } else {
+        super::Output::Sweep(serde_json::from_str(text).map_err(incomplete)?)
+    };
+    let empty = match &out {
+        super::Output::Single(r) => {
+            r.learners.is_empty() || r.learners.iter().any(|l| l.checkpoints.is_empty())
+        }
+        super::Output::Sweep(s) => s.learners.is_empty() || s.points.is_empty(),
+    };
+    if empty {
+        return Err(Problems::single(
+            "learners",
+            "these results hold no learner curves",
+        ));
+    }
+    Ok(out)
 }
 
 /// A CSV field, quoted when it must be (RFC 4180).

@@ -10,7 +10,7 @@ use std::sync::Arc;
 
 use serde::{Deserialize, Serialize};
 
-use super::{Context, Output, RunRecord, assemble, parse_experiment, shard_jobs};
+use super::{Output, Point, RunRecord, assemble, parse_experiment, shard_jobs};
 use crate::model::Problems;
 
 pub const SHARD_FORMAT: &str = "burnin-shard";
@@ -33,6 +33,26 @@ pub struct ShardFile {
 }
 
 impl ShardFile {
+    /// Shard `index` (0-based) of `count`: the experiment file's text, the
+    /// model file's text when `model_path` named one, and the finished runs.
+    pub fn new(
+        index: usize,
+        count: usize,
+        experiment: String,
+        model: Option<String>,
+        records: Vec<(usize, RunRecord)>,
+    ) -> ShardFile {
+        ShardFile {
+            format: SHARD_FORMAT.into(),
+            version: SHARD_VERSION,
+            shard: index + 1,
+            of: count,
+            experiment,
+            model,
+            records,
+        }
+    }
+
     pub fn to_json(&self) -> String {
         serde_json::to_string(self).expect("records hold no non-finite numbers") + "\n"
     }
@@ -108,10 +128,10 @@ pub fn merge(shards: &[ShardFile], name: &dyn Fn(usize) -> String) -> Result<Out
             .ok_or_else(|| "the shard holds no model file".to_string())
     };
     let exp = parse_experiment(&first.experiment, Some(&loader))?;
-    let contexts: Vec<Arc<Context>> = exp.points().into_iter().map(Context::new).collect();
-    let mut records: Vec<Vec<RunRecord>> = vec![Vec::new(); contexts.len()];
+    let points: Vec<Arc<Point>> = exp.points().into_iter().map(Point::new).collect();
+    let mut records: Vec<Vec<RunRecord>> = vec![Vec::new(); points.len()];
     for (k, s) in shards.iter().enumerate() {
-        let want = shard_jobs(&contexts, s.shard - 1, n).len();
+        let want = shard_jobs(&points, s.shard - 1, n).len();
         if s.records.len() != want {
             p.push(
                 name(k),
@@ -129,5 +149,5 @@ pub fn merge(shards: &[ShardFile], name: &dyn Fn(usize) -> String) -> Result<Out
         }
     }
     std::mem::take(&mut p).into_result()?;
-    Ok(assemble(&exp, &contexts, records))
+    Ok(assemble(&exp, &points, records))
 }

@@ -132,7 +132,64 @@ pub struct Experiment {
     pub learners: Vec<LearnerSpec>,
 }
 
+/// An experiment as a front end shows its set-up: every value explicit,
+/// the model as its canonical text, the generator as a generator object.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct ExperimentSummary {
+    pub name: String,
+    pub episodes: u64,
+    pub seeds: u64,
+    pub seed: u64,
+    pub delta: f64,
+    pub checkpoints: u64,
+    pub learners: Vec<LearnerSummary>,
+    /// `{"parameter": key, "values": […]}`, when the experiment sweeps.
+    pub sweep: Option<serde_json::Value>,
+    pub generator: Option<serde_json::Value>,
+    /// The model file's text (canonical layout).
+    pub model: String,
+}
+
+/// One learner of an [`ExperimentSummary`].
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct LearnerSummary {
+    pub label: String,
+    /// Whether the label is the algorithm's default one.
+    pub default_label: bool,
+    pub algorithm: &'static str,
+    /// The parameter's value, for an algorithm that takes one.
+    pub param: Option<f64>,
+}
+
 impl Experiment {
+    /// The set-up as a front end shows it.
+    pub fn summary(&self) -> ExperimentSummary {
+        ExperimentSummary {
+            name: self.name.clone(),
+            episodes: self.episodes,
+            seeds: self.seeds,
+            seed: self.seed,
+            delta: self.delta,
+            checkpoints: self.checkpoints,
+            learners: self
+                .learners
+                .iter()
+                .map(|l| LearnerSummary {
+                    default_label: l.label == l.algorithm.default_label(),
+                    label: l.label.clone(),
+                    algorithm: l.algorithm.key(),
+                    param: l.algorithm.info().param.map(|_| l.algorithm.param),
+                })
+                .collect(),
+            sweep: self
+                .sweep
+                .as_ref()
+                .map(|s| serde_json::json!({"parameter": s.parameter.key(), "values": s.values})),
+            generator: self.generator.as_ref().map(GeneratorSpec::to_json),
+            model: crate::write_model(&self.model),
+        }
+    }
+
     /// What the learners are told.
     pub fn setting(&self) -> Setting {
         Setting {

@@ -8,6 +8,21 @@ pub mod problems;
 
 pub use problems::{Problem, Problems};
 
+/// The `format` of a JSON document, when it is an object whose `format` is
+/// a string; None for anything else (the model reader then reports what is
+/// wrong with it).
+pub fn identify(text: &str) -> Option<String> {
+    #[derive(serde::Deserialize)]
+    struct Header {
+        format: Option<serde_json::Value>,
+    }
+    let h: Header = serde_json::from_str(text).ok()?;
+    match h.format? {
+        serde_json::Value::String(s) => Some(s),
+        _ => None,
+    }
+}
+
 use lax::{Lax, Reader};
 
 /// Declares a lenient object reader: a struct whose fields are every key the

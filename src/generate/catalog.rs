@@ -441,6 +441,25 @@ impl GeneratorSpec {
         Ok(spec)
     }
 
+    /// The generator as an object for files: its kind, seed and every
+    /// parameter that has a value (what [`GeneratorSpec::from_json`] reads back).
+    pub fn to_json(&self) -> Value {
+        let mut o = serde_json::Map::new();
+        o.insert("kind".into(), self.info().kind.into());
+        o.insert("seed".into(), self.seed.into());
+        for (p, v) in self.info().params.iter().zip(&self.values.values) {
+            let v = match v {
+                ParamValue::Whole(x) => Value::from(*x),
+                ParamValue::Number(x) => Value::from(*x),
+                ParamValue::Flag(b) => Value::from(*b),
+                ParamValue::Numbers(xs) if !xs.is_empty() => Value::from(xs.clone()),
+                ParamValue::Numbers(_) | ParamValue::Unset => continue,
+            };
+            o.insert(p.name.into(), v);
+        }
+        Value::Object(o)
+    }
+
     /// The generator's catalogue entry.
     pub fn info(&self) -> &'static GeneratorInfo {
         self.values.info

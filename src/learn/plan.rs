@@ -454,7 +454,7 @@ mod tests {
     /// Among tied maximisers each is picked with probability 1/ties: a χ²
     /// test with 3 degrees of freedom against the 0.999 critical value
     /// 16.266 (standard χ² table, e.g. NIST/SEMATECH e-Handbook of
-    /// Statistical Methods, Table 1.3.6.7.4); a non-maximiser is never picked.
+    /// Statistical Methods, section 1.3.6.7.4, from memory); a non-maximiser is never picked.
     #[test]
     fn argmax_breaks_ties_uniformly() {
         let mut rng = LearnRng::seed_from_u64(11);

@@ -489,6 +489,65 @@ await check('a file dropped on the page opens', async (page) => {
   assertEqual((await shownValue(page, 'Lantern cave')).data, expected['lantern-cave.json'], 'dropped model solved');
 });
 
+/** Drops a file named `name` holding `text` on the page. */
+async function dropFile(page, name, text) {
+  const dt = await page.evaluateHandle(([n, t]) => {
+    const d = new DataTransfer();
+    d.items.add(new File([t], n, { type: 'application/json' }));
+    return d;
+  }, [name, text]);
+  await page.dispatchEvent('body', 'dragover', { dataTransfer: dt });
+  await page.dispatchEvent('body', 'drop', { dataTransfer: dt });
+}
+
+// Regression: the page read `stationary` itself and took a missing key for
+// true, so a time-dependent file without it showed only its first step;
+// the core reads it as time-dependent (docs/formats.md: the default follows
+// the number of step tables).
+await check('a time-dependent file without "stationary" shows every step in the editor and the graph', async (page) => {
+  await openPage(page);
+  const doc = await (await fetch(`${url}/demo-models/night-ferry.json`)).json();
+  delete doc.stationary;
+  await dropFile(page, 'no-stationary.json', JSON.stringify(doc));
+  await shownValue(page, doc.name);
+  assertEqual(await page.locator('[data-fact="kind"]').textContent(), 'time-dependent (one table per step)', 'facts');
+  await page.click('#tab-editor');
+  assertEqual(await page.locator('#ed-step option').count(), doc.horizon, 'editor tables');
+  assert(!(await page.locator('#ed-stationary').isChecked()), 'editor says time-dependent');
+  await page.click('#tab-graph');
+  assertEqual(await page.locator('#graph-step').getAttribute('max'), String(doc.horizon), 'graph steps');
+  assert(!(await page.locator('#graph-step').isDisabled()), 'graph step slider enabled');
+});
+
+await check('the generator form and the sweep list come from the core\'s catalogue, and any generator parameter can be swept', async (page) => {
+  await openPage(page);
+  await page.click('#generator summary');
+  // Every parameter of the catalogue, optional ones left to the seed.
+  await page.selectOption('#gen-kind', 'lower-bound');
+  for (const p of ['actions', 'depth', 'horizon', 'wait_until', 'epsilon', 'special_step', 'special_leaf', 'special_action', 'seed']) {
+    assert(await page.locator(`#gen-${p}`).count() === 1, `field ${p}`);
+  }
+  assertEqual(await page.locator('#gen-special_step').getAttribute('placeholder'), 'from the seed', 'optional parameter');
+  await page.selectOption('#gen-kind', 'grid');
+  await page.fill('#gen-width', '3');
+  await page.fill('#gen-height', '2');
+  await page.fill('#gen-horizon', '6');
+  await page.click('#gen-run');
+  await shownValue(page, 'Slippery grid 3×2 H=6');
+  await page.click('#tab-experiment');
+  const keys = await page.locator('#sweep-param option').evaluateAll((os) => os.map((o) => o.value));
+  for (const k of ['delta', 'bonus_scale', 'epsilon', 'prior', 'width', 'height', 'slip', 'horizon', 'goal_reward']) assert(keys.includes(k), `sweep offers ${k}: ${keys}`);
+  await page.fill('#exp-episodes', '200');
+  await page.fill('#exp-seeds', '2');
+  const rows = page.locator('#learner-rows tr');
+  for (let i = 1; i < await rows.count(); i++) await rows.nth(i).locator('input[type=checkbox]').uncheck();
+  await page.selectOption('#sweep-param', 'slip');
+  await page.fill('#sweep-values', '0, 0.3');
+  await runAndWait(page);
+  assertEqual(await page.locator('#chart-view option').first().textContent(), 'regret at K against slip', 'sweep view');
+  assertEqual(await page.locator('#results-table thead th').allTextContents().then((t) => t.slice(1).join('|')), 'slip = 0|slip = 0.3', 'sweep table');
+});
+
 await check('a model too large for a link is refused with a message', async (page) => {
   await openPage(page);
   await page.click('#generator summary');

@@ -13,25 +13,22 @@ use std::time::Instant;
 
 use crate::{Result, browser_dir, build_wasm, cargo, chromium, output, root, step};
 
-/// Finds a figure by the start of its name in `burnin bench` JSON.
+/// Finds a figure by the start of its name in `burnin bench` JSON: its
+/// best and median values and its note.
 fn figure(json: &str, name: &str) -> Option<(f64, f64, String)> {
-    let i = json.find(&format!("\"name\": \"{name}"))?;
-    let obj_start = json[..i].rfind('{')?;
-    let obj = &json[obj_start..obj_start + json[obj_start..].find('}')?];
-    let num = |key: &str| -> Option<f64> {
-        let k = obj.find(&format!("\"{key}\": "))? + key.len() + 4;
-        obj[k..].split([',', '\n']).next()?.trim().parse().ok()
-    };
-    let note = obj
-        .find("\"note\": \"")
-        .map(|k| obj[k + 9..].split('"').next().unwrap_or("").to_owned())
-        .unwrap_or_default();
-    Some((num("best")?, num("median")?, note))
+    let report: serde_json::Value = serde_json::from_str(json).ok()?;
+    let f = report["figures"]
+        .as_array()?
+        .iter()
+        .find(|f| f["name"].as_str().is_some_and(|n| n.starts_with(name)))?;
+    let note = f["note"].as_str().unwrap_or("").to_owned();
+    Some((f["best"].as_f64()?, f["median"].as_f64()?, note))
 }
 
+/// A number at the top level of `burnin bench` JSON.
 fn top_number(json: &str, key: &str) -> Option<f64> {
-    let k = json.find(&format!("\"{key}\": "))? + key.len() + 4;
-    json[k..].split([',', '\n']).next()?.trim().parse().ok()
+    let report: serde_json::Value = serde_json::from_str(json).ok()?;
+    report[key].as_f64()
 }
 
 fn mark(ok: bool) -> &'static str {

@@ -40,7 +40,9 @@ fn main() -> ExitCode {
             Some(Err(_)) => Err("usage: cargo xtask fuzz [SECONDS]".into()),
         },
         _ => {
-            eprintln!("usage: cargo xtask serve [--port N] | test | wasm | bench [--quick]");
+            eprintln!(
+                "usage: cargo xtask serve [--port N] | test | wasm | bench [--quick] | fuzz [SECONDS]"
+            );
             return ExitCode::from(2);
         }
     };
@@ -259,11 +261,11 @@ fn browser_checks(www: PathBuf) -> Result<()> {
     for (i, p) in names.iter().enumerate() {
         let json = output(Command::new(&cli).args(["solve", "--json"]).arg(p))
             .ok_or_else(|| format!("burnin solve failed on {}", p.display()))?;
-        let value = json
-            .lines()
-            .find_map(|l| l.trim().strip_prefix("\"optimal_value\": "))
-            .ok_or("no optimal_value in burnin solve --json")?
-            .trim_end_matches(',');
+        let solution: serde_json::Value =
+            serde_json::from_str(&json).map_err(|e| format!("burnin solve --json: {e}"))?;
+        let value = solution["optimal_value"]
+            .as_f64()
+            .ok_or("no optimal_value in burnin solve --json")?;
         let name = p.file_name().unwrap().to_string_lossy();
         expected.push_str(&format!(
             "{}\"{name}\": {value}",

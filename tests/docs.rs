@@ -1,0 +1,209 @@
+//! Docs that cannot drift: ARCHITECTURE.md names only paths that exist and
+//! names every CLI subcommand and wasm export; docs/formats.md lists the
+//! generators and algorithms exactly as the core's catalogues define them.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+fn read(rel: &str) -> String {
+    std::fs::read_to_string(root().join(rel)).unwrap_or_else(|e| panic!("{rel}: {e}"))
+}
+
+/// The text between backticks, outside fenced code blocks.
+fn code_spans(md: &str) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut fenced = false;
+    for line in md.lines() {
+        if line.trim_start().starts_with("```") {
+            fenced = !fenced;
+            continue;
+        }
+        if fenced {
+            continue;
+        }
+        let parts: Vec<&str> = line.split('`').collect();
+        out.extend(parts.iter().skip(1).step_by(2).map(|s| s.to_string()));
+    }
+    out
+}
+
+/// Folders whose content the build writes (ARCHITECTURE.md says so); they
+/// need not exist in a fresh checkout.
+const BUILD_PRODUCTS: &[&str] = &["www/pkg/", "www/demo-models/", "tests/browser/out/"];
+
+const EXTENSIONS: &[&str] = &[
+    ".rs", ".js", ".mjs", ".md", ".json", ".toml", ".py", ".html", ".css", ".yaml",
+];
+
+/// Every file below `dir` (skipping build output and dependencies).
+fn files(dir: &Path, out: &mut Vec<PathBuf>) {
+    let Ok(entries) = std::fs::read_dir(dir) else {
+        return;
+    };
+    for e in entries.flatten() {
+        let p = e.path();
+        let name = e.file_name().to_string_lossy().into_owned();
+        if p.is_dir() {
+            if !["target", "node_modules", ".git", "corpus", "artifacts"].contains(&name.as_str()) {
+                files(&p, out);
+            }
+        } else {
+            out.push(p);
+        }
+    }
+}
+
+/// Every path ARCHITECTURE.md names exists: a path with a folder relative to
+/// the repository, a bare file name somewhere in it (common practice for a
+/// code map; ARCHITECTURE.md names files of the section's folder bare).
+#[test]
+fn every_path_architecture_names_exists() {
+    let md = read("ARCHITECTURE.md");
+    let mut all = Vec::new();
+    files(&root(), &mut all);
+    let mut missing = Vec::new();
+    for span in code_spans(&md) {
+        let looks_like_path = !span.contains([' ', ':', '<', '*', '=', '(', '#', '|'])
+            && (span.contains('/') || EXTENSIONS.iter().any(|x| span.ends_with(x)));
+        if !looks_like_path || BUILD_PRODUCTS.iter().any(|b| span.starts_with(b)) {
+            continue;
+        }
+        let found = if span.contains('/') {
+            root().join(span.trim_end_matches('/')).exists()
+        } else {
+            all.iter()
+                .any(|p| p.file_name().is_some_and(|n| n == span.as_str()))
+        };
+        if !found {
+            missing.push(span);
+        }
+    }
+    assert!(
+        missing.is_empty(),
+        "ARCHITECTURE.md names missing paths: {missing:?}"
+    );
+}
+
+/// Every subcommand `burnin --help` lists is named in ARCHITECTURE.md.
+#[test]
+fn architecture_names_every_cli_subcommand() {
+    let out = Command::new(env!("CARGO_BIN_EXE_burnin"))
+        .arg("--help")
+        .output()
+        .unwrap();
+    let help = String::from_utf8(out.stdout).unwrap();
+    let commands: Vec<&str> = help
+        .lines()
+        .skip_while(|l| !l.starts_with("Commands:"))
+        .skip(1)
+        .take_while(|l| l.starts_with("  "))
+        .filter_map(|l| l.split_whitespace().next())
+        .filter(|c| *c != "help")
+        .collect();
+    assert!(commands.len() >= 7, "{help}");
+    let spans = code_spans(&read("ARCHITECTURE.md"));
+    for c in commands {
+        assert!(
+            spans.iter().any(|s| s == c),
+            "ARCHITECTURE.md does not name `{c}`"
+        );
+    }
+}
+
+/// The names the page can import from the wasm module: top-level items of
+/// src/wasm.rs marked `#[wasm_bindgen]`, under their JS name.
+fn wasm_exports() -> Vec<String> {
+    let src = read("src/wasm.rs");
+    let lines: Vec<&str> = src.lines().collect();
+    let mut out = Vec::new();
+    for (i, l) in lines.iter().enumerate() {
+        if !l.starts_with("#[wasm_bindgen") {
+            continue;
+        }
+        if let Some(rest) = l.split("js_name = ").nth(1) {
+            out.push(rest.trim_end_matches(")]").to_string());
+            continue;
+        }
+        let item = lines[i + 1..]
+            .iter()
+            .find(|l| !l.starts_with("#["))
+            .expect("an item after the attribute");
+        let name = item
+            .trim_start_matches("pub fn ")
+            .trim_start_matches("pub struct ")
+            .split(['(', ' ', '{'])
+            .next()
+            .unwrap();
+        if !item.starts_with("impl") {
+            out.push(name.to_string());
+        }
+    }
+    out
+}
+
+#[test]
+fn architecture_names_every_wasm_export() {
+    let exports = wasm_exports();
+    assert!(exports.len() >= 10, "{exports:?}");
+    let spans = code_spans(&read("ARCHITECTURE.md"));
+    for e in exports {
+        assert!(
+            spans.iter().any(|s| s == &e),
+            "ARCHITECTURE.md does not name `{e}`"
+        );
+    }
+}
+
+/// The rows of the markdown table whose header starts with `header`.
+fn table<'a>(md: &'a str, header: &str) -> Vec<Vec<&'a str>> {
+    md.lines()
+        .skip_while(|l| !l.starts_with(header))
+        .skip(2)
+        .take_while(|l| l.starts_with('|'))
+        .map(|l| l.trim_matches('|').split('|').map(str::trim).collect())
+        .collect()
+}
+
+/// docs/formats.md lists every generator with exactly its catalogue's
+/// parameters, in catalogue order.
+#[test]
+fn formats_lists_the_generators_of_the_catalogue() {
+    let md = read("docs/formats.md");
+    let rows = table(&md, "| kind | parameters |");
+    let kinds: Vec<String> = burnin::generate::GENERATORS
+        .iter()
+        .map(|g| format!("`{}`", g.kind))
+        .collect();
+    assert_eq!(rows.iter().map(|r| r[0]).collect::<Vec<_>>(), kinds);
+    for (g, row) in burnin::generate::GENERATORS.iter().zip(&rows) {
+        let params: Vec<String> = g.params.iter().map(|p| format!("`{}`", p.name)).collect();
+        assert_eq!(row[1], params.join(", "), "{}", g.kind);
+    }
+}
+
+/// docs/formats.md lists every algorithm with its parameter and default.
+#[test]
+fn formats_lists_the_algorithms_of_the_catalogue() {
+    let md = read("docs/formats.md");
+    let rows = table(&md, "| `algorithm` | parameters | source |");
+    let keys: Vec<String> = burnin::learn::ALGORITHMS
+        .iter()
+        .map(|a| format!("`{}`", a.key))
+        .collect();
+    assert_eq!(rows.iter().map(|r| r[0]).collect::<Vec<_>>(), keys);
+    for (a, row) in burnin::learn::ALGORITHMS.iter().zip(&rows) {
+        match a.param {
+            Some(p) => assert!(
+                row[1].starts_with(&format!("`{}` ({})", p.key, p.default)),
+                "{}: {}",
+                a.key,
+                row[1]
+            ),
+            None => assert_eq!(row[1], "—", "{}", a.key),
+        }
+    }
+}
