@@ -560,3 +560,41 @@ fn every_bad_input_in_the_corpus_gets_its_message() {
         assert!(r.stdout.is_empty(), "{name}: nothing on stdout");
     }
 }
+
+/// One seed is not an interval: the CLI warns before running, the table
+/// says "n/a (one seed)" instead of a zero-width interval, and a file
+/// without `seeds` runs the default eight (common practice: a Student-t
+/// interval needs n ≥ 2; eight keep its t quantile, 2.365, near the normal's).
+#[test]
+fn one_seed_is_not_an_interval() {
+    let d = Scratch::new("run-one-seed");
+    let model = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/night-ferry.json");
+    std::fs::copy(&model, d.0.join("night-ferry.json")).unwrap();
+    let exp = |seeds: &str| {
+        format!(
+            r#"{{"format": "burnin-experiment", "version": 1, "model_path": "night-ferry.json",
+                "episodes": 30, {seeds} "learners": [{{"algorithm": "uniform"}}]}}"#
+        )
+    };
+    let one = d.file("one.json", &exp(r#""seeds": 1,"#));
+    let r = burnin(&["run", p(&one)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    assert!(
+        r.stderr
+            .starts_with("warning: 1 seed per learner gives no 95% interval"),
+        "{}",
+        r.stderr
+    );
+    let row = r.stdout.lines().find(|l| l.starts_with("uniform")).unwrap();
+    assert!(row.contains("n/a (one seed)"), "{row}");
+    let default = d.file("default.json", &exp(""));
+    let r = burnin(&["run", "--json", p(&default)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    assert!(!r.stderr.contains("warning"), "{}", r.stderr);
+    let v: serde_json::Value = serde_json::from_str(&r.stdout).unwrap();
+    assert_eq!(v["seeds"], 8);
+    assert_eq!(
+        v["learners"][0]["final_regret"].as_array().unwrap().len(),
+        8
+    );
+}

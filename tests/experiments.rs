@@ -360,3 +360,45 @@ fn a_sweep_varies_any_numeric_generator_parameter() {
         "{err}"
     );
 }
+
+/// Regression: floating-point noise above zero was kept while noise below
+/// zero was clipped, so a learner whose every policy is optimal read as
+/// paying regret linearly (slope 1). On a bandit whose arms all have mean
+/// 0.9, every policy is optimal and the regret is exactly 0 (derived by
+/// hand); the uniform learner's evaluation of the mixture, Σ_a (1/3)·0.9,
+/// rounds to 0.8999999999999999 in IEEE-754 double arithmetic (checked with
+/// Python's floats, the same doubles), 1.1·10⁻¹⁶ below V*.
+#[test]
+fn an_exactly_optimal_learner_pays_exactly_zero_regret() {
+    use burnin::experiment::{Output, Point, assemble, run_all};
+    let text = json!({
+        "format": "burnin-experiment", "version": 1,
+        "generator": {"kind": "bandit", "means": [0.9, 0.9, 0.9]},
+        "episodes": 500, "seeds": 3,
+        "learners": [{"algorithm": "uniform"}, {"algorithm": "eps-greedy", "epsilon": 0.5}]
+    })
+    .to_string();
+    let exp = parse_experiment(&text, None).unwrap();
+    let point = Point::new(exp.clone());
+    let Output::Single(r) = assemble(&exp, &[point.clone()], vec![run_all(&point)]) else {
+        panic!("no sweep")
+    };
+    for l in &r.learners {
+        assert!(
+            l.regret_mean.iter().all(|&x| x == 0.0),
+            "{}: {:?}",
+            l.label,
+            l.regret_mean
+        );
+        assert_eq!(l.slope, None, "{}", l.label);
+    }
+    // The tolerance is relative to V* and symmetric (docs/formats.md).
+    use burnin::experiment::episode_regret;
+    assert_eq!(episode_regret(0.9, 0.8999999999999999), 0.0);
+    assert_eq!(episode_regret(0.7, 0.7 + 1e-16), 0.0);
+    assert_eq!(episode_regret(2.0, 1.5), 0.5);
+    assert!(
+        episode_regret(2.0, 2.0 + 1e-9) < 0.0,
+        "a real excess is not hidden"
+    );
+}

@@ -9,7 +9,7 @@ import { sweepableParams } from './generator-form.js';
 
 /** The ready experiment of a first visit: a few seconds in the browser. */
 export const DEFAULT_SETUP = {
-  episodes: 3000, seeds: 4, seed: 1, delta: 0.05,
+  episodes: 3000, seeds: 8, seed: 1, delta: 0.05,
   learners: [
     { use: true, algorithm: 'mvp', value: 1, label: 'MVP, theory constants' },
     { use: true, algorithm: 'mvp', value: 0.002, label: 'MVP ×0.002' },
@@ -23,6 +23,12 @@ export const DEFAULT_SETUP = {
 };
 
 const $ = (id) => document.getElementById(id);
+
+/** Whether results (or sweep results) ran one seed per learner. */
+const oneSeed = (d) => (d.format === 'burnin-sweep' ? d.points[0].seeds : d.seeds) < 2;
+
+/** A 95% interval as shown, or "n/a (one seed)" where there is none. */
+const interval = (d, lo, hi) => (oneSeed(d) ? 'n/a (one seed)' : `[${short(lo)}, ${short(hi)}]`);
 
 
 export class ExperimentView {
@@ -267,7 +273,8 @@ export class ExperimentView {
 
   spec(d = this.results.data) {
     const log = document.querySelector('input[name=axes]:checked').value === 'log';
-    const bands = $('show-bands').checked;
+    // One seed has no interval: no band is drawn (a zero-width one would read as certainty).
+    const bands = $('show-bands').checked && !oneSeed(d);
     const view = $('chart-view').value;
     const series = [];
     if (view === 'sweep') {
@@ -297,7 +304,7 @@ export class ExperimentView {
     const d = this.results.data;
     const bounds = $('show-bounds').checked ? ' Dashed: each learner\u2019s published bound as an order (constants and log factors dropped).' : '';
     const lower = $('show-lower').checked ? ' Dotted: the minimax lower-bound shape.' : '';
-    const bands = $('show-bands').checked ? ' Shaded: 95% Student-t intervals across seeds.' : '';
+    const bands = !$('show-bands').checked ? '' : oneSeed(d) ? ' One seed per learner: no interval can be shown.' : ' Shaded: 95% Student-t intervals across seeds.';
     return `${d.name || 'Experiment'}.${bands}${bounds}${lower}`;
   }
 
@@ -340,7 +347,7 @@ export class ExperimentView {
       for (const l of d.learners) {
         const tr = el('tr');
         tr.append(el('th', l.label));
-        l.regret_mean.forEach((m, i) => tr.append(el('td', `${short(m)} [${short(l.regret_lo[i])}, ${short(l.regret_hi[i])}]`, { 'data-value': String(m) })));
+        l.regret_mean.forEach((m, i) => tr.append(el('td', `${short(m)} ${interval(d, l.regret_lo[i], l.regret_hi[i])}`, { 'data-value': String(m) })));
         body.append(tr);
       }
     } else {
@@ -351,7 +358,7 @@ export class ExperimentView {
         const last = l.regret_mean.length - 1;
         const updates = l.model_updates.reduce((a, b) => a + b, 0) / l.model_updates.length;
         const tr = el('tr');
-        tr.append(el('th', l.label), el('td', short(l.regret_mean[last]), { 'data-value': String(l.regret_mean[last]) }), el('td', `[${short(l.regret_lo[last])}, ${short(l.regret_hi[last])}]`),
+        tr.append(el('th', l.label), el('td', short(l.regret_mean[last]), { 'data-value': String(l.regret_mean[last]) }), el('td', interval(d, l.regret_lo[last], l.regret_hi[last])),
           el('td', l.slope === null ? '—' : l.slope.toFixed(3)), el('td', l.burn_in === null ? 'not reached' : grouped(l.burn_in)),
           el('td', updates.toFixed(1)));
         for (const e of l.episodes_to_eps) {
@@ -363,6 +370,7 @@ export class ExperimentView {
       }
     }
     table.createTHead().append(head);
+    if (oneSeed(d)) table.createCaption().append(el('span', 'One seed per learner: a 95% interval needs at least two; run 8 or more seeds to compare learners.', { class: 'warn', 'data-warning': 'one-seed' }));
     $('results-table').replaceChildren(table);
   }
 

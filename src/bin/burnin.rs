@@ -419,6 +419,9 @@ fn run(
         Ok(t)
     };
     let exp = parse_experiment(&text, Some(&loader)).map_err(invalid)?;
+    if let Some(w) = exp.seed_warning() {
+        let _ = writeln!(std::io::stderr(), "warning: {w}");
+    }
     // A sweep is one experiment per value; all their runs share one pool.
     let points: Vec<Arc<Point>> = exp.points().into_iter().map(Point::new).collect();
     let (index, count) = shard.map_or((0, 1), |(i, n)| (i - 1, n));
@@ -526,10 +529,14 @@ fn sweep_table(r: &burnin::experiment::SweepResults) -> String {
     for l in &r.learners {
         let _ = write!(o, "{:<lw$}", l.label);
         for i in 0..r.values.len() {
-            let cell = format!(
-                "{:.2} [{:.2}, {:.2}]",
-                l.regret_mean[i], l.regret_lo[i], l.regret_hi[i]
-            );
+            let cell = if r.points[0].seeds < 2 {
+                format!("{:.2} n/a (one seed)", l.regret_mean[i])
+            } else {
+                format!(
+                    "{:.2} [{:.2}, {:.2}]",
+                    l.regret_mean[i], l.regret_lo[i], l.regret_hi[i]
+                )
+            };
             let _ = write!(o, "  {cell:>26}");
         }
         o.push('\n');
@@ -634,7 +641,11 @@ fn results_table(r: &burnin::experiment::Results) -> String {
             "{:<lw$}  {:>12.3}  {:>21}  {:>6}  {:>9}  {:>10.1}",
             l.label,
             l.regret_mean[last],
-            format!("[{:.3}, {:.3}]", l.regret_lo[last], l.regret_hi[last]),
+            if r.seeds < 2 {
+                "n/a (one seed)".to_string()
+            } else {
+                format!("[{:.3}, {:.3}]", l.regret_lo[last], l.regret_hi[last])
+            },
             l.slope.map_or("—".into(), |s| format!("{s:.3}")),
             l.burn_in.map_or("—".into(), |b| b.to_string()),
             upd

@@ -23,8 +23,9 @@ pub use results::{
     tail_slope,
 };
 pub use spec::{
-    EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary, LearnerSpec,
-    LearnerSummary, ModelLoader, Sweep, SweepParameter, check_learnable, parse_experiment,
+    DEFAULT_SEEDS, EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary,
+    LearnerSpec, LearnerSummary, ModelLoader, Sweep, SweepParameter, check_learnable,
+    parse_experiment,
 };
 
 use std::sync::Arc;
@@ -50,6 +51,23 @@ fn splitmix(mut z: u64) -> u64 {
 pub fn run_seed(base: u64, learner: usize, seed: u64) -> u64 {
     splitmix(splitmix(base ^ splitmix(seed)) ^ (learner as u64).wrapping_mul(0xD1B5_4A32_D192_ED03))
         & ((1 << 53) - 1)
+}
+
+/// Relative tolerance below which an episode's regret counts as zero.
+pub const REGRET_TOLERANCE: f64 = 1e-12;
+
+/// The regret V*₁(ρ) − V^π₁(ρ) of one episode, with |regret| at or below
+/// [`REGRET_TOLERANCE`]·|V*| taken as exactly 0, both ways: the two values
+/// come from different sums (backward induction and exact evaluation) and
+/// differ in their last bits even for an optimal policy. A difference beyond
+/// the tolerance is kept as it is, whatever its sign.
+pub fn episode_regret(optimal_value: f64, value: f64) -> f64 {
+    let r = optimal_value - value;
+    if r.abs() <= REGRET_TOLERANCE * optimal_value.abs() {
+        0.0
+    } else {
+        r
+    }
 }
 
 /// About `n` log-spaced episode numbers in 1..=K: round(K^(i/(n−1))),
@@ -216,7 +234,7 @@ impl RunState {
                         }
                         PolicyView::Uniform => self.eval.value(m, None, 0.0),
                     };
-                    let r = (ctx.optimal_value - value).max(0.0);
+                    let r = episode_regret(ctx.optimal_value, value);
                     self.cached = Some((version, r));
                     r
                 }

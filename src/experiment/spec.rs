@@ -14,6 +14,9 @@ pub const EXPERIMENT_VERSION: u64 = 1;
 
 /// Most episodes per run.
 pub const MAX_EPISODES: u64 = 1_000_000_000;
+/// Seeds per learner when a file gives none: enough for a Student-t interval
+/// to mean something (common practice; one seed gives no interval at all).
+pub const DEFAULT_SEEDS: u64 = 8;
 /// Most seeds per learner.
 pub const MAX_SEEDS: u64 = 10_000;
 /// Most learners per experiment.
@@ -162,6 +165,17 @@ pub struct LearnerSummary {
 }
 
 impl Experiment {
+    /// What to tell the user before running an experiment whose intervals
+    /// cannot be computed (fewer than two seeds per learner).
+    pub fn seed_warning(&self) -> Option<String> {
+        (self.seeds < 2).then(|| {
+            format!(
+                "{} seed per learner gives no 95% interval; the results show \"n/a (one seed)\" for it (give \"seeds\": {DEFAULT_SEEDS} or more to compare learners)",
+                self.seeds
+            )
+        })
+    }
+
     /// The set-up as a front end shows it.
     pub fn summary(&self) -> ExperimentSummary {
         ExperimentSummary {
@@ -506,7 +520,7 @@ fn convert(
         .as_ref()
         .and_then(|v| sweep_of(r, v, generator.as_ref()));
     let episodes = whole_in(r, "episodes", e.episodes, None, 1, MAX_EPISODES);
-    let seeds = whole_in(r, "seeds", e.seeds, Some(1), 1, MAX_SEEDS);
+    let seeds = whole_in(r, "seeds", e.seeds, Some(DEFAULT_SEEDS), 1, MAX_SEEDS);
     let seed = whole_in(r, "seed", e.seed, Some(1), 0, MAX_SEED);
     let delta = number(
         r,

@@ -548,6 +548,20 @@ await check('the generator form and the sweep list come from the core\'s catalog
   assertEqual(await page.locator('#results-table thead th').allTextContents().then((t) => t.slice(1).join('|')), 'slip = 0|slip = 0.3', 'sweep table');
 });
 
+await check('one seed shows no interval and says so; the default set-up runs eight', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  assertEqual(await page.inputValue('#exp-seeds'), '8', 'default seeds');
+  await page.fill('#exp-episodes', '100');
+  await page.fill('#exp-seeds', '1');
+  const rows = page.locator('#learner-rows tr');
+  for (let i = 1; i < await rows.count(); i++) await rows.nth(i).locator('input[type=checkbox]').uncheck();
+  await runAndWait(page);
+  const cells = await page.locator('#results-table tbody tr').first().locator('td').allTextContents();
+  assertEqual(cells[1], 'n/a (one seed)', 'interval cell');
+  assert(await page.locator('#results-table [data-warning=one-seed]').count() === 1, 'one-seed warning shown');
+});
+
 await check('a model too large for a link is refused with a message', async (page) => {
   await openPage(page);
   await page.click('#generator summary');
