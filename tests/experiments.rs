@@ -380,7 +380,8 @@ fn an_exactly_optimal_learner_pays_exactly_zero_regret() {
     .to_string();
     let exp = parse_experiment(&text, None).unwrap();
     let point = Point::new(exp.clone());
-    let Output::Single(r) = assemble(&exp, &[point.clone()], vec![run_all(&point)]) else {
+    let Output::Single(r) = assemble(&exp, std::slice::from_ref(&point), vec![run_all(&point)])
+    else {
         panic!("no sweep")
     };
     for l in &r.learners {
