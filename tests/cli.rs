@@ -195,23 +195,20 @@ fn every_generator_gives_the_same_model_from_the_cli_and_from_a_generator_object
             vec![(vec![], json!({"kind": g.kind, "seed": 5}))];
         for p in g.params.iter().filter(|p| p.sweepable()) {
             // A value inside the parameter's own range, other than the default.
+            let whole = matches!(p.kind, ParamKind::Whole | ParamKind::OptionalWhole);
             let x = match p.kind {
-                ParamKind::Whole if p.default + 1.0 <= p.max => p.default + 1.0,
-                ParamKind::Whole => p.default - 1.0,
+                _ if whole && p.default + 1.0 <= p.max => p.default + 1.0,
+                _ if whole => p.default - 1.0,
                 _ => (p.default + p.max) / 2.0,
             };
             let opt = format!("--{}", p.name.replace('_', "-"));
-            let text = if p.kind == ParamKind::Whole {
+            let text = if whole {
                 format!("{}", x as u64)
             } else {
                 format!("{x}")
             };
             let mut obj = json!({"kind": g.kind, "seed": 5});
-            obj[p.name] = if p.kind == ParamKind::Whole {
-                json!(x as u64)
-            } else {
-                json!(x)
-            };
+            obj[p.name] = if whole { json!(x as u64) } else { json!(x) };
             cases.push((vec![opt, text], obj));
         }
         for (args, obj) in cases {
@@ -237,7 +234,14 @@ fn every_generator_gives_the_same_model_from_the_cli_and_from_a_generator_object
 fn generate_lists_its_kinds_and_every_kind_writes_a_valid_model() {
     let help = burnin(&["generate", "--help"]);
     assert_eq!(help.code, 0);
-    for kind in ["random", "river", "grid", "lock", "lower-bound", "bandit"] {
+    for kind in [
+        "random",
+        "river",
+        "drift-grid",
+        "lock",
+        "lower-bound",
+        "bandit",
+    ] {
         assert!(help.stdout.contains(kind), "help lists {kind}");
     }
     let d = Scratch::new("generate");
@@ -251,7 +255,15 @@ fn generate_lists_its_kinds_and_every_kind_writes_a_valid_model() {
             "--time-dependent",
         ],
         &["river", "--states", "4"],
-        &["grid", "--width", "3", "--height", "2", "--slip", "0.2"],
+        &[
+            "drift-grid",
+            "--width",
+            "3",
+            "--height",
+            "2",
+            "--slip",
+            "0.2",
+        ],
         &["lock", "--horizon", "4", "--time-dependent"],
         &["lower-bound", "--depth", "1", "--horizon", "8"],
         &["bandit", "--means", "0.1,0.9"],
@@ -285,6 +297,13 @@ fn bad_generator_parameters_name_the_option() {
     let r = burnin(&["generate", "river", "--p-forward", "0.8", "--p-back", "0.5"]);
     assert_eq!(r.stderr, "--p-back: p_forward + p_back must be at most 1\n");
     assert_eq!(burnin(&["generate", "grid", "--width", "two"]).code, 2);
+    // The drift grid's old name still works for one release.
+    let old = burnin(&["generate", "grid", "--width", "3"]);
+    assert_eq!(old.code, 0, "{}", old.stderr);
+    assert_eq!(
+        old.stdout,
+        burnin(&["generate", "drift-grid", "--width", "3"]).stdout
+    );
 }
 
 #[test]

@@ -6,7 +6,7 @@ use serde_json::{Value, json};
 fn model() -> Value {
     serde_json::from_str(
         &std::fs::read_to_string(
-            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/lantern-cave.json"),
+            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/pearl-reef.json"),
         )
         .unwrap(),
     )
@@ -38,8 +38,8 @@ fn the_base_experiment_reads_with_defaults_filled_in() {
         (1000, 4, 1, 32)
     );
     assert_eq!(e.learners[0].label, "mvp ×0.05");
-    // Default ε targets: H/10 and H/20 (H = 14).
-    assert_eq!(e.eps_targets, vec![1.4, 0.7]);
+    // Default ε targets: H/10 and H/20 (H = 10).
+    assert_eq!(e.eps_targets, vec![1.0, 0.5]);
 }
 
 #[test]
@@ -64,7 +64,7 @@ fn bad_experiments_name_every_problem() {
     );
     assert_eq!(
         problems_after(|v| v["learners"] = json!([{"algorithm": "ucb1"}])),
-        ["learners[0].algorithm: ucb1 is for bandits (S = 1, H = 1); this model has S = 7, H = 14"]
+        ["learners[0].algorithm: ucb1 is for bandits (S = 1, H = 1); this model has S = 7, H = 10"]
     );
     assert_eq!(
         problems_after(|v| v["version"] = json!(3)),
@@ -93,7 +93,7 @@ fn model_problems_are_reported_under_model() {
     assert_eq!(
         problems_after(|v| {
             v.as_object_mut().unwrap().remove("model");
-            v["model_path"] = json!("lantern-cave.json");
+            v["model_path"] = json!("pearl-reef.json");
         }),
         ["model_path: model files cannot be read here; put the model inline as \"model\""]
     );
@@ -325,7 +325,7 @@ fn a_sweep_varies_any_numeric_generator_parameter() {
         })
         .to_string()
     };
-    let grid = json!({"kind": "grid", "width": 3, "height": 2, "horizon": 5});
+    let grid = json!({"kind": "drift-grid", "width": 3, "height": 2, "horizon": 5});
     let e = parse_experiment(&exp(grid.clone(), "slip", json!([0.0, 0.3])), None).unwrap();
     for (p, slip) in e.points().iter().zip([0.0, 0.3]) {
         let mut g = grid.clone();

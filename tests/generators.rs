@@ -1,6 +1,6 @@
 //! Generators: valid, reproducible models with the structure their sources describe.
 
-use burnin::generate::{Bandit, Garnet, Grid, Lock, LowerBound, RiverSwim};
+use burnin::generate::{Bandit, DriftGrid, Garnet, Lock, LowerBound, RiverSwim};
 use burnin::solve::{Policy, evaluate, solve};
 use burnin::{Mdp, parse_model, write_model};
 use ndarray::Array3;
@@ -113,22 +113,42 @@ fn lock_pays_one_to_the_right_code_and_a_to_the_minus_h_to_a_guesser() {
 }
 
 #[test]
-fn grid_without_slip_is_worth_the_steps_left_after_the_shortest_path() {
-    // Derived by hand: from (0,0) the goal is (w−1)+(h−1) moves away; every
-    // step from arrival on pays 1.
-    let m = Grid {
+fn drift_grid_without_slip_is_worth_the_steps_left_after_the_shortest_path() {
+    // Derived by hand: from (0,0) the goal (x, y) is x + y moves away; every
+    // step from arrival on pays 1. By default the goal is one in from the
+    // east edge on the northern row: (w−2, h−1).
+    let grid = |goal_column, goal_row| DriftGrid {
         width: 4,
         height: 3,
         slip: 0.0,
         horizon: 12,
         goal_reward: 1.0,
-    }
-    .generate()
-    .unwrap();
-    assert_eq!(solve(&m).optimal_value, (12 - 5) as f64);
+        goal_column,
+        goal_row,
+    };
+    let m = grid(None, None).generate().unwrap();
+    assert_eq!(solve(&m).optimal_value, (12 - 4) as f64);
     round_trips(&m);
-    let slippery = Grid::default().generate().unwrap();
-    assert!(solve(&slippery).optimal_value < (12 - 6) as f64);
+    let corner = grid(Some(3), Some(0)).generate().unwrap();
+    assert_eq!(solve(&corner).optimal_value, (12 - 3) as f64);
+    // The default is 5 wide and 3 high, its goal 3 + 2 moves away; slip
+    // makes the goal later in expectation.
+    let d = DriftGrid::default();
+    assert_eq!(
+        (d.width, d.height, d.goal_column, d.goal_row),
+        (5, 3, None, None)
+    );
+    let slippery = d.generate().unwrap();
+    assert!(solve(&slippery).optimal_value < (12 - 5) as f64);
+    // The goal may not be the start cell, nor outside the grid.
+    assert_eq!(
+        grid(Some(0), Some(0)).generate().unwrap_err().param,
+        "goal_column"
+    );
+    assert_eq!(
+        grid(Some(1), Some(3)).generate().unwrap_err().message,
+        "3 is outside 0..=2"
+    );
 }
 
 #[test]

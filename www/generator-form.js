@@ -56,5 +56,5 @@ export function initGeneratorForm(kindSelect, paramsBox, generators) {
 /** The numeric parameters of a generator object's kind that a sweep can vary. */
 export function sweepableParams(generators, spec) {
   const g = spec && generators.find((x) => x.kind === spec.kind);
-  return g ? g.params.filter((p) => p.kind === 'whole' || p.kind === 'number') : [];
+  return g ? g.params.filter((p) => p.kind !== 'flag' && p.kind !== 'numbers') : [];
 }

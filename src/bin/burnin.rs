@@ -115,6 +115,11 @@ impl clap::Subcommand for GeneratorArgs {
         use clap::{Arg, ArgAction, value_parser};
         for g in GENERATORS {
             let mut sub = clap::Command::new(g.kind).about(g.about);
+            for (old, new) in burnin::generate::catalog::OLD_KINDS {
+                if *new == g.kind {
+                    sub = sub.alias(*old);
+                }
+            }
             for p in g.params {
                 let arg = Arg::new(p.name).long(option_name(p.name)).help(p.help);
                 let arg = match p.kind {

@@ -14,7 +14,7 @@
 use serde::Serialize;
 use serde_json::Value;
 
-use super::{ParamError, bandit, garnet, grid, lock, lower_bound, river};
+use super::{ParamError, bandit, drift_grid, garnet, lock, lower_bound, river};
 use crate::model::{Mdp, Problems};
 
 /// The type of a generator parameter.
@@ -164,7 +164,7 @@ impl GenParam {
 
     /// Whether a sweep can vary it.
     pub fn sweepable(&self) -> bool {
-        matches!(self.kind, ParamKind::Whole | ParamKind::Number)
+        !matches!(self.kind, ParamKind::Flag | ParamKind::Numbers)
     }
 }
 
@@ -207,13 +207,13 @@ pub static GENERATORS: &[GeneratorInfo] = &[
         build: river::build,
     },
     GeneratorInfo {
-        kind: "grid",
-        name: "Slippery grid",
-        about: "Grid with slip probability and a paying far corner.",
-        source: "common practice (slippery grids appear throughout the literature; no single source)",
+        kind: "drift-grid",
+        name: "Drift grid",
+        about: "Rectangle of cells whose moves drift sideways, with one paying goal cell.",
+        source: "common practice (grids with slip appear throughout the literature; no single source)",
         seeded: false,
-        params: grid::PARAMS,
-        build: grid::build,
+        params: drift_grid::PARAMS,
+        build: drift_grid::build,
     },
     GeneratorInfo {
         kind: "lock",
@@ -253,8 +253,16 @@ pub fn kinds() -> String {
         .join(", ")
 }
 
-/// The catalogue entry of `kind`.
+/// Earlier names of generator kinds, still read (for one release) so that
+/// files written before a rename keep opening: (old, new).
+pub const OLD_KINDS: &[(&str, &str)] = &[("grid", "drift-grid")];
+
+/// The catalogue entry of `kind` (or of the kind an old name now has).
 pub fn info(kind: &str) -> Option<&'static GeneratorInfo> {
+    let kind = OLD_KINDS
+        .iter()
+        .find(|(old, _)| *old == kind)
+        .map_or(kind, |(_, new)| new);
     GENERATORS.iter().find(|g| g.kind == kind)
 }
 
@@ -483,7 +491,9 @@ impl GeneratorSpec {
     pub fn with(&self, name: &str, x: f64) -> Option<GeneratorSpec> {
         let p = self.info().params.iter().find(|p| p.name == name)?;
         let v = match p.kind {
-            ParamKind::Whole if x.fract() == 0.0 && x >= 0.0 => ParamValue::Whole(x as u64),
+            ParamKind::Whole | ParamKind::OptionalWhole if x.fract() == 0.0 && x >= 0.0 => {
+                ParamValue::Whole(x as u64)
+            }
             ParamKind::Number => ParamValue::Number(x),
             _ => return None,
         };

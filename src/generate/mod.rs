@@ -11,8 +11,8 @@
 
 mod bandit;
 pub mod catalog;
+mod drift_grid;
 mod garnet;
-mod grid;
 mod lock;
 mod lower_bound;
 mod river;
@@ -21,8 +21,8 @@ pub use bandit::Bandit;
 pub use catalog::{
     GENERATORS, GenParam, GeneratorInfo, GeneratorSpec, ParamKind, ParamValue, Values, kinds,
 };
+pub use drift_grid::DriftGrid;
 pub use garnet::Garnet;
-pub use grid::Grid;
 pub use lock::Lock;
 pub use lower_bound::LowerBound;
 pub use river::RiverSwim;

@@ -272,13 +272,13 @@ await check('charts and results export as PNG, SVG, JSON and CSV, and results re
 
 await check('a model file saved from the page opens again the same', async (page) => {
   await openPage(page);
-  await page.selectOption('#demo-select', 'lantern-cave.json');
-  const v = await shownValue(page, await demoName('lantern-cave.json'));
+  await page.selectOption('#demo-select', 'pearl-reef.json');
+  const v = await shownValue(page, await demoName('pearl-reef.json'));
   const file = await downloadText(page, '#save-model');
   await page.selectOption('#demo-select', index.default);
   await shownValue(page, defaultName);
   await upload(page, file.name, file.text);
-  assertEqual((await shownValue(page, await demoName('lantern-cave.json'))).data, v.data, 'same optimal value');
+  assertEqual((await shownValue(page, await demoName('pearl-reef.json'))).data, v.data, 'same optimal value');
 });
 
 await check('the main thread never blocks for more than 50 ms during a run', async (page) => {
@@ -452,10 +452,10 @@ await check('the editor shows a problem at its cell as you type, and uses the fi
 
 await check('the graph draws every transition, highlights the policy, and keeps dragged positions', async (page) => {
   await openPage(page);
-  await page.selectOption('#demo-select', 'lantern-cave.json');
-  await shownValue(page, 'Lantern cave');
+  await page.selectOption('#demo-select', 'pearl-reef.json');
+  await shownValue(page, 'Pearl reef');
   await page.click('#tab-graph');
-  const m = await (await fetch(`${url}/demo-models/lantern-cave.json`)).json();
+  const m = await (await fetch(`${url}/demo-models/pearl-reef.json`)).json();
   const entries = m.steps[0].transitions.flat().flat().filter((e) => e[1] > 0).length;
   assertEqual(await page.locator('#graph-box path[data-edge]').count(), entries, 'one arrow per transition');
   assertEqual(await page.locator('#graph-legend li').count(), m.actions.length, 'one legend entry per action');
@@ -478,7 +478,7 @@ await check('the graph draws every transition, highlights the policy, and keeps 
 
 await check('a file dropped on the page opens', async (page) => {
   await openPage(page);
-  const text = await (await fetch(`${url}/demo-models/lantern-cave.json`)).text();
+  const text = await (await fetch(`${url}/demo-models/pearl-reef.json`)).text();
   const dt = await page.evaluateHandle((t) => {
     const d = new DataTransfer();
     d.items.add(new File([t], 'dropped.json', { type: 'application/json' }));
@@ -486,7 +486,7 @@ await check('a file dropped on the page opens', async (page) => {
   }, text);
   await page.dispatchEvent('body', 'dragover', { dataTransfer: dt });
   await page.dispatchEvent('body', 'drop', { dataTransfer: dt });
-  assertEqual((await shownValue(page, 'Lantern cave')).data, expected['lantern-cave.json'], 'dropped model solved');
+  assertEqual((await shownValue(page, 'Pearl reef')).data, expected['pearl-reef.json'], 'dropped model solved');
 });
 
 /** Drops a file named `name` holding `text` on the page. */
@@ -528,15 +528,15 @@ await check('the generator form and the sweep list come from the core\'s catalog
     assert(await page.locator(`#gen-${p}`).count() === 1, `field ${p}`);
   }
   assertEqual(await page.locator('#gen-special_step').getAttribute('placeholder'), 'from the seed', 'optional parameter');
-  await page.selectOption('#gen-kind', 'grid');
+  await page.selectOption('#gen-kind', 'drift-grid');
   await page.fill('#gen-width', '3');
   await page.fill('#gen-height', '2');
   await page.fill('#gen-horizon', '6');
   await page.click('#gen-run');
-  await shownValue(page, 'Slippery grid 3×2 H=6');
+  await shownValue(page, 'Drift grid 3×2 H=6');
   await page.click('#tab-experiment');
   const keys = await page.locator('#sweep-param option').evaluateAll((os) => os.map((o) => o.value));
-  for (const k of ['delta', 'bonus_scale', 'epsilon', 'prior', 'width', 'height', 'slip', 'horizon', 'goal_reward']) assert(keys.includes(k), `sweep offers ${k}: ${keys}`);
+  for (const k of ['delta', 'bonus_scale', 'epsilon', 'prior', 'width', 'height', 'slip', 'horizon', 'goal_reward', 'goal_column', 'goal_row']) assert(keys.includes(k), `sweep offers ${k}: ${keys}`);
   await page.fill('#exp-episodes', '200');
   await page.fill('#exp-seeds', '2');
   const rows = page.locator('#learner-rows tr');
@@ -642,8 +642,8 @@ await check('a model at the size limit solves without freezing the page', async 
 
 await check('a reload in the middle of a run loses nothing saved', async (page) => {
   await openPage(page);
-  await page.selectOption('#demo-select', 'lantern-cave.json');
-  await shownValue(page, 'Lantern cave');
+  await page.selectOption('#demo-select', 'pearl-reef.json');
+  await shownValue(page, 'Pearl reef');
   await page.click('#tab-library');
   await page.click('#save-current');
   await page.click('#tab-experiment');
@@ -651,7 +651,7 @@ await check('a reload in the middle of a run loses nothing saved', async (page) 
   await page.click('#run-exp');
   await page.waitForFunction(() => Number(document.getElementById('exp-progress').value) > 0, null, { timeout: 20000 });
   await page.reload();
-  await shownValue(page, 'Lantern cave');
+  await shownValue(page, 'Pearl reef');
   assertEqual(await page.inputValue('#exp-episodes'), '100000000', 'the set-up was kept');
   await page.click('#tab-library');
   assertEqual(await page.locator('#library-list li').count(), 1, 'the library is intact');
