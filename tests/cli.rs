@@ -74,14 +74,18 @@ fn every_demo_model_validates_and_solves() {
             m.notes().is_some_and(|n| !n.is_empty()),
             "demo models carry a description"
         );
-        // Canonical layout: tidy changes nothing.
-        let t = burnin(&["tidy", p(&f)]);
+        // Canonical layout: canon changes nothing.
+        let t = burnin(&["canon", p(&f)]);
         assert_eq!(
             t.stdout,
             std::fs::read_to_string(&f).unwrap(),
-            "{} is tidy",
+            "{} is in the canonical layout",
             f.display()
         );
+        // The old name still works for one release, and says it is old.
+        let old = burnin(&["tidy", p(&f)]);
+        assert_eq!(old.stdout, t.stdout);
+        assert!(old.stderr.contains("`burnin tidy` is now `burnin canon`"));
     }
 }
 

@@ -3,7 +3,7 @@
 // picture. Data to pixels and back is returned for hover read-outs.
 
 /** Series colours (our own palette; ink-friendly on paper). */
-export const PALETTE = ['#2f6f73', '#c2502f', '#6b4fa0', '#a07a12', '#2c7fb8', '#8c564b', '#4d8f3a', '#c24f8f', '#5d676b', '#1e282d'];
+export const PALETTE = ['#1f6f78', '#cb8019', '#ad75f4', '#573e0c', '#53249a', '#80986e', '#ec55be', '#820f44'];
 
 const FONT = 'system-ui, -apple-system, "Segoe UI", Roboto, sans-serif';
 const measureCtx = document.createElement('canvas').getContext('2d');

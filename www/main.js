@@ -62,10 +62,23 @@ function show(sol, text, doc, source, generator = null) {
   step.value = '1';
   showStep().catch(fail);
   experiment.setSweepChoices(generator);
-  $('demo-select').value = source.kind === 'demo' ? source.name : '';
+  showSource(source);
   editor.load(doc, sol);
   graph.show(doc, sol);
   document.title = `${current.name} — Burnin`;
+}
+
+/** The demo selector names the open demo, or says "—" and what is open instead. */
+function showSource(source) {
+  const select = $('demo-select');
+  const other = select.querySelector('option[value=""]');
+  if (source.kind === 'demo') {
+    select.value = source.name;
+    other.textContent = '—';
+  } else {
+    other.textContent = `— ${source.name} is open`;
+    select.value = '';
+  }
 }
 
 /** Shows Q* and the gaps of the chosen step, fetched from the worker. */
@@ -335,7 +348,7 @@ async function start() {
   const select = $('demo-select');
   const other = document.createElement('option');
   other.value = '';
-  other.textContent = '(another model is open)';
+  other.textContent = '—';
   other.disabled = true;
   select.append(other);
   for (const f of index.models) {

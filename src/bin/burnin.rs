@@ -82,10 +82,13 @@ enum Command {
     },
     /// Rewrite a model file in the canonical layout (fields in order, one
     /// transition row per line) on standard output.
-    Tidy {
+    Canon {
         /// Model file (burnin-model v1), or - for standard input.
         file: PathBuf,
     },
+    /// The old name of `canon`, kept for one release.
+    #[command(hide = true)]
+    Tidy { file: PathBuf },
     /// Write a generated model file to standard output.
     Generate {
         #[command(subcommand)]
@@ -215,7 +218,14 @@ fn main() -> ExitCode {
             only,
             no_learners,
         } => bench(quick, only.as_deref(), no_learners),
-        Command::Tidy { file } => load(&file).and_then(|m| emit(&burnin::write_model(&m))),
+        Command::Canon { file } => canon(&file),
+        Command::Tidy { file } => {
+            let _ = writeln!(
+                std::io::stderr(),
+                "note: `burnin tidy` is now `burnin canon`; the old name goes in the next release"
+            );
+            canon(&file)
+        }
         Command::Generate { kind, seed, output } => generate(kind, seed, output.as_deref()),
     };
     match result {
@@ -294,6 +304,11 @@ fn summary(m: &Mdp) -> String {
         },
         m.entries()
     )
+}
+
+/// The model file in the canonical layout, on standard output.
+fn canon(path: &Path) -> Result<(), Failure> {
+    emit(&burnin::write_model(&load(path)?))
 }
 
 fn validate(path: &Path) -> Result<(), Failure> {
@@ -590,15 +605,20 @@ impl Progress {
         let left = (self.total - done) as f64 / rate.max(1e-9);
         let mut err = std::io::stderr().lock();
         if self.tty {
-            let width = 30;
+            // One line, rewritten in place: short enough never to wrap in an
+            // 80-column terminal (a wrapped line would scroll as new lines),
+            // and erased to its end before each rewrite.
+            let width = 20;
             let fill = (done * width / self.total) as usize;
             let _ = write!(
                 err,
-                "\r[{}{}] {done}/{} episodes, {:.0}/s, {:.0}s left ",
+                "\r\x1b[K[{}{}] {:>3}% {}/{} episodes, {}/s, {:.0} s left",
                 "#".repeat(fill),
                 ".".repeat(width as usize - fill),
-                self.total,
-                rate,
+                done * 100 / self.total,
+                compact(done as f64),
+                compact(self.total as f64),
+                compact(rate),
                 left
             );
         } else {
@@ -614,9 +634,27 @@ impl Progress {
 
     fn clear(&self) {
         if self.tty {
-            let _ = write!(std::io::stderr(), "\r{}\r", " ".repeat(78));
+            let _ = write!(std::io::stderr(), "\r\x1b[K");
         }
     }
+}
+
+/// A count in at most five characters: 999, 12.3k, 456k, 4.56M, 1.23G.
+fn compact(x: f64) -> String {
+    let (v, unit) = match x {
+        x if x < 1e3 => return format!("{x:.0}"),
+        x if x < 1e6 => (x / 1e3, "k"),
+        x if x < 1e9 => (x / 1e6, "M"),
+        x => (x / 1e9, "G"),
+    };
+    let digits = if v < 10.0 {
+        2
+    } else if v < 100.0 {
+        1
+    } else {
+        0
+    };
+    format!("{v:.digits$}{unit}")
 }
 
 fn results_table(r: &burnin::experiment::Results) -> String {
@@ -680,4 +718,25 @@ fn bench(quick: bool, only: Option<&str>, no_learners: bool) -> Result<(), Failu
         no_learners,
     };
     emit(&(burnin::bench::report("native", &now, &peak_rss, sel) + "\n"))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::compact;
+
+    /// Counts in the progress line stay within five characters (derived by hand).
+    #[test]
+    fn compact_counts() {
+        for (x, want) in [
+            (0.0, "0"),
+            (999.0, "999"),
+            (1_234.0, "1.23k"),
+            (56_780.0, "56.8k"),
+            (560_000.0, "560k"),
+            (4_560_000.0, "4.56M"),
+            (1e9, "1.00G"),
+        ] {
+            assert_eq!(compact(x), want);
+        }
+    }
 }

@@ -342,6 +342,8 @@ await check('saved work survives a reload, and the library renames, duplicates a
   await shownValue(page, defaultName);
   await page.getByRole('button', { name: 'Open Ferry, kept' }).click();
   assertEqual((await shownValue(page, 'Night ferry')).data, v.data, 'opened from the library');
+  // The screenshot shows the library itself (opening an entry shows its solution).
+  await page.click('#tab-library');
   await page.screenshot({ path: join(out, 'library.png') });
 });
 
@@ -487,6 +489,8 @@ await check('a file dropped on the page opens', async (page) => {
   await page.dispatchEvent('body', 'dragover', { dataTransfer: dt });
   await page.dispatchEvent('body', 'drop', { dataTransfer: dt });
   assertEqual((await shownValue(page, 'Pearl reef')).data, expected['pearl-reef.json'], 'dropped model solved');
+  // The demo selector no longer names a demo: it says what is open.
+  assertEqual(await page.locator('#demo-select').evaluate((s) => s.selectedOptions[0].textContent), '— dropped.json is open', 'demo selector');
 });
 
 /** Drops a file named `name` holding `text` on the page. */
@@ -559,6 +563,9 @@ await check('one seed shows no interval and says so; the default set-up runs eig
   await runAndWait(page);
   const cells = await page.locator('#results-table tbody tr').first().locator('td').allTextContents();
   assertEqual(cells[1], 'n/a (one seed)', 'interval cell');
+  // At 1360 px the results table fits its card: no column runs past the right edge.
+  const [scroll, client] = await page.locator('#results-table').evaluate((w) => [w.scrollWidth, w.clientWidth]);
+  assert(scroll <= client, `results table fits (${scroll} > ${client})`);
   assert(await page.locator('#results-table [data-warning=one-seed]').count() === 1, 'one-seed warning shown');
 });
 
