@@ -621,3 +621,27 @@ fn one_seed_is_not_an_interval() {
         8
     );
 }
+
+/// The table ends with one verdict line per compared pair, the core's
+/// (results.rs `verdict`), and the JSON carries the comparisons.
+#[test]
+fn run_prints_a_paired_verdict_per_pair() {
+    let d = Scratch::new("run-compare");
+    let f = experiment_file(
+        &d,
+        r#"[{"algorithm": "uniform"}, {"algorithm": "eps-greedy", "epsilon": 0.2}]"#,
+        200,
+    );
+    let r = burnin(&["run", p(&f)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let j = burnin(&["run", "--json", p(&f)]);
+    let v: serde_json::Value = serde_json::from_str(&j.stdout).unwrap();
+    let verdict = v["comparisons"][0]["verdict"].as_str().unwrap();
+    assert!(verdict.starts_with("uniform "), "{verdict}");
+    assert!(
+        r.stdout.contains("paired comparisons at K")
+            && r.stdout.contains(&format!("  {verdict}\n")),
+        "{}",
+        r.stdout
+    );
+}

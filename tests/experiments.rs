@@ -403,3 +403,64 @@ fn an_exactly_optimal_learner_pays_exactly_zero_regret() {
         "a real excess is not hidden"
     );
 }
+
+/// Paired comparisons: every pair of learners (at most ten), the difference
+/// at K equal to the mean of the per-seed differences of `final_regret`
+/// with Student's paired interval on them (stats::paired95, checked against
+/// SciPy), and a verdict whose direction follows the interval (derived from
+/// the definitions).
+#[test]
+fn results_carry_paired_comparisons_with_a_verdict() {
+    use burnin::experiment::{Output, Point, assemble, run_all};
+    use burnin::stats::paired95;
+    let mut v = base();
+    v["seeds"] = json!(8);
+    v["learners"] = json!([
+        {"algorithm": "uniform"},
+        {"algorithm": "psrl"},
+        {"algorithm": "eps-greedy", "epsilon": 0.3}
+    ]);
+    let exp = parse_experiment(&v.to_string(), None).unwrap();
+    let point = Point::new(exp.clone());
+    let Output::Single(r) = assemble(&exp, std::slice::from_ref(&point), vec![run_all(&point)])
+    else {
+        panic!("no sweep")
+    };
+    let pairs: Vec<(&str, &str)> = r
+        .comparisons
+        .iter()
+        .map(|c| (c.a.as_str(), c.b.as_str()))
+        .collect();
+    assert_eq!(
+        pairs,
+        [
+            ("uniform", "psrl"),
+            ("uniform", "eps-greedy ε=0.3"),
+            ("psrl", "eps-greedy ε=0.3")
+        ]
+    );
+    let by_label = |l: &str| r.learners.iter().find(|x| x.label == l).unwrap();
+    for c in &r.comparisons {
+        let want = paired95(&by_label(&c.a).final_regret, &by_label(&c.b).final_regret);
+        assert_eq!(c.at_k, want, "{} against {}", c.a, c.b);
+        assert_eq!(*c.difference_mean.last().unwrap(), want.mean);
+        assert_eq!(c.difference_mean.len(), r.learners[0].checkpoints.len());
+        let word = if want.hi < 0.0 {
+            " below "
+        } else if want.lo > 0.0 {
+            " above "
+        } else {
+            " not told apart "
+        };
+        assert!(c.verdict.contains(word), "{}", c.verdict);
+        assert!(c.verdict.contains("at K = 1000"), "{}", c.verdict);
+    }
+    // Uniform pays far more than PSRL on the reef by K = 1000.
+    assert!(
+        r.comparisons[0]
+            .verdict
+            .starts_with("uniform above psrl at K = 1000"),
+        "{}",
+        r.comparisons[0].verdict
+    );
+}

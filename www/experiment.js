@@ -57,6 +57,7 @@ export class ExperimentView {
     for (const id of ['chart-view', 'show-bands', 'show-lower', 'show-bounds']) $(id).addEventListener('change', () => this.draw());
     for (const r of document.querySelectorAll('input[name=axes]')) r.addEventListener('change', () => this.draw());
     $('heat-learner').addEventListener('change', () => this.drawHeat());
+    for (const id of ['cmp-a', 'cmp-b']) $(id).addEventListener('change', () => { this.showComparison(); if ($('chart-view').value === 'difference') this.draw(); });
     $('export-png').addEventListener('click', () => this.exportPng());
     $('export-svg').addEventListener('click', () => this.exportSvg());
     $('export-json').addEventListener('click', () => download(`${this.fileBase()}-results.json`, this.results.text, 'application/json'));
@@ -253,6 +254,16 @@ export class ExperimentView {
     if (sweep) view.append(el('option', `regret at K against ${data.parameter}`, { value: 'sweep' }));
     else {
       view.append(el('option', 'cumulative regret', { value: 'cumulative' }), el('option', 'per-episode regret', { value: 'episode' }));
+      if (data.comparisons?.length) view.append(el('option', 'paired difference A − B', { value: 'difference' }));
+    }
+    $('compare-section').hidden = sweep || !data.comparisons?.length;
+    if (!sweep) {
+      for (const [id, pick] of [['cmp-a', 0], ['cmp-b', 1]]) {
+        const sel = $(id);
+        sel.replaceChildren(...data.learners.map((l) => el('option', l.label, { value: l.label })));
+        sel.selectedIndex = Math.min(pick, data.learners.length - 1);
+      }
+      this.showComparison();
     }
     $('export-csv').disabled = !this.results.csv;
     $('save-results').disabled = !r.experiment;
@@ -264,6 +275,27 @@ export class ExperimentView {
     this.draw();
     this.drawTable();
     this.drawHeat();
+  }
+
+  /**
+   * The core's comparison of the chosen learners A and B: {c, sign} with
+   * sign −1 when the core compared them as (B, A); null when it did not
+   * compare them (more learners than it compares in all pairs).
+   */
+  comparison() {
+    const a = $('cmp-a').value, b = $('cmp-b').value;
+    for (const c of this.results?.data.comparisons || []) {
+      if (c.a === a && c.b === b) return { c, sign: 1 };
+      if (c.a === b && c.b === a) return { c, sign: -1 };
+    }
+    return null;
+  }
+
+  showComparison() {
+    const out = $('cmp-verdict');
+    if ($('cmp-a').value === $('cmp-b').value) { out.textContent = 'Choose two different learners.'; return; }
+    const found = this.comparison();
+    out.textContent = found ? found.c.verdict : 'Not compared: with more than ten learners each is compared with the first only.';
   }
 
   clearResults() {
@@ -280,6 +312,18 @@ export class ExperimentView {
     if (view === 'sweep') {
       d.learners.forEach((l, i) => series.push({ label: l.label, color: PALETTE[i % PALETTE.length], x: d.values, y: l.regret_mean, lo: bands ? l.regret_lo : null, hi: bands ? l.regret_hi : null }));
       return { title: `Regret at K = ${grouped(d.points[0].episodes)} against ${d.parameter}`, xLabel: d.parameter, yLabel: 'regret at K', log, bars: true, series };
+    }
+    if (view === 'difference') {
+      const found = this.comparison();
+      const first = d.learners[0].checkpoints;
+      if (!found) return { title: 'Paired difference: choose two compared learners', xLabel: 'episode k', yLabel: 'regret difference', log: false, series: [] };
+      const { c, sign } = found;
+      const [a, b] = sign > 0 ? [c.a, c.b] : [c.b, c.a];
+      const flip = (xs) => xs.map((x) => sign * x);
+      const [lo, hi] = sign > 0 ? [c.difference_lo, c.difference_hi] : [flip(c.difference_hi), flip(c.difference_lo)];
+      series.push({ label: `${a} − ${b}`, color: PALETTE[0], x: first, y: flip(c.difference_mean), lo: bands ? lo : null, hi: bands ? hi : null });
+      series.push({ label: 'no difference', color: '#5d676b', x: first, y: first.map(() => 0), dash: [2, 3], width: 1 });
+      return { title: `Paired difference in cumulative regret — ${a} minus ${b} (${d.seeds} seeds)`, xLabel: 'episode k', yLabel: 'regret(A) − regret(B)', log: false, series };
     }
     const episode = view === 'episode';
     d.learners.forEach((l, i) => {

@@ -698,6 +698,15 @@ fn results_table(r: &burnin::experiment::Results) -> String {
         o,
         "\nslope: least squares of ln regret on ln k over the last decade; burn-in: first checkpoint after which the local slope stays ≤ 0.6."
     );
+    if !r.comparisons.is_empty() {
+        let _ = writeln!(
+            o,
+            "\npaired comparisons at K (run j of one learner against run j of the other):"
+        );
+        for c in &r.comparisons {
+            let _ = writeln!(o, "  {}", c.verdict);
+        }
+    }
     o
 }
 

@@ -18,9 +18,9 @@ mod spec;
 pub use shard::{SHARD_FORMAT, SHARD_VERSION, ShardFile, merge};
 
 pub use results::{
-    EpsResult, LearnerResult, RESULTS_FORMAT, RESULTS_VERSION, Results, SETTLED_SLOPE,
-    SWEEP_FORMAT, SweepLearner, SweepResults, burn_in, csv_field, parse_results, summarise,
-    tail_slope,
+    Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS, RESULTS_FORMAT, RESULTS_VERSION, Results,
+    SETTLED_SLOPE, SWEEP_FORMAT, SweepLearner, SweepResults, burn_in, csv_field, parse_results,
+    summarise, tail_slope, verdict,
 };
 pub use spec::{
     DEFAULT_SEEDS, EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary,

@@ -5,7 +5,7 @@ use serde::{Deserialize, Serialize};
 
 use super::{Point, RunRecord};
 use crate::model::Problems;
-use crate::stats::{interval95, ls_slope, mean};
+use crate::stats::{Paired, interval95, ls_slope, mean, paired95};
 use crate::theory::{self, Bound};
 
 pub const RESULTS_FORMAT: &str = "burnin-results";
@@ -75,6 +75,87 @@ pub struct Results {
     /// The minimax lower-bound shape at the checkpoints.
     pub lower_bound: Bound,
     pub learners: Vec<LearnerResult>,
+    /// Paired comparisons of learners (see [`compare`]); absent in files
+    /// written before they were added.
+    #[serde(default)]
+    pub comparisons: Vec<Comparison>,
+}
+
+/// With at most this many learners every pair is compared; with more, each
+/// learner against the first.
+pub const MAX_ALL_PAIRS: usize = 10;
+
+/// Learner `a` against learner `b`, paired by seed index (run j of `a` with
+/// run j of `b`; the runs are independent, so each pair's difference is an
+/// independent draw and Student's paired interval applies).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Comparison {
+    pub a: String,
+    pub b: String,
+    /// Mean over seeds of regret(a) − regret(b) at each checkpoint, with its
+    /// 95% paired interval.
+    pub difference_mean: Vec<f64>,
+    pub difference_lo: Vec<f64>,
+    pub difference_hi: Vec<f64>,
+    /// The same at K.
+    pub at_k: Paired,
+    /// One line that says it: "A below B at K = …, 95% paired interval […]".
+    pub verdict: String,
+}
+
+/// The verdict line of a comparison at K.
+pub fn verdict(a: &str, b: &str, k: u64, p: &Paired) -> String {
+    let interval = format!("95% paired interval [{:.4}, {:.4}]", p.lo, p.hi);
+    if p.n < 2 {
+        format!("{a} against {b} at K = {k}: n/a (one seed)")
+    } else if p.hi < 0.0 {
+        format!(
+            "{a} below {b} at K = {k}: regret {:.4} lower, {interval}",
+            -p.mean
+        )
+    } else if p.lo > 0.0 {
+        format!(
+            "{a} above {b} at K = {k}: regret {:.4} higher, {interval}",
+            p.mean
+        )
+    } else {
+        format!("{a} and {b} not told apart at K = {k}: {interval} holds 0")
+    }
+}
+
+/// The paired comparisons of the runs `runs[learner]` (each sorted by seed
+/// index): every pair when there are at most [`MAX_ALL_PAIRS`] learners,
+/// otherwise each against the first.
+fn compare(labels: &[&str], runs: &[Vec<&RunRecord>], episodes: u64) -> Vec<Comparison> {
+    let n = labels.len();
+    let pairs: Vec<(usize, usize)> = if n <= MAX_ALL_PAIRS {
+        (0..n)
+            .flat_map(|i| (i + 1..n).map(move |j| (i, j)))
+            .collect()
+    } else {
+        (1..n).map(|j| (0, j)).collect()
+    };
+    pairs
+        .into_iter()
+        .map(|(i, j)| {
+            let at = |c: usize| {
+                let col = |l: usize| runs[l].iter().map(|r| r.regret[c]).collect::<Vec<f64>>();
+                paired95(&col(i), &col(j))
+            };
+            let cps = runs[i].first().map_or(0, |r| r.regret.len());
+            let curve: Vec<Paired> = (0..cps).map(at).collect();
+            let at_k = *curve.last().expect("at least one checkpoint");
+            Comparison {
+                a: labels[i].to_owned(),
+                b: labels[j].to_owned(),
+                difference_mean: curve.iter().map(|p| p.mean).collect(),
+                difference_lo: curve.iter().map(|p| p.lo).collect(),
+                difference_hi: curve.iter().map(|p| p.hi).collect(),
+                verdict: verdict(labels[i], labels[j], episodes, &at_k),
+                at_k,
+            }
+        })
+        .collect()
 }
 
 /// The first checkpoint k_j such that every local slope
@@ -133,12 +214,16 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
     let column = |runs: &[&RunRecord], c: usize, f: fn(&RunRecord) -> &Vec<f64>| -> Vec<f64> {
         runs.iter().map(|r| f(r)[c]).collect()
     };
+    let by_learner: Vec<Vec<&RunRecord>> = (0..exp.learners.len())
+        .map(|li| records.iter().filter(|r| r.learner == li).collect())
+        .collect();
+    let labels: Vec<&str> = exp.learners.iter().map(|l| l.label.as_str()).collect();
     let learners = exp
         .learners
         .iter()
         .enumerate()
         .map(|(li, spec)| {
-            let runs: Vec<&RunRecord> = records.iter().filter(|r| r.learner == li).collect();
+            let runs: Vec<&RunRecord> = by_learner[li].clone();
             let n = ks.len();
             let (mut mean_r, mut lo, mut hi, mut ep, mut ret) = (
                 Vec::with_capacity(n),
@@ -216,6 +301,7 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
         seed: exp.seed,
         delta: exp.delta,
         lower_bound: theory::lower_bound(&set, ks),
+        comparisons: compare(&labels, &by_learner, exp.episodes),
         learners,
     }
 }

@@ -569,6 +569,33 @@ await check('one seed shows no interval and says so; the default set-up runs eig
   assert(await page.locator('#results-table [data-warning=one-seed]').count() === 1, 'one-seed warning shown');
 });
 
+await check('two learners are compared by a paired interval with a one-line verdict and a difference chart', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '300');
+  const rows = page.locator('#learner-rows tr');
+  // Keep ε-greedy and uniform.
+  const algs = await rows.evaluateAll((trs) => trs.map((tr) => tr.querySelector('select').value));
+  for (let i = 0; i < algs.length; i++) if (!['eps-greedy', 'uniform'].includes(algs[i])) await rows.nth(i).locator('input[type=checkbox]').uncheck();
+  await runAndWait(page);
+  const results = JSON.parse((await downloadText(page, '#export-json')).text);
+  assertEqual(results.comparisons.length, 1, 'one pair');
+  const c = results.comparisons[0];
+  assertEqual(await page.locator('#cmp-verdict').textContent(), c.verdict, 'the core\'s verdict is shown');
+  assert(/^(eps-greedy ε=0\.1|uniform) (below|above|and) /.test(c.verdict) && c.verdict.includes('95% paired interval'), c.verdict);
+  // Reversing A and B names the same comparison; the chart draws A − B.
+  await page.selectOption('#cmp-a', c.b);
+  await page.selectOption('#cmp-b', c.a);
+  assertEqual(await page.locator('#cmp-verdict').textContent(), c.verdict, 'either order');
+  // The difference chart draws A − B: its hover read-out names that series.
+  await page.selectOption('#chart-view', 'difference');
+  const box = await page.locator('#chart').boundingBox();
+  await page.mouse.move(box.x + box.width * 0.4, box.y + box.height * 0.5);
+  await page.waitForSelector('#chart-tip:not([hidden])');
+  const tip = await page.locator('#chart-tip').textContent();
+  assert(tip.includes(`${c.b} − ${c.a}`), `hover read-out of the difference: ${tip}`);
+});
+
 await check('a model too large for a link is refused with a message', async (page) => {
   await openPage(page);
   await page.click('#generator summary');
