@@ -334,7 +334,9 @@ export class ExperimentView {
         lo: bands && !episode ? l.regret_lo : null, hi: bands && !episode ? l.regret_hi : null,
       });
       if (!episode && $('show-bounds').checked && l.bound) {
-        series.push({ label: `${l.label}: published bound`, color, x: l.checkpoints, y: l.bound.values, dash: [7, 4], width: 1.2, legend: false });
+        // A bound that does not apply (scaled bonus) is drawn sparser and says so in the legend.
+        const applies = l.bound.applies !== false;
+        series.push({ label: applies ? `${l.label}: published bound` : `${l.label}: bound, does not apply (bonus scaled)`, color, x: l.checkpoints, y: l.bound.values, dash: applies ? [7, 4] : [2, 7], width: 1.2, legend: !applies });
       }
     });
     if (!episode && $('show-lower').checked) {
@@ -346,7 +348,7 @@ export class ExperimentView {
 
   caption() {
     const d = this.results.data;
-    const bounds = $('show-bounds').checked ? ' Dashed: each learner\u2019s published bound as an order (constants and log factors dropped).' : '';
+    const bounds = $('show-bounds').checked ? ' Dashed: each learner\u2019s published bound as an order (constants and log factors dropped); sparsely dashed where it does not apply because the learner\u2019s bonus is scaled.' : '';
     const lower = $('show-lower').checked ? ' Dotted: the minimax lower-bound shape.' : '';
     const bands = !$('show-bands').checked ? '' : oneSeed(d) ? ' One seed per learner: no interval can be shown.' : ' Shaded: 95% Student-t intervals across seeds.';
     return `${d.name || 'Experiment'}.${bands}${bounds}${lower}`;

@@ -311,9 +311,20 @@ impl Algorithm {
         Ok(())
     }
 
-    /// Its published regret bound at the checkpoints `ks`, if it has one.
+    /// Its published regret bound at the checkpoints `ks`, if it has one;
+    /// marked as not applying when its bonus is scaled (the theorems hold
+    /// for the published constants, scale 1, only).
     pub fn bound(&self, set: &Setting, ks: &[u64]) -> Option<Bound> {
-        self.info().bound.map(|b| b(set, ks))
+        let mut b = self.info().bound.map(|b| b(set, ks))?;
+        let scaled = self.info().param.is_some_and(|p| p.key == "bonus_scale") && self.param != 1.0;
+        if scaled {
+            b.applies = false;
+            b.note = format!(
+                "does not apply: the bonus is scaled by {} (the bound holds for the published constants, scale 1)",
+                self.param
+            );
+        }
+        Some(b)
     }
 
     /// Builds the learner, or says why it cannot run in this setting.

@@ -1,0 +1,83 @@
+//! The published bounds drawn beside the curves: each in the form that
+//! covers our learners (statistics per step, so every stationary theorem is
+//! read with S → S·H), and marked as not applying when the bonus is scaled.
+
+use burnin::learn::{Algorithm, AlgorithmKind, Setting};
+
+fn setting() -> Setting {
+    Setting {
+        states: 3,
+        actions: 2,
+        horizon: 4,
+        episodes: 1000,
+        delta: 0.05,
+    }
+}
+
+const KS: [u64; 3] = [1, 10_000, 1_000_000];
+
+fn bound(kind: AlgorithmKind, scale: f64) -> burnin::theory::Bound {
+    Algorithm::with(kind, scale)
+        .bound(&setting(), &KS)
+        .expect("a published bound")
+}
+
+/// PSRL: Osband, Russo & Van Roy (2013), Theorem 1, τ·S·√(A·T) with τ = H,
+/// T = K·H, and S → S·H: √(S²·A·H⁵·K), capped at H·K (derived by hand:
+/// S = 3, A = 2, H = 4 gives √(18 432·K)).
+#[test]
+fn psrl_bound_is_in_the_per_step_form() {
+    let b = bound(AlgorithmKind::Psrl, 1.0);
+    assert_eq!(b.values[0], 4.0, "capped at H·K for K = 1");
+    assert!((b.values[1] - (18_432.0f64 * 1e4).sqrt()).abs() < 1e-9);
+    assert!((b.values[2] - (18_432.0f64 * 1e6).sqrt()).abs() < 1e-6);
+    assert!(b.formula.contains("H⁵"), "{}", b.formula);
+    assert!(b.applies);
+}
+
+/// UCBVI-Hoeffding: Azar et al. (2017), Theorem 1, H·√(S·A·T) + H²·S²·A
+/// with S → S·H: √(S·A·H⁴·K) + S²·A·H⁴, the √K term dominating from
+/// K = S³·A·H⁴ (derived by hand: 27·2·256 = 13 824; lower term 9·2·256 = 4 608).
+#[test]
+fn ucbvi_hoeffding_terms_use_the_same_translation() {
+    let b = bound(AlgorithmKind::UcbviHoeffding, 1.0);
+    assert_eq!(b.burn_in, Some(13_824.0));
+    let k = 1e6f64;
+    let want = (3.0 * 2.0 * 256.0 * k).sqrt() + 4_608.0;
+    assert!(
+        (b.values[2] - want).abs() < 1e-6,
+        "{} vs {want}",
+        b.values[2]
+    );
+}
+
+/// A bonus scale other than 1 leaves the theorem's hypotheses: the bound
+/// is still drawn (for reference) but marked as not applying, with the
+/// reason (common practice: the theorems are proved for the stated bonus).
+#[test]
+fn a_scaled_bonus_marks_the_bound_as_not_applying() {
+    for kind in [
+        AlgorithmKind::Mvp,
+        AlgorithmKind::UcbviHoeffding,
+        AlgorithmKind::UcbviBernstein,
+        AlgorithmKind::QUcbHoeffding,
+    ] {
+        assert!(bound(kind, 1.0).applies, "{kind:?} at scale 1");
+        let b = bound(kind, 0.05);
+        assert!(!b.applies, "{kind:?} at scale 0.05");
+        assert!(b.note.contains("scaled by 0.05"), "{}", b.note);
+    }
+    // PSRL's prior is not a bonus: its bound still applies.
+    assert!(bound(AlgorithmKind::Psrl, 2.0).applies);
+}
+
+/// Results files written before `applies` existed read as applying.
+#[test]
+fn an_older_bound_without_applies_reads_as_applying() {
+    let b: burnin::theory::Bound = serde_json::from_str(
+        r#"{"source": "s", "formula": "f", "logs_dropped": "none", "burn_in": null, "values": [1.0]}"#,
+    )
+    .unwrap();
+    assert!(b.applies);
+    assert_eq!(b.note, "");
+}
