@@ -464,3 +464,95 @@ fn results_carry_paired_comparisons_with_a_verdict() {
         r.comparisons[0].verdict
     );
 }
+
+/// Burn-in is read on a fixed grid over fixed quarter-decade windows, so it
+/// does not move with the density of the checkpoints (derived by hand: for
+/// R = k up to k₀ and R = k₀·√(k/k₀) after, the window [g, g·10^¼] has slope
+/// ½ + ½·log₁₀(k₀/g)/¼ while it straddles k₀, at most 0.6 once
+/// g ≥ k₀·10^(−0.05); the first grid point 10^(j/16) past 3000·10^(−0.05) =
+/// 2673.8 is 10^(55/16) = 2738.4).
+#[test]
+fn burn_in_does_not_move_with_checkpoint_density() {
+    let curve = |k0: f64, ks: &[u64]| -> Vec<f64> {
+        ks.iter()
+            .map(|&k| {
+                let k = k as f64;
+                if k <= k0 { k } else { k0 * (k / k0).sqrt() }
+            })
+            .collect()
+    };
+    for n in [81, 161, 401, 2000] {
+        let ks = checkpoints(100_000, n);
+        assert_eq!(
+            burn_in(&ks, &curve(3000.0, &ks)),
+            Some(2738),
+            "{n} checkpoints"
+        );
+        assert_eq!(
+            burn_in(&ks, &curve(1000.0, &ks)),
+            Some(1000),
+            "{n} checkpoints"
+        );
+    }
+    // Eight per decade (the least we state): within one grid step.
+    let ks = checkpoints(100_000, 41);
+    let b = burn_in(&ks, &curve(3000.0, &ks)).unwrap() as f64;
+    // (Grid points are rounded to whole episodes, hence the 10⁻³.)
+    assert!((b / 2738.0).log10().abs() <= 1.0 / 16.0 + 1e-3, "{b}");
+}
+
+/// The bootstrap interval of the burn-in: identical seeds give an interval
+/// of zero width at the point value (every resample has the same mean curve;
+/// derived by hand); noisy seeds give an interval around it; one seed gives
+/// none; the same seed gives the same interval.
+#[test]
+fn burn_in_has_a_bootstrap_interval_over_seeds() {
+    use burnin::experiment::burn_in_interval;
+    let ks = checkpoints(100_000, 161);
+    let base: Vec<f64> = ks
+        .iter()
+        .map(|&k| {
+            let k = k as f64;
+            if k <= 1000.0 {
+                k
+            } else {
+                1000.0 * (k / 1000.0).sqrt()
+            }
+        })
+        .collect();
+    let same: Vec<&[f64]> = vec![&base; 8];
+    assert_eq!(
+        burn_in_interval(&ks, &same, 1),
+        Some((Some(1000), Some(1000)))
+    );
+    assert_eq!(burn_in_interval(&ks, &same[..1], 1), None);
+    // Seeds whose kink sits at different episodes: 600 … 1700.
+    let kinks = [600.0, 750.0, 900.0, 1000.0, 1100.0, 1300.0, 1500.0, 1700.0];
+    let runs: Vec<Vec<f64>> = kinks
+        .iter()
+        .map(|&k0| {
+            ks.iter()
+                .map(|&k| {
+                    let k = k as f64;
+                    if k <= k0 { k } else { k0 * (k / k0).sqrt() }
+                })
+                .collect()
+        })
+        .collect();
+    let refs: Vec<&[f64]> = runs.iter().map(Vec::as_slice).collect();
+    let (lo, hi) = burn_in_interval(&ks, &refs, 7).unwrap();
+    let (lo, hi) = (lo.unwrap(), hi.unwrap());
+    let mean: Vec<f64> = (0..ks.len())
+        .map(|c| runs.iter().map(|r| r[c]).sum::<f64>() / 8.0)
+        .collect();
+    let point = burn_in(&ks, &mean).unwrap();
+    assert!(
+        lo < hi && lo <= point && point <= hi,
+        "[{lo}, {hi}] around {point}"
+    );
+    assert!(
+        lo >= 500 && hi <= 1800,
+        "[{lo}, {hi}] within the kinks' range"
+    );
+    assert_eq!(burn_in_interval(&ks, &refs, 7), Some((Some(lo), Some(hi))));
+}

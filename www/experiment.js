@@ -24,6 +24,20 @@ export const DEFAULT_SETUP = {
 
 const $ = (id) => document.getElementById(id);
 
+/** The median of per-seed episode numbers, or in how many seeds none came. */
+function medianText(xs) {
+  const got = xs.filter((x) => x !== null).sort((a, b) => a - b);
+  return got.length === xs.length ? `median ${grouped(got[Math.floor(got.length / 2)])}` : `not in ${xs.length - got.length} of ${xs.length} seeds`;
+}
+
+/** Burn-in with its bootstrap interval: "1,773 [1,200, 2,400]". */
+function burnInText(l) {
+  const k = (x) => (x === null ? 'not settled' : grouped(x));
+  const iv = l.burn_in_interval;
+  if (l.burn_in === null && (!iv || (iv[0] === null && iv[1] === null))) return 'not settled';
+  return iv ? `${k(l.burn_in)} [${k(iv[0])}, ${k(iv[1])}]` : k(l.burn_in);
+}
+
 /** Whether results (or sweep results) ran one seed per learner. */
 const oneSeed = (d) => (d.format === 'burnin-sweep' ? d.points[0].seeds : d.seeds) < 2;
 
@@ -398,19 +412,19 @@ export class ExperimentView {
       }
     } else {
       const eps = d.learners[0].episodes_to_eps;
-      head.append(el('th', 'learner'), el('th', 'regret at K'), el('th', '95% interval'), el('th', 'slope'), el('th', 'burn-in'), el('th', 'model updates'),
-        ...eps.map((e) => el('th', `episodes to ε = ${short(e.epsilon)} (PAC order ${short(e.pac_order)})`)));
+      head.append(el('th', 'learner'), el('th', 'regret at K'), el('th', '95% interval'), el('th', 'slope'), el('th', 'burn-in [95% bootstrap]'), el('th', 'model updates'),
+        ...eps.map((e) => el('th', `ε = ${short(e.epsilon)}: first ε-optimal episode (PAC order ${short(e.pac_order)}, Zhang et al. 2024) · share ε-optimal · settled within ε after`)));
       for (const l of d.learners) {
         const last = l.regret_mean.length - 1;
         const updates = l.model_updates.reduce((a, b) => a + b, 0) / l.model_updates.length;
         const tr = el('tr');
         tr.append(el('th', l.label), el('td', short(l.regret_mean[last]), { 'data-value': String(l.regret_mean[last]) }), el('td', interval(d, l.regret_lo[last], l.regret_hi[last])),
-          el('td', l.slope === null ? '—' : l.slope.toFixed(3)), el('td', l.burn_in === null ? 'not reached' : grouped(l.burn_in)),
+          el('td', l.slope === null ? '—' : l.slope.toFixed(3)), el('td', burnInText(l)),
           el('td', updates.toFixed(1)));
         for (const e of l.episodes_to_eps) {
-          const got = e.episodes.filter((x) => x !== null).sort((a, b) => a - b);
-          const median = got.length === e.episodes.length ? `median ${grouped(got[Math.floor(got.length / 2)])}` : `not reached in ${e.episodes.length - got.length} of ${e.episodes.length} seeds`;
-          tr.append(el('td', median));
+          const share = (e.optimal_share || []).reduce((a, b) => a + b, 0) / Math.max(1, (e.optimal_share || []).length);
+          const first = e.first_optimal ? medianText(e.first_optimal) : '—';
+          tr.append(el('td', `${first} · ${(100 * share).toFixed(1)}% · ${medianText(e.episodes)}`));
         }
         body.append(tr);
       }

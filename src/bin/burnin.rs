@@ -668,8 +668,8 @@ fn results_table(r: &burnin::experiment::Results) -> String {
     let lw = label_width(r.learners.iter().map(|l| l.label.as_str()));
     let _ = writeln!(
         o,
-        "\n{:<lw$}  {:>12}  {:>21}  {:>6}  {:>9}  {:>10}",
-        "learner", "regret at K", "95% interval", "slope", "burn-in", "updates"
+        "\n{:<lw$}  {:>12}  {:>21}  {:>6}  {:>24}  {:>10}",
+        "learner", "regret at K", "95% interval", "slope", "burn-in [95% bootstrap]", "updates"
     );
     for l in &r.learners {
         let last = l.regret_mean.len() - 1;
@@ -681,7 +681,7 @@ fn results_table(r: &burnin::experiment::Results) -> String {
         );
         let _ = writeln!(
             o,
-            "{:<lw$}  {:>12.3}  {:>21}  {:>6}  {:>9}  {:>10.1}",
+            "{:<lw$}  {:>12.3}  {:>21}  {:>6}  {:>24}  {:>10.1}",
             l.label,
             l.regret_mean[last],
             if r.seeds < 2 {
@@ -690,14 +690,41 @@ fn results_table(r: &burnin::experiment::Results) -> String {
                 format!("[{:.3}, {:.3}]", l.regret_lo[last], l.regret_hi[last])
             },
             l.slope.map_or("—".into(), |s| format!("{s:.3}")),
-            l.burn_in.map_or("—".into(), |b| b.to_string()),
+            burn_in_text(l.burn_in, l.burn_in_interval),
             upd
         );
     }
     let _ = writeln!(
         o,
-        "\nslope: least squares of ln regret on ln k over the last decade; burn-in: first checkpoint after which the local slope stays ≤ 0.6."
+        "\nslope: least squares of ln regret on ln k over the last decade; burn-in: the first episode (on the grid 10^(j/16)) from which the log-log slope over every later quarter decade of the mean curve stays ≤ 0.6, with a bootstrap interval over seeds."
     );
+    let eps = &r.learners[0].episodes_to_eps;
+    if !eps.is_empty() {
+        let _ = writeln!(
+            o,
+            "\nε-optimal policies (expected regret ≤ ε; medians over seeds; PAC order S·A·H³/ε², Zhang et al. 2024):"
+        );
+        let _ = writeln!(
+            o,
+            "{:<lw$}  {:>8}  {:>16}  {:>12}  {:>9}  {:>22}",
+            "learner", "ε", "first ε-optimal", "PAC order", "share", "settled within ε after"
+        );
+        for l in &r.learners {
+            for e in &l.episodes_to_eps {
+                let share = burnin::stats::mean(&e.optimal_share);
+                let _ = writeln!(
+                    o,
+                    "{:<lw$}  {:>8.4}  {:>16}  {:>12.4e}  {:>8.1}%  {:>22}",
+                    l.label,
+                    e.epsilon,
+                    median_text(&e.first_optimal),
+                    e.pac_order,
+                    100.0 * share,
+                    median_text(&e.episodes)
+                );
+            }
+        }
+    }
     if !r.comparisons.is_empty() {
         let _ = writeln!(
             o,
@@ -708,6 +735,26 @@ fn results_table(r: &burnin::experiment::Results) -> String {
         }
     }
     o
+}
+
+/// A burn-in and its interval: "1773 [1200, 2400]", "— (not settled)".
+fn burn_in_text(b: Option<u64>, interval: Option<(Option<u64>, Option<u64>)>) -> String {
+    let k = |x: Option<u64>| x.map_or("not settled".to_string(), |x| x.to_string());
+    match (b, interval) {
+        (None, None | Some((None, None))) => "not settled".to_string(),
+        (b, Some((lo, hi))) => format!("{} [{}, {}]", k(b), k(lo), k(hi)),
+        (b, None) => k(b),
+    }
+}
+
+/// The median of per-seed episode numbers, or how many seeds never got there.
+fn median_text(xs: &[Option<u64>]) -> String {
+    let mut got: Vec<u64> = xs.iter().flatten().copied().collect();
+    if got.len() < xs.len() {
+        return format!("not in {} of {}", xs.len() - got.len(), xs.len());
+    }
+    got.sort_unstable();
+    got.get(got.len() / 2).map_or("—".into(), |m| m.to_string())
 }
 
 /// Peak resident memory of this process (Linux), in bytes.

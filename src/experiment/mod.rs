@@ -18,9 +18,10 @@ mod spec;
 pub use shard::{SHARD_FORMAT, SHARD_VERSION, ShardFile, merge};
 
 pub use results::{
-    Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS, RESULTS_FORMAT, RESULTS_VERSION, Results,
-    SETTLED_SLOPE, SWEEP_FORMAT, SweepLearner, SweepResults, burn_in, csv_field, parse_results,
-    summarise, tail_slope, verdict,
+    BOOTSTRAP_RESAMPLES, Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS, RESULTS_FORMAT,
+    RESULTS_VERSION, Results, SETTLED_SLOPE, SLOPE_WINDOW_DECADES, SWEEP_FORMAT, SweepLearner,
+    SweepResults, burn_in, burn_in_interval, csv_field, parse_results, summarise, tail_slope,
+    verdict,
 };
 pub use spec::{
     DEFAULT_SEEDS, EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary,
@@ -132,6 +133,13 @@ pub struct RunRecord {
     /// For each ε target: the last episode whose expected regret exceeded ε
     /// (0 if none did).
     pub last_above: Vec<u64>,
+    /// For each ε target: the first episode whose policy was ε-optimal
+    /// (expected regret ≤ ε), 0 if none was.
+    #[serde(default)]
+    pub first_within: Vec<u64>,
+    /// For each ε target: how many episodes' policies were ε-optimal.
+    #[serde(default)]
+    pub within: Vec<u64>,
     /// Visits of each (h, s), `[h·S + s]`.
     pub visits: Vec<u64>,
 }
@@ -175,6 +183,8 @@ impl Run {
             returns: Vec::with_capacity(ctx.checkpoints.len()),
             model_updates: 0,
             last_above: vec![0; ctx.exp.eps_targets.len()],
+            first_within: vec![0; ctx.exp.eps_targets.len()],
+            within: vec![0; ctx.exp.eps_targets.len()],
             visits: vec![0; m.horizon() * m.n_states()],
         };
         Run {
@@ -257,8 +267,14 @@ impl RunState {
             self.cum_regret += regret;
             self.cum_return += ret;
             for (e, &eps) in ctx.exp.eps_targets.iter().enumerate() {
+                let rec = &mut self.record;
                 if regret > eps {
-                    self.record.last_above[e] = self.done;
+                    rec.last_above[e] = self.done;
+                } else {
+                    rec.within[e] += 1;
+                    if rec.first_within[e] == 0 {
+                        rec.first_within[e] = self.done;
+                    }
                 }
             }
             if ctx.checkpoints.get(self.next_cp) == Some(&self.done) {

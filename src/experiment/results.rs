@@ -15,7 +15,16 @@ pub const RESULTS_VERSION: u64 = 1;
 /// its √K regime (burn-in; see [`burn_in`]).
 pub const SETTLED_SLOPE: f64 = 0.6;
 
-/// The empirical sample complexity for one ε.
+/// What the runs say about ε-optimal policies, for one ε.
+///
+/// A policy is ε-optimal when its expected regret V* − V^π is at most ε.
+/// The PAC-style readings are `first_optimal` (the first episode whose
+/// policy is ε-optimal: the sample complexity of finding one, the quantity
+/// the PAC order bounds — Zhang, Chen, Lee & Du, COLT 2024,
+/// arXiv:2307.13586) and `optimal_share` (the share of episodes whose policy
+/// was ε-optimal; its complement counts the ε-mistakes of Dann, Lattimore &
+/// Brunskill, "Unifying PAC and Regret", NeurIPS 2017). `episodes` is a
+/// different reading: when the learner *settled* within ε for good.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct EpsResult {
     pub epsilon: f64,
@@ -23,7 +32,13 @@ pub struct EpsResult {
     /// regret stays at or below ε (0: from the start); null when the last
     /// episode was still above ε.
     pub episodes: Vec<Option<u64>>,
-    /// S·A·H³/ε², the order of the PAC bound.
+    /// Per seed: the first episode whose policy was ε-optimal; null if none.
+    #[serde(default)]
+    pub first_optimal: Vec<Option<u64>>,
+    /// Per seed: the share of the K episodes whose policy was ε-optimal.
+    #[serde(default)]
+    pub optimal_share: Vec<f64>,
+    /// S·A·H³/ε², the order of the PAC bound on `first_optimal`.
     pub pac_order: f64,
 }
 
@@ -48,8 +63,12 @@ pub struct LearnerResult {
     /// Least-squares slope of ln(mean regret) on ln k over the last decade
     /// of checkpoints (k ≥ K/10).
     pub slope: Option<f64>,
-    /// The first checkpoint after which the local slope stays ≤ 0.6.
+    /// Burn-in of the mean curve (see [`burn_in`]).
     pub burn_in: Option<u64>,
+    /// Its 95% bootstrap interval over seeds, `[lo, hi]` (null inside: not
+    /// settled within K); null with one seed (see [`burn_in_interval`]).
+    #[serde(default)]
+    pub burn_in_interval: Option<(Option<u64>, Option<u64>)>,
     pub episodes_to_eps: Vec<EpsResult>,
     /// Mean visits of each (h, s) per run, `[h][s]`.
     pub visits: Vec<Vec<f64>>,
@@ -158,33 +177,102 @@ fn compare(labels: &[&str], runs: &[Vec<&RunRecord>], episodes: u64) -> Vec<Comp
         .collect()
 }
 
-/// The first checkpoint k_j such that every local slope
-/// (ln R_{i+1} − ln R_i)/(ln k_{i+1} − ln k_i) for i ≥ j is ≤ [`SETTLED_SLOPE`],
-/// over the checkpoints where the mean regret R is positive; None when the
-/// last segment is steeper or fewer than two such checkpoints exist.
-///
-/// Our operational definition (the papers define burn-in through their
-/// bounds, not through data).
-pub fn burn_in(ks: &[u64], regret: &[f64]) -> Option<u64> {
-    let pts: Vec<(f64, f64, u64)> = ks
-        .iter()
-        .zip(regret)
-        .filter(|(_, r)| **r > 0.0)
-        .map(|(&k, &r)| (libm::log(k as f64), libm::log(r), k))
-        .collect();
-    if pts.len() < 2 {
+/// Local slopes are measured over windows [k, k·w] with log₁₀ w = this
+/// (a quarter decade).
+pub const SLOPE_WINDOW_DECADES: f64 = 0.25;
+/// Burn-in is read on the fixed grid k = 10^(j/16), whatever the checkpoints.
+const GRID_PER_DECADE: f64 = 16.0;
+/// Resamples of the seeds for the burn-in interval (fewer when seeds ×
+/// checkpoints is large, so that the bootstrap costs at most about
+/// [`BOOTSTRAP_BUDGET`] additions; none below 20).
+pub const BOOTSTRAP_RESAMPLES: usize = 200;
+const BOOTSTRAP_BUDGET: f64 = 2e7;
+
+/// ln R at episode `k`, interpolated linearly in ln k between the
+/// checkpoints around it (None where R is not positive there).
+fn ln_regret_at(ks: &[u64], regret: &[f64], k: f64) -> Option<f64> {
+    let i = ks.partition_point(|&c| (c as f64) < k);
+    let at = |j: usize| (regret[j] > 0.0).then(|| (libm::log(ks[j] as f64), libm::log(regret[j])));
+    if i < ks.len() && ks[i] as f64 == k {
+        return at(i).map(|p| p.1);
+    }
+    if i == 0 || i >= ks.len() {
         return None;
     }
+    let ((x0, y0), (x1, y1)) = (at(i - 1)?, at(i)?);
+    let x = libm::log(k);
+    Some(y0 + (y1 - y0) * (x - x0) / (x1 - x0))
+}
+
+/// Burn-in of a cumulative regret curve: the first point k of the grid
+/// 10^(j/16) from which on every local log-log slope, measured over
+/// [k, k·10^¼] on the curve interpolated between checkpoints, is at most
+/// [`SETTLED_SLOPE`]; None when the last window is steeper or no window fits
+/// in 1..=K.
+///
+/// Our operational definition (the papers define burn-in through their
+/// bounds, not through data). Reading slopes over a fixed quarter-decade
+/// window on a fixed grid makes the value independent of how densely the
+/// checkpoints sample the curve, once they are at least about 8 per decade
+/// (the default 64 checkpoints give that up to K = 10⁸); a slope between
+/// neighbouring checkpoints, as before, swung with noise and density.
+pub fn burn_in(ks: &[u64], regret: &[f64]) -> Option<u64> {
+    let k_max = *ks.last()? as f64;
+    let window = SLOPE_WINDOW_DECADES * std::f64::consts::LN_10;
     let mut start = None;
-    for w in pts.windows(2).rev() {
-        let slope = (w[1].1 - w[0].1) / (w[1].0 - w[0].0);
-        if slope <= SETTLED_SLOPE {
-            start = Some(w[0].2);
-        } else {
-            break;
+    let grid: Vec<f64> = (0..)
+        .map(|j| libm::pow(10.0, j as f64 / GRID_PER_DECADE))
+        .take_while(|g| g * libm::exp(window) <= k_max * (1.0 + 1e-12))
+        .collect();
+    for &g in grid.iter().rev() {
+        let lo = ln_regret_at(ks, regret, g);
+        let hi = ln_regret_at(ks, regret, (g * libm::exp(window)).min(k_max));
+        match (lo, hi) {
+            (Some(a), Some(b)) if (b - a) / window <= SETTLED_SLOPE => {
+                start = Some(libm::round(g) as u64)
+            }
+            _ => break,
         }
     }
     start
+}
+
+/// A 95% percentile-bootstrap interval of the burn-in of the mean curve:
+/// the seeds resampled with replacement (Efron & Tibshirani, An
+/// Introduction to the Bootstrap, Chapman & Hall 1993, ch. 13), each
+/// resample's mean curve read by [`burn_in`]; a resample that never settles
+/// counts as later than any episode (so `hi` is None when 2.5% or more of
+/// them never settle). None with fewer than two seeds or a bootstrap too
+/// large to run. Draws come from ChaCha8 seeded with `seed`, so the interval
+/// is the same everywhere.
+pub fn burn_in_interval(
+    ks: &[u64],
+    runs: &[&[f64]],
+    seed: u64,
+) -> Option<(Option<u64>, Option<u64>)> {
+    use rand::{Rng, SeedableRng};
+    let n = runs.len();
+    let resamples =
+        BOOTSTRAP_RESAMPLES.min((BOOTSTRAP_BUDGET / (n.max(1) * ks.len().max(1)) as f64) as usize);
+    if n < 2 || resamples < 20 {
+        return None;
+    }
+    let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(seed);
+    let mut found: Vec<u64> = (0..resamples)
+        .map(|_| {
+            let mut sum = vec![0.0; ks.len()];
+            for _ in 0..n {
+                let r = runs[rng.random_range(0..n as u32) as usize];
+                sum.iter_mut().zip(r).for_each(|(s, x)| *s += x);
+            }
+            sum.iter_mut().for_each(|s| *s /= n as f64);
+            burn_in(ks, &sum).unwrap_or(u64::MAX)
+        })
+        .collect();
+    found.sort_unstable();
+    let q = |p: f64| found[((p * resamples as f64) as usize).min(resamples - 1)];
+    let some = |x: u64| (x != u64::MAX).then_some(x);
+    Some((some(q(0.025)), some(q(0.975))))
 }
 
 /// Least-squares slope over the last decade of checkpoints (k ≥ K/10) with
@@ -251,6 +339,18 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
                         .iter()
                         .map(|r| (r.last_above[e] < exp.episodes).then_some(r.last_above[e]))
                         .collect(),
+                    first_optimal: runs
+                        .iter()
+                        .map(|r| r.first_within.get(e).copied().filter(|&k| k > 0))
+                        .collect(),
+                    optimal_share: runs
+                        .iter()
+                        .map(|r| {
+                            r.within
+                                .get(e)
+                                .map_or(0.0, |&n| n as f64 / exp.episodes as f64)
+                        })
+                        .collect(),
                     pac_order: theory::pac_episodes(&set, eps),
                 })
                 .collect();
@@ -273,6 +373,11 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
                 checkpoints: ks.clone(),
                 slope: tail_slope(ks, &mean_r),
                 burn_in: burn_in(ks, &mean_r),
+                burn_in_interval: burn_in_interval(
+                    ks,
+                    &runs.iter().map(|r| r.regret.as_slice()).collect::<Vec<_>>(),
+                    super::run_seed(exp.seed, li, u64::MAX),
+                ),
                 regret_mean: mean_r,
                 regret_lo: lo,
                 regret_hi: hi,

@@ -580,6 +580,17 @@ await check('two learners are compared by a paired interval with a one-line verd
   await runAndWait(page);
   const results = JSON.parse((await downloadText(page, '#export-json')).text);
   assertEqual(results.comparisons.length, 1, 'one pair');
+  // Burn-in with its bootstrap interval, and the PAC-style ε readings beside the PAC order.
+  const heads = await page.locator('#results-table thead th').allTextContents();
+  assertEqual(heads[4], 'burn-in [95% bootstrap]', 'burn-in header');
+  assert(heads[6].includes('first ε-optimal episode (PAC order') && heads[6].includes('settled within ε after'), heads[6]);
+  const cells = await page.locator('#results-table tbody tr').first().locator('td').allTextContents();
+  const l0 = results.learners[0];
+  const k = (x) => (x === null ? 'not settled' : x.toLocaleString('en-US'));
+  const iv = l0.burn_in_interval;
+  assert(iv !== null, 'eight seeds give a bootstrap interval');
+  const want = l0.burn_in === null && iv[0] === null && iv[1] === null ? 'not settled' : `${k(l0.burn_in)} [${k(iv[0])}, ${k(iv[1])}]`;
+  assertEqual(cells[3], want, 'burn-in cell');
   const c = results.comparisons[0];
   assertEqual(await page.locator('#cmp-verdict').textContent(), c.verdict, 'the core\'s verdict is shown');
   assert(/^(eps-greedy ε=0\.1|uniform) (below|above|and) /.test(c.verdict) && c.verdict.includes('95% paired interval'), c.verdict);
