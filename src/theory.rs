@@ -43,6 +43,13 @@ pub struct Bound {
     /// Why it does not apply, when it does not.
     #[serde(default)]
     pub note: String,
+    /// MVP only: the episode by which every (h, s, a) would have the visits
+    /// after which its bonus is below H whatever the data, were visits
+    /// spread evenly over the S·A pairs of each step (S·A·n*, n* of
+    /// `learn::mvp::visits_for_bonus_below_h`): where, with the published
+    /// constants, the curve can first bend.
+    #[serde(default)]
+    pub bonus_below_h: Option<f64>,
 }
 
 fn applies_by_default() -> bool {
@@ -78,6 +85,7 @@ fn bound(source: &str, formula: &str, logs: &str, burn_in: Option<f64>, values: 
         values,
         applies: true,
         note: String::new(),
+        bonus_below_h: None,
     }
 }
 
@@ -98,15 +106,20 @@ pub fn lower_bound(set: &Setting, ks: &[u64]) -> Bound {
     )
 }
 
-/// MVP: Zhang, Chen, Lee & Du (2024), Theorem 1.
+/// MVP: Zhang, Chen, Lee & Du (2024), Theorem 1; with the point where its
+/// bonus can first fall below H marked (derived from the bonus formula of
+/// their Algorithm 1, see `src/learn/mvp.rs`).
 pub fn mvp(set: &Setting, ks: &[u64]) -> Bound {
-    bound(
+    let mut b = bound(
         "Zhang, Chen, Lee & Du, COLT 2024, arXiv:2307.13586, Theorem 1",
         "min{√(S·A·H³·K), H·K}",
         "log⁵(S·A·H·K/δ) inside the root",
         None,
         curve(set, ks, |k| minimax(set, k), |_| 0.0),
-    )
+    );
+    let n = crate::learn::mvp_visits_for_bonus_below_h(set);
+    b.bonus_below_h = Some(set.states as f64 * set.actions as f64 * n);
+    b
 }
 
 /// UCBVI with the Hoeffding bonus: Azar et al. (2017), Theorem 1, stated

@@ -81,3 +81,40 @@ fn an_older_bound_without_applies_reads_as_applying() {
     assert!(b.applies);
     assert_eq!(b.note, "");
 }
+
+/// Where MVP's published constants let go: a row's bonus (Zhang et al.
+/// 2024, Algorithm 1: c₁·√(Var·L/m) + c₂·√(σ²·L/m) + c₃·H·L/m with c₁ =
+/// 460/9, c₂ = 2√2, c₃ = 544/9) is below H whatever the data once its
+/// latest batch has m samples with b(m) < H at the largest variances.
+/// Derived by hand for S = A = H = 2, K = 10⁷, δ = 0.05: L = ln(6.4·10¹⁸) =
+/// 43.30, b(32 768) = 2.07 ≥ 2, b(65 536) = 1.43 < 2, so n* = 131 072 visits
+/// and, spread evenly over the S·A = 4 pairs of a step, K* = 524 288.
+#[test]
+fn mvp_marks_where_its_bonus_falls_below_h() {
+    let set = Setting {
+        states: 2,
+        actions: 2,
+        horizon: 2,
+        episodes: 10_000_000,
+        delta: 0.05,
+    };
+    assert!((burnin::learn::mvp_log_factor(&set) - 43.302_829_664).abs() < 1e-8);
+    assert!((burnin::learn::mvp_largest_bonus(&set, 32_768.0) - 2.069_176_338).abs() < 1e-8);
+    assert_eq!(burnin::learn::mvp_visits_for_bonus_below_h(&set), 131_072.0);
+    let b = Algorithm::new(AlgorithmKind::Mvp)
+        .bound(&set, &[1, 10])
+        .unwrap();
+    assert_eq!(b.bonus_below_h, Some(524_288.0));
+    // Not for a scaled bonus, nor for other learners.
+    assert_eq!(
+        Algorithm::with(AlgorithmKind::Mvp, 0.1)
+            .bound(&set, &[1])
+            .unwrap()
+            .bonus_below_h,
+        None
+    );
+    assert_eq!(
+        bound(AlgorithmKind::UcbviBernstein, 1.0).bonus_below_h,
+        None
+    );
+}

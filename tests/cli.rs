@@ -108,6 +108,13 @@ fn the_demo_index_lists_every_demo_model_and_opens_one() {
         .collect();
     files.sort();
     assert_eq!(listed, files);
+    // The demo experiments the page offers hold their model inline (the
+    // page reads no model_path) and read as they are.
+    for f in index["experiments"].as_array().unwrap() {
+        let text =
+            std::fs::read_to_string(dir.join("experiments").join(f.as_str().unwrap())).unwrap();
+        burnin::experiment::parse_experiment(&text, None).unwrap_or_else(|e| panic!("{f}: {e}"));
+    }
 }
 
 #[test]

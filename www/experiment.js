@@ -352,6 +352,13 @@ export class ExperimentView {
         const applies = l.bound.applies !== false;
         series.push({ label: applies ? `${l.label}: published bound` : `${l.label}: bound, does not apply (bonus scaled)`, color, x: l.checkpoints, y: l.bound.values, dash: applies ? [7, 4] : [2, 7], width: 1.2, legend: !applies });
       }
+      // Where MVP's bonus falls below H whatever the data (even visits): a vertical mark.
+      const mark = l.bound?.bonus_below_h;
+      if (!episode && mark && mark <= l.checkpoints[l.checkpoints.length - 1]) {
+        const top = Math.max(...l.regret_hi);
+        const bottom = log ? Math.max(1e-9, Math.min(...l.regret_mean.filter((y) => y > 0))) : 0;
+        series.push({ label: `${l.label}: bonus < H from K ≈ ${grouped(mark)}`, color, x: [mark, mark], y: [bottom, top], dash: [1, 3], width: 1.5 });
+      }
     });
     if (!episode && $('show-lower').checked) {
       series.push({ label: 'lower-bound shape √(SAH³K)', color: '#5d676b', x: d.learners[0].checkpoints, y: d.lower_bound.values, dash: [2, 3], width: 1.5 });

@@ -131,9 +131,11 @@ async function openModel(text, label, source, generator = null, latest = claimOp
 async function openDemo(file) {
   const latest = claimOpen();
   const resp = await fetch(`demo-models/${file}`);
-  if (!resp.ok) throw new Error(`cannot load demo model ${file} (${resp.status})`);
+  if (!resp.ok) throw new Error(`cannot load demo ${file} (${resp.status})`);
   const text = await resp.text();
   if (!latest()) return null;
+  // A demo experiment opens as any experiment file does (model and set-up).
+  if (file.startsWith('experiments/')) return openText(text, file.slice('experiments/'.length));
   return openModel(text, file, { kind: 'demo', name: file }, null, latest);
 }
 
@@ -357,6 +359,15 @@ async function start() {
     o.textContent = f.replace(/\.json$/, '').replace(/-/g, ' ');
     select.append(o);
   }
+  const group = document.createElement('optgroup');
+  group.label = 'Demo experiments';
+  for (const f of index.experiments || []) {
+    const o = document.createElement('option');
+    o.value = `experiments/${f}`;
+    o.textContent = `${f.replace(/\.json$/, '').replace(/-/g, ' ')} (experiment)`;
+    group.append(o);
+  }
+  if (group.children.length) select.append(group);
   select.value = index.default;
   select.addEventListener('change', () => openDemo(select.value).catch(fail));
   const genSpec = initGeneratorForm($('gen-kind'), $('gen-params'), CATALOGUE.generators);

@@ -698,6 +698,15 @@ fn results_table(r: &burnin::experiment::Results) -> String {
         o,
         "\nslope: least squares of ln regret on ln k over the last decade; burn-in: the first episode (on the grid 10^(j/16)) from which the log-log slope over every later quarter decade of the mean curve stays ≤ 0.6, with a bootstrap interval over seeds."
     );
+    for l in &r.learners {
+        if let Some(k) = l.bound.as_ref().and_then(|b| b.bonus_below_h) {
+            let _ = writeln!(
+                o,
+                "{}: with the published constants the bonus is below H whatever the data from about K = {k:.0} (visits spread evenly)",
+                l.label
+            );
+        }
+    }
     let eps = &r.learners[0].episodes_to_eps;
     if !eps.is_empty() {
         let _ = writeln!(

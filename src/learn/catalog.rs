@@ -319,6 +319,7 @@ impl Algorithm {
         let scaled = self.info().param.is_some_and(|p| p.key == "bonus_scale") && self.param != 1.0;
         if scaled {
             b.applies = false;
+            b.bonus_below_h = None;
             b.note = format!(
                 "does not apply: the bonus is scaled by {} (the bound holds for the published constants, scale 1)",
                 self.param

@@ -32,7 +32,10 @@ pub use catalog::{
 };
 pub use contract::{LearnRng, Learner, PolicyView, Setting};
 pub use counts::RowCounts;
-pub use mvp::{FrozenStats, Mvp};
+pub use mvp::{
+    FrozenStats, Mvp, largest_bonus as mvp_largest_bonus, log_factor as mvp_log_factor,
+    visits_for_bonus_below_h as mvp_visits_for_bonus_below_h,
+};
 pub use plan::{Plan, StaleRows, argmax_random};
 pub use psrl::Psrl;
 pub use qlearn::QUcbHoeffding;

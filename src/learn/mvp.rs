@@ -64,16 +64,10 @@ pub struct Mvp {
 
 impl Mvp {
     pub fn new(set: Setting, bonus_scale: f64) -> Mvp {
-        let (s, a, h, k) = (
-            set.states as f64,
-            set.actions as f64,
-            set.horizon as f64,
-            set.episodes as f64,
-        );
         Mvp {
             set,
             scale: bonus_scale,
-            l: libm::log(200.0 * s * a * h * h * k * k / set.delta),
+            l: log_factor(&set),
             visits: vec![0; set.rows()],
             current: vec![RowCounts::default(); set.rows()],
             frozen: vec![FrozenStats::default(); set.rows()],
@@ -95,6 +89,40 @@ impl Mvp {
     pub fn batch(&self, h: usize, s: usize, a: usize) -> &FrozenStats {
         &self.frozen[self.set.row(h, s, a)]
     }
+}
+
+/// L = ln(200·S·A·H²·K²/δ), the log factor of the bonus.
+pub fn log_factor(set: &Setting) -> f64 {
+    let (s, a, h, k) = (
+        set.states as f64,
+        set.actions as f64,
+        set.horizon as f64,
+        set.episodes as f64,
+    );
+    libm::log(200.0 * s * a * h * h * k * k / set.delta)
+}
+
+/// The largest bonus a batch of size m can carry at scale 1: the formula
+/// above with the largest variances, Var_P̂(V_{h+1}) = H²/4 (values in [0, H])
+/// and a reward variance of ¼ (rewards in [0, 1]).
+pub fn largest_bonus(set: &Setting, m: f64) -> f64 {
+    let (hh, l) = (set.horizon as f64, log_factor(set));
+    C1 * (hh * hh / 4.0 * l / m).sqrt() + C2 * (0.25 * l / m).sqrt() + C3 * hh * l / m
+}
+
+/// Visits of one (h, s, a) after which its bonus is below H whatever the
+/// data, at scale 1: 2m for the smallest batch size m = 2^i whose
+/// [`largest_bonus`] is below H (the batch frozen when the visits reach
+/// 2^(i+1) holds samples 2^i + 1 … 2^(i+1), so a batch of size m exists from
+/// 2m visits on). Until a row has that many visits its Q may be clipped at
+/// H, so MVP's plan can stay optimistic everywhere and its regret linear.
+pub fn visits_for_bonus_below_h(set: &Setting) -> f64 {
+    let hh = set.horizon as f64;
+    let mut m = 1.0f64;
+    while largest_bonus(set, m) >= hh && m < 1e18 {
+        m *= 2.0;
+    }
+    2.0 * m
 }
 
 impl Learner for Mvp {

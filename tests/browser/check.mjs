@@ -607,6 +607,17 @@ await check('two learners are compared by a paired interval with a one-line verd
   assert(tip.includes(`${c.b} − ${c.a}`), `hover read-out of the difference: ${tip}`);
 });
 
+await check('the theory-constant demo experiment opens with its model and set-up', async (page) => {
+  await openPage(page);
+  const want = await (await fetch(`${url}/demo-models/experiments/porch-lantern-theory.json`)).json();
+  await page.selectOption('#demo-select', 'experiments/porch-lantern-theory.json');
+  await shownValue(page, want.model.name);
+  assertEqual(await page.inputValue('#exp-episodes'), String(want.episodes), 'episodes');
+  assertEqual(await page.inputValue('#exp-seeds'), String(want.seeds), 'seeds');
+  const labels = await page.locator('#learner-rows input[aria-label=label]').evaluateAll((xs) => xs.map((x) => x.value));
+  assertEqual(labels.join('|'), want.learners.map((l) => l.label).join('|'), 'learners');
+});
+
 await check('a model too large for a link is refused with a message', async (page) => {
   await openPage(page);
   await page.click('#generator summary');

@@ -50,6 +50,10 @@ fn timed(cmd: &mut Command) -> Result<f64> {
     Ok(t.elapsed().as_secs_f64())
 }
 
+/// BENCHMARKS.md from this heading on is measured by hand and kept when the
+/// rest is rewritten.
+const KEPT_HEADING: &str = "## Measured by hand";
+
 /// The learners of the learning workload, in the order of the tables.
 const LEARNERS: [&str; 7] = [
     "mvp",
@@ -349,6 +353,13 @@ pub fn bench(quick: bool) -> Result<()> {
     );
     for t in targets {
         let _ = writeln!(md, "{t}");
+    }
+    // Sections measured by hand (from their own heading on) are kept.
+    let mut md = md;
+    let old = std::fs::read_to_string(root().join("BENCHMARKS.md")).unwrap_or_default();
+    if let Some(i) = old.find(KEPT_HEADING) {
+        md.push('\n');
+        md.push_str(&old[i..]);
     }
     std::fs::write(root().join("BENCHMARKS.md"), md).map_err(|e| e.to_string())?;
     eprintln!("wrote BENCHMARKS.md");

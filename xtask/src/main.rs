@@ -133,10 +133,16 @@ pub(crate) fn build_wasm() -> Result<PathBuf> {
     let demos = www.join("demo-models");
     let _ = std::fs::remove_dir_all(&demos);
     std::fs::create_dir_all(&demos).map_err(|e| e.to_string())?;
-    for e in std::fs::read_dir(root().join("demo-models")).map_err(|e| e.to_string())? {
-        let p = e.map_err(|e| e.to_string())?.path();
-        if p.extension().is_some_and(|x| x == "json") {
-            std::fs::copy(&p, demos.join(p.file_name().unwrap())).map_err(|e| e.to_string())?;
+    // The models, and the demo experiments (the page opens those that hold
+    // their model inline, listed under "experiments" in index.json).
+    for sub in ["", "experiments"] {
+        let (from, to) = (root().join("demo-models").join(sub), demos.join(sub));
+        std::fs::create_dir_all(&to).map_err(|e| e.to_string())?;
+        for e in std::fs::read_dir(&from).map_err(|e| e.to_string())? {
+            let p = e.map_err(|e| e.to_string())?.path();
+            if p.extension().is_some_and(|x| x == "json") {
+                std::fs::copy(&p, to.join(p.file_name().unwrap())).map_err(|e| e.to_string())?;
+            }
         }
     }
     Ok(www)
