@@ -618,6 +618,23 @@ await check('the theory-constant demo experiment opens with its model and set-up
   assertEqual(labels.join('|'), want.learners.map((l) => l.label).join('|'), 'learners');
 });
 
+await check('a scaled bonus\'s bound is labelled as not applying, and MVP\'s bonus-below-H point is marked', async (page) => {
+  await openPage(page);
+  await page.selectOption('#demo-select', 'experiments/porch-lantern-theory.json');
+  await shownValue(page, 'Porch lantern');
+  await page.fill('#exp-episodes', '1000000');
+  await page.fill('#exp-seeds', '2');
+  await runAndWait(page);
+  const results = JSON.parse((await downloadText(page, '#export-json')).text);
+  const [theory, scaled] = results.learners;
+  assert(theory.bound.applies && !scaled.bound.applies && scaled.bound.note.includes('scaled by 0.05'), 'applies flags');
+  assert(theory.bound.bonus_below_h > 0 && theory.bound.bonus_below_h <= 1000000, `marker inside K: ${theory.bound.bonus_below_h}`);
+  await page.check('#show-bounds');
+  const svg = (await downloadText(page, '#export-svg')).text;
+  assert(svg.includes(`${scaled.label}: bound, does not apply (bonus scaled)`), 'not-applying bound named in the legend');
+  assert(svg.includes(`${theory.label}: bonus &lt; H from K ≈`) || svg.includes(`${theory.label}: bonus < H from K ≈`), 'bonus-below-H marker named in the legend');
+});
+
 await check('a model too large for a link is refused with a message', async (page) => {
   await openPage(page);
   await page.click('#generator summary');
