@@ -109,23 +109,23 @@ fn checkpoints_are_log_spaced_and_end_at_k() {
     assert_eq!(checkpoints(3, 64), [1, 2, 3]);
 }
 
+/// R = k up to k₀, then k₀·√(k/k₀): linear, then the √K regime (derived by hand).
+fn kinked(k0: f64, ks: &[u64]) -> Vec<f64> {
+    ks.iter()
+        .map(|&k| {
+            let k = k as f64;
+            if k <= k0 { k } else { k0 * (k / k0).sqrt() }
+        })
+        .collect()
+}
+
 #[test]
 fn slope_and_burn_in_of_synthetic_curves() {
     // derived by hand: R = k until k = 1000, then R = 1000·√(k/1000); the
     // local slope is 1 before 1000 and ½ after, so burn-in is 1000 and the
     // last-decade slope ½.
     let ks = checkpoints(100_000, 41);
-    let r: Vec<f64> = ks
-        .iter()
-        .map(|&k| {
-            let k = k as f64;
-            if k <= 1000.0 {
-                k
-            } else {
-                1000.0 * (k / 1000.0).sqrt()
-            }
-        })
-        .collect();
+    let r = kinked(1000.0, &ks);
     assert_eq!(burn_in(&ks, &r), Some(1000));
     assert!((tail_slope(&ks, &r).unwrap() - 0.5).abs() < 1e-9);
     // Linear regret never burns in.
@@ -473,14 +473,7 @@ fn results_carry_paired_comparisons_with_a_verdict() {
 /// 2673.8 is 10^(55/16) = 2738.4).
 #[test]
 fn burn_in_does_not_move_with_checkpoint_density() {
-    let curve = |k0: f64, ks: &[u64]| -> Vec<f64> {
-        ks.iter()
-            .map(|&k| {
-                let k = k as f64;
-                if k <= k0 { k } else { k0 * (k / k0).sqrt() }
-            })
-            .collect()
-    };
+    let curve = kinked;
     for n in [81, 161, 401, 2000] {
         let ks = checkpoints(100_000, n);
         assert_eq!(
@@ -509,17 +502,7 @@ fn burn_in_does_not_move_with_checkpoint_density() {
 fn burn_in_has_a_bootstrap_interval_over_seeds() {
     use burnin::experiment::burn_in_interval;
     let ks = checkpoints(100_000, 161);
-    let base: Vec<f64> = ks
-        .iter()
-        .map(|&k| {
-            let k = k as f64;
-            if k <= 1000.0 {
-                k
-            } else {
-                1000.0 * (k / 1000.0).sqrt()
-            }
-        })
-        .collect();
+    let base = kinked(1000.0, &ks);
     let same: Vec<&[f64]> = vec![&base; 8];
     assert_eq!(
         burn_in_interval(&ks, &same, 1),
@@ -528,17 +511,7 @@ fn burn_in_has_a_bootstrap_interval_over_seeds() {
     assert_eq!(burn_in_interval(&ks, &same[..1], 1), None);
     // Seeds whose kink sits at different episodes: 600 … 1700.
     let kinks = [600.0, 750.0, 900.0, 1000.0, 1100.0, 1300.0, 1500.0, 1700.0];
-    let runs: Vec<Vec<f64>> = kinks
-        .iter()
-        .map(|&k0| {
-            ks.iter()
-                .map(|&k| {
-                    let k = k as f64;
-                    if k <= k0 { k } else { k0 * (k / k0).sqrt() }
-                })
-                .collect()
-        })
-        .collect();
+    let runs: Vec<Vec<f64>> = kinks.iter().map(|&k0| kinked(k0, &ks)).collect();
     let refs: Vec<&[f64]> = runs.iter().map(Vec::as_slice).collect();
     let (lo, hi) = burn_in_interval(&ks, &refs, 7).unwrap();
     let (lo, hi) = (lo.unwrap(), hi.unwrap());
