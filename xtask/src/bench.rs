@@ -355,7 +355,6 @@ pub fn bench(quick: bool) -> Result<()> {
         let _ = writeln!(md, "{t}");
     }
     // Sections measured by hand (from their own heading on) are kept.
-    let mut md = md;
     let old = std::fs::read_to_string(root().join("BENCHMARKS.md")).unwrap_or_default();
     if let Some(i) = old.find(KEPT_HEADING) {
         md.push('\n');
