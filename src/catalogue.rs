@@ -22,16 +22,10 @@ pub struct Catalogue {
 
 /// The catalogue of this build.
 pub fn catalogue() -> Catalogue {
-    let mut sweep_keys = vec!["delta"];
-    for p in ALGORITHMS.iter().filter_map(|a| a.param) {
-        if !sweep_keys.contains(&p.key) {
-            sweep_keys.push(p.key);
-        }
-    }
     Catalogue {
         algorithms: ALGORITHMS,
         generators: GENERATORS,
         max_file_bytes: crate::model::limits::MAX_FILE_BYTES,
-        sweep_keys,
+        sweep_keys: crate::experiment::experiment_sweep_keys(),
     }
 }

@@ -76,7 +76,8 @@ impl SolvedModel {
     }
 }
 
-/// Solves a model file's text: the summary plus `optimal_value`, `v`
+/// Solves a model file's text: the summary plus `canonical` (the model's
+/// text in the canonical layout, every field explicit), `optimal_value`, `v`
 /// (Float64Array, H·S, row-major [h][s]), `policy` (Uint32Array, H·S) and
 /// `solved` (a [`SolvedModel`] holding Q*); or the problems. The gap of
 /// (h, s, a) is max(0, v − q); the page derives it for the step it shows.
@@ -100,16 +101,10 @@ pub fn solve_model(text: &str) -> JsValue {
         Uint32Array::from(sol.policy.as_slice().expect("contiguous")),
     );
     set(&obj, "solved", SolvedModel { q: sol.q });
+    // The canonical text the editor and the graph work on, from the same
+    // parse (a second call would read the file again).
+    set(&obj, "canonical", crate::write_model(&m));
     obj.into()
-}
-
-/// The canonical text of a model file (what saving writes).
-#[wasm_bindgen(js_name = formatModel)]
-pub fn format_model(text: &str) -> JsValue {
-    match crate::parse_model(text) {
-        Ok(m) => JsValue::from_str(&crate::write_model(&m)),
-        Err(p) => problems_value(&p),
-    }
 }
 
 /// An experiment being run in the worker: every run of every sweep point,

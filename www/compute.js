@@ -81,9 +81,6 @@ export const catalogue = () => quick.request('catalogue', {}).promise;
 /** What a file is, read by the core: {ok, kind: 'model' | 'experiment' | 'results', …} or problems. */
 export const readDocument = (text) => quick.request('read-document', { text }).promise;
 
-/** A model file's text in the canonical layout (every field explicit, as the core reads it), or problems. */
-export const canonical = (text) => quick.request('format', { text }).promise;
-
 /** The model's text with its graph layout replaced (positions: [[x, y], …]), or problems. */
 export const withLayout = (text, positions) => quick.request('with-layout', { text, positions: new Float64Array(positions.flat()) }).promise;
 

@@ -1,6 +1,6 @@
 // The page: chooses a model, asks the worker to solve it, and wires the
 // views, files, share links and the library together.
-import { solve, qStep, generate, warmPool, onWorkerRestart, catalogue, readDocument, canonical, withLayout } from './compute.js';
+import { solve, qStep, generate, warmPool, onWorkerRestart, catalogue, readDocument, withLayout } from './compute.js';
 import { renderFacts, renderProblems, renderOptimal, renderValues, renderQ } from './views.js';
 import { ExperimentView, DEFAULT_SETUP } from './experiment.js';
 import { initGeneratorForm } from './generator-form.js';
@@ -118,10 +118,8 @@ async function openModel(text, label, source, generator = null, latest = claimOp
     setStatus(current ? `Still showing “${current.name}”.` : 'No model open.');
     return false;
   }
-  const canon = await canonical(text);
-  if (!latest()) return null;
   const changed = !current || current.text !== text;
-  show(result, text, JSON.parse(canon), source, generator);
+  show(result, text, JSON.parse(result.canonical), source, generator);
   if (changed) experiment.clearResults();
   setStatus(`Solved ${label} by backward induction in ${Math.max(1, Math.round(performance.now() - t0))} ms.`);
   saveWork();

@@ -1,6 +1,6 @@
 // The compute worker: owns the wasm core; never touches the DOM.
 // Requests {type, id, ...}:
-//   solve {text}       → done {result}            (a model file's solution, without Q*, or problems)
+//   solve {text}       → done {result}            (a model file's solution and canonical text, without Q*, or problems)
 //   q-step {h}         → done {result: Float64Array}  (Q* of step h of the last model solved)
 //   check {text}       → done {result}            (a model's summary or problems)
 //   check-experiment {text} → done {result}       ({ok: true} or problems)
@@ -8,12 +8,11 @@
 //   run {text, shard, of} → progress {done, total}…, then done {result: shard file text},
 //                        or error {problems} for a bad experiment
 //   merge {shards}     → done {result: {json, csv}} or problems
-//   format {text}      → done {result}            (the model's canonical text, or problems)
 //   catalogue          → done {result}            (algorithms, generators, limits: src/catalogue.rs)
 //   read-document {text} → done {result}          (what a file is, read by the core)
 //   with-layout {text, positions} → done {result} (the model's text with a new layout, or problems)
 //   cancel {id}        → the run with that id stops and answers cancelled
-import init, { solveModel, formatModel, checkModel, checkExperiment, generateModel, mergeShards, catalogue, readDocument, withLayout, ExperimentRun } from './pkg/burnin.js';
+import init, { solveModel, checkModel, checkExperiment, generateModel, mergeShards, catalogue, readDocument, withLayout, ExperimentRun } from './pkg/burnin.js';
 
 const ready = init();
 const cancelled = new Set();
@@ -82,8 +81,6 @@ self.onmessage = async (event) => {
       self.postMessage({ type: 'done', id, result: generateModel(event.data.spec) });
     } else if (type === 'run') {
       await run(id, event.data.text, event.data.shard, event.data.of);
-    } else if (type === 'format') {
-      self.postMessage({ type: 'done', id, result: formatModel(event.data.text) });
     } else if (type === 'catalogue') {
       self.postMessage({ type: 'done', id, result: catalogue() });
     } else if (type === 'read-document') {

@@ -26,7 +26,7 @@ pub use results::{
 pub use spec::{
     DEFAULT_SEEDS, EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary,
     LearnerSpec, LearnerSummary, ModelLoader, Sweep, SweepParameter, check_learnable,
-    parse_experiment,
+    experiment_sweep_keys, parse_experiment,
 };
 
 use std::sync::Arc;

@@ -219,14 +219,15 @@ fn ln_regret_at(ks: &[u64], regret: &[f64], k: f64) -> Option<f64> {
 pub fn burn_in(ks: &[u64], regret: &[f64]) -> Option<u64> {
     let k_max = *ks.last()? as f64;
     let window = SLOPE_WINDOW_DECADES * std::f64::consts::LN_10;
+    let width = libm::exp(window);
     let mut start = None;
     let grid: Vec<f64> = (0..)
         .map(|j| libm::pow(10.0, j as f64 / GRID_PER_DECADE))
-        .take_while(|g| g * libm::exp(window) <= k_max * (1.0 + 1e-12))
+        .take_while(|g| g * width <= k_max * (1.0 + 1e-12))
         .collect();
     for &g in grid.iter().rev() {
         let lo = ln_regret_at(ks, regret, g);
-        let hi = ln_regret_at(ks, regret, (g * libm::exp(window)).min(k_max));
+        let hi = ln_regret_at(ks, regret, (g * width).min(k_max));
         match (lo, hi) {
             (Some(a), Some(b)) if (b - a) / window <= SETTLED_SLOPE => {
                 start = Some(libm::round(g) as u64)

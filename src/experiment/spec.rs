@@ -75,15 +75,25 @@ fn learner_param(key: &str) -> Option<&'static ParamInfo> {
         .find(|p| p.key == key)
 }
 
+/// The sweep keys that need no generator: `delta`, then each learner
+/// parameter's key once, in catalogue order.
+pub fn experiment_sweep_keys() -> Vec<&'static str> {
+    let mut keys = vec!["delta"];
+    for p in learn::ALGORITHMS.iter().filter_map(|a| a.param) {
+        if !keys.contains(&p.key) {
+            keys.push(p.key);
+        }
+    }
+    keys
+}
+
 /// Every sweepable key: delta, the learner parameters, and the numeric
 /// parameters of `generator` (of any generator when None).
 fn sweep_keys(generator: Option<&GeneratorSpec>) -> String {
-    let mut keys: Vec<String> = vec!["delta".into()];
-    for p in learn::ALGORITHMS.iter().filter_map(|a| a.param) {
-        if !keys.iter().any(|k| k == p.key) {
-            keys.push(p.key.into());
-        }
-    }
+    let mut keys: Vec<String> = experiment_sweep_keys()
+        .into_iter()
+        .map(String::from)
+        .collect();
     let infos: Vec<&GeneratorInfo> = match generator {
         Some(g) => vec![g.info()],
         None => GENERATORS.iter().collect(),

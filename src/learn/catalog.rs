@@ -316,7 +316,8 @@ impl Algorithm {
     /// for the published constants, scale 1, only).
     pub fn bound(&self, set: &Setting, ks: &[u64]) -> Option<Bound> {
         let mut b = self.info().bound.map(|b| b(set, ks))?;
-        let scaled = self.info().param.is_some_and(|p| p.key == "bonus_scale") && self.param != 1.0;
+        let scaled =
+            self.info().param.is_some_and(|p| std::ptr::eq(p, &BONUS)) && self.param != 1.0;
         if scaled {
             b.applies = false;
             b.bonus_below_h = None;
