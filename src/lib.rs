@@ -3,7 +3,7 @@
 //! catalogue (`learn`), regret experiments with exact expected regret, their
 //! summaries and shards (`experiment`), statistics and published bounds
 //! (`stats`, `theory`), the file-format plumbing (`format`) and the reference
-//! benchmarks (`bench`). The CLI (`src/bin/burnin.rs`) and the wasm bindings
+//! benchmarks (`bench`). The CLI (`src/bin/burnin/main.rs`) and the wasm bindings
 //! (`wasm`, for the page) are front ends over it.
 //!
 //! **Invariant:** nothing in the core touches JS types, the file system, the

@@ -314,6 +314,22 @@ impl Evaluator {
         }
     }
 
+    /// V^π of any Markov policy, `probs[(h·S + s)·A + a]` = π_h(a|s); an
+    /// action of probability 0 is skipped.
+    pub fn table(&mut self, m: &Mdp, probs: &[f64]) -> f64 {
+        let (s_n, a_n) = (m.n_states(), m.n_actions());
+        self.backward(m, |h, s, q| {
+            let row = &probs[(h * s_n + s) * a_n..][..a_n];
+            let mut acc = 0.0;
+            for (a, &p) in row.iter().enumerate() {
+                if p != 0.0 {
+                    acc += p * q.of(a);
+                }
+            }
+            acc
+        })
+    }
+
     /// V^π of a deterministic policy: one sparse row per (h, s).
     fn deterministic(&mut self, m: &Mdp, g: &[u32]) -> f64 {
         let s_n = m.n_states();

@@ -169,8 +169,11 @@ fn a_sweep_expands_into_one_experiment_per_value() {
     .unwrap();
     let p = e.points();
     assert_eq!(
-        p[1].learners[1].algorithm,
-        burnin::learn::Algorithm::with(burnin::learn::AlgorithmKind::EpsGreedy, 0.5)
+        p[1].learners[1].builtin(),
+        Some(&burnin::learn::Algorithm::with(
+            burnin::learn::AlgorithmKind::EpsGreedy,
+            0.5
+        ))
     );
     // Learners without the parameter are untouched.
     assert_eq!(p[1].learners[0], e.learners[0]);

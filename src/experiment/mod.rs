@@ -25,15 +25,15 @@ pub use results::{
 };
 pub use spec::{
     DEFAULT_SEEDS, EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary,
-    LearnerSpec, LearnerSummary, ModelLoader, Sweep, SweepParameter, check_learnable,
-    experiment_sweep_keys, parse_experiment,
+    LearnerSpec, LearnerSummary, MAX_GUEST_NAME, ModelLoader, Source, Sweep, SweepParameter,
+    check_learnable, experiment_sweep_keys, parse_experiment, valid_guest_name,
 };
 
 use std::sync::Arc;
 
 use rand::SeedableRng;
 
-use crate::learn::{AnyLearner, LearnRng, Learner, PolicyView};
+use crate::learn::{AnyLearner, GuestIntro, GuestLearner, Guests, LearnRng, Learner, PolicyView};
 use crate::sample::{self, Sampler};
 use crate::solve::{Evaluator, solve};
 
@@ -86,24 +86,51 @@ pub fn checkpoints(k: u64, n: u64) -> Vec<u64> {
 
 /// One point of an experiment (the whole experiment, or one value of its
 /// sweep): what all its runs share.
-#[derive(Debug)]
 pub struct Point {
     pub exp: Experiment,
     pub sampler: Sampler,
     /// V*₁(ρ).
     pub optimal_value: f64,
     pub checkpoints: Vec<u64>,
+    /// Starts the experiment's guest learners (None: it has none, or they
+    /// cannot run here).
+    pub guests: Option<Guests>,
+}
+
+impl std::fmt::Debug for Point {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Point")
+            .field("exp", &self.exp)
+            .field("optimal_value", &self.optimal_value)
+            .field("checkpoints", &self.checkpoints)
+            .field("guests", &self.guests.is_some())
+            .finish_non_exhaustive()
+    }
 }
 
 impl Point {
     pub fn new(exp: Experiment) -> Arc<Point> {
+        Self::with_guests(exp, None)
+    }
+
+    /// A point whose guest learners `guests` starts.
+    pub fn with_guests(exp: Experiment, guests: Option<Guests>) -> Arc<Point> {
         let optimal_value = solve(&exp.model).optimal_value;
         Arc::new(Point {
             sampler: Sampler::new(&exp.model),
             checkpoints: checkpoints(exp.episodes, exp.checkpoints),
             optimal_value,
             exp,
+            guests,
         })
+    }
+
+    /// Every point of `exp` (one per sweep value).
+    pub fn all(exp: &Experiment, guests: Option<&Guests>) -> Vec<Arc<Point>> {
+        exp.points()
+            .into_iter()
+            .map(|e| Point::with_guests(e, guests.cloned()))
+            .collect()
     }
 
     /// Number of runs: learners × seeds, numbered learner-major.
@@ -144,6 +171,28 @@ pub struct RunRecord {
     pub visits: Vec<u64>,
 }
 
+/// Why a run stopped early: its guest learner failed.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct RunFault {
+    /// The learner's index in the experiment and its label.
+    pub learner: usize,
+    pub label: String,
+    pub seed_index: u64,
+    /// The episode the learner was to decide for (1-based).
+    pub episode: u64,
+    pub message: String,
+}
+
+impl std::fmt::Display for RunFault {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "learner {:?}, seed {}, episode {}: {}",
+            self.label, self.seed_index, self.episode, self.message
+        )
+    }
+}
+
 /// One (learner, seed) run in progress.
 pub struct Run {
     learner: AnyLearner,
@@ -169,11 +218,25 @@ impl Run {
         let seeds = ctx.exp.seeds as usize;
         let (li, si) = (index / seeds, (index % seeds) as u64);
         let seed = run_seed(ctx.exp.seed, li, si);
-        let learner = ctx.exp.learners[li]
-            .algorithm
-            .build(&ctx.exp.setting())
-            .expect("learners were checked against the model when the experiment was read");
+        let spec = &ctx.exp.learners[li];
         let m = &ctx.exp.model;
+        let learner = match &spec.source {
+            Source::Builtin(a) => a
+                .build(&ctx.exp.setting())
+                .expect("learners were checked against the model when the experiment was read"),
+            Source::Guest(name) => {
+                let intro = GuestIntro {
+                    setting: ctx.exp.setting(),
+                    seed,
+                    state_labels: m.states().to_vec(),
+                    action_labels: m.actions().to_vec(),
+                    label: spec.label.clone(),
+                    seed_index: si,
+                };
+                let host = ctx.guests.clone().unwrap_or_else(|| Arc::new(NoGuests));
+                AnyLearner::Guest(Box::new(GuestLearner::new(name, host, intro)))
+            }
+        };
         let record = RunRecord {
             learner: li,
             seed_index: si,
@@ -208,10 +271,16 @@ impl Run {
         self.state.done
     }
 
-    /// Runs up to `max` more episodes; true when the run is complete.
-    pub fn advance(&mut self, max: u64) -> bool {
+    /// Runs up to `max` more episodes; true when the run is complete. A
+    /// guest learner's failure stops the run for good.
+    pub fn advance(&mut self, max: u64) -> Result<bool, RunFault> {
         let state = &mut self.state;
         crate::learn::with_learner!(&mut self.learner, l => state.advance(l, max))
+    }
+
+    /// Which learner (index in the experiment) and seed index this run is.
+    pub fn identity(&self) -> (usize, u64) {
+        (self.state.record.learner, self.state.record.seed_index)
     }
 
     /// The record of the finished run.
@@ -225,7 +294,7 @@ impl Run {
 
 impl RunState {
     /// [`Run::advance`] for one kind of learner (compiled once per kind).
-    fn advance<L: Learner>(&mut self, learner: &mut L, max: u64) -> bool {
+    fn advance<L: Learner>(&mut self, learner: &mut L, max: u64) -> Result<bool, RunFault> {
         let ctx = Arc::clone(&self.ctx);
         let m = &ctx.exp.model;
         let (h_n, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
@@ -233,6 +302,16 @@ impl RunState {
         let end = (self.done + max).min(k_total);
         while self.done < end {
             learner.begin_episode(&mut self.rng);
+            if let Some(message) = learner.fault() {
+                let li = self.record.learner;
+                return Err(RunFault {
+                    learner: li,
+                    label: ctx.exp.learners[li].label.clone(),
+                    seed_index: self.record.seed_index,
+                    episode: self.done + 1,
+                    message,
+                });
+            }
             let version = learner.policy_version();
             let regret = match self.cached {
                 Some((v, r)) if v == version => r,
@@ -243,6 +322,7 @@ impl RunState {
                             self.eval.value(m, Some(greedy), epsilon)
                         }
                         PolicyView::Uniform => self.eval.value(m, None, 0.0),
+                        PolicyView::Table(p) => self.eval.table(m, p),
                     };
                     let r = episode_regret(ctx.optimal_value, value);
                     self.cached = Some((version, r));
@@ -284,18 +364,34 @@ impl RunState {
                 self.next_cp += 1;
             }
         }
-        self.done == k_total
+        Ok(self.done == k_total)
+    }
+}
+
+/// The host of a point built without one: every guest fails to start.
+struct NoGuests;
+
+impl crate::learn::GuestHost for NoGuests {
+    fn start(&self, name: &str, _: &GuestIntro) -> Result<Box<dyn crate::learn::Guest>, String> {
+        Err(format!(
+            "no guest learner {name:?} was given to this run (load it, or name its command)"
+        ))
     }
 }
 
 /// Runs every run one after another (the CLI runs them on threads; the
 /// results are the same).
 pub fn run_all(ctx: &Arc<Point>) -> Vec<RunRecord> {
+    try_run_all(ctx).expect("built-in learners never fail")
+}
+
+/// [`run_all`], stopping at the first guest learner's failure.
+pub fn try_run_all(ctx: &Arc<Point>) -> Result<Vec<RunRecord>, RunFault> {
     (0..ctx.runs())
         .map(|i| {
             let mut r = Run::new(Arc::clone(ctx), i);
-            r.advance(u64::MAX);
-            r.finish()
+            r.advance(u64::MAX)?;
+            Ok(r.finish())
         })
         .collect()
 }
@@ -324,19 +420,62 @@ impl Output {
 
 /// Summarises the records of every point (records\[p\] for points\[p\]).
 pub fn assemble(exp: &Experiment, points: &[Arc<Point>], records: Vec<Vec<RunRecord>>) -> Output {
+    assemble_without(exp, points, records, Vec::new())
+}
+
+/// [`assemble`] without the learners named in `faults` (their records are
+/// dropped, the others renumbered); the faults are listed in the output.
+pub fn assemble_without(
+    exp: &Experiment,
+    points: &[Arc<Point>],
+    mut records: Vec<Vec<RunRecord>>,
+    mut faults: Vec<RunFault>,
+) -> Output {
+    faults.sort_by_key(|f| (f.learner, f.seed_index));
+    let failed: Vec<usize> = {
+        let mut v: Vec<usize> = faults.iter().map(|f| f.learner).collect();
+        v.dedup();
+        v
+    };
+    let mut owned: Vec<Arc<Point>>;
+    let points = if failed.is_empty() {
+        points
+    } else {
+        let keep = |li: usize| !failed.contains(&li);
+        let renumber = |li: usize| li - failed.iter().filter(|&&f| f < li).count();
+        for rs in &mut records {
+            rs.retain(|r| keep(r.learner));
+            for r in rs.iter_mut() {
+                r.learner = renumber(r.learner);
+            }
+        }
+        owned = Vec::with_capacity(points.len());
+        for p in points {
+            let mut e = p.exp.clone();
+            e.learners = (0..e.learners.len())
+                .filter(|&li| keep(li))
+                .map(|li| e.learners[li].clone())
+                .collect();
+            owned.push(Point::with_guests(e, None));
+        }
+        &owned[..]
+    };
     let mut summaries: Vec<Results> = points
         .iter()
         .zip(records)
         .map(|(c, r)| summarise(c, r))
         .collect();
     match &exp.sweep {
-        None => Output::Single(summaries.remove(0)),
-        Some(s) => Output::Sweep(SweepResults::new(
-            &exp.name,
-            &s.parameter.key(),
-            &s.values,
-            summaries,
-        )),
+        None => {
+            let mut r = summaries.remove(0);
+            r.failed = faults;
+            Output::Single(r)
+        }
+        Some(s) => {
+            let mut r = SweepResults::new(&exp.name, &s.parameter.key(), &s.values, summaries);
+            r.failed = faults;
+            Output::Sweep(r)
+        }
     }
 }
 
@@ -350,6 +489,8 @@ pub struct RunQueue {
     next: usize,
     current: Option<(usize, Run)>,
     records: Vec<Vec<RunRecord>>,
+    /// Guest learners' failures; a failed learner's other runs are skipped.
+    faults: Vec<RunFault>,
     done: u64,
     total: u64,
 }
@@ -380,11 +521,22 @@ impl RunQueue {
 
     /// Only shard `index` (0-based) of `count` of the runs.
     pub fn shard(exp: Experiment, index: usize, count: usize) -> RunQueue {
-        let points: Vec<Arc<Point>> = exp.points().into_iter().map(Point::new).collect();
+        Self::shard_with_guests(exp, index, count, None)
+    }
+
+    /// A shard whose guest learners `guests` starts.
+    pub fn shard_with_guests(
+        exp: Experiment,
+        index: usize,
+        count: usize,
+        guests: Option<Guests>,
+    ) -> RunQueue {
+        let points = Point::all(&exp, guests.as_ref());
         let jobs = shard_jobs(&points, index, count);
         let total = jobs.iter().map(|&(p, _)| points[p].exp.episodes).sum();
         RunQueue {
             records: vec![Vec::new(); points.len()],
+            faults: Vec::new(),
             exp,
             points,
             jobs,
@@ -403,14 +555,29 @@ impl RunQueue {
                     return true;
                 };
                 self.next += 1;
+                let seeds = self.points[p].exp.seeds as usize;
+                if self.faults.iter().any(|f| f.learner == i / seeds) {
+                    self.done += self.points[p].exp.episodes;
+                    continue;
+                }
                 self.current = Some((p, Run::new(Arc::clone(&self.points[p]), i)));
             }
             let (p, run) = self.current.as_mut().expect("set above");
             let before = run.episodes_done();
-            let finished = run.advance(max);
+            let result = run.advance(max);
             let step = run.episodes_done() - before;
             self.done += step;
             max -= step.min(max);
+            let finished = match result {
+                Ok(f) => f,
+                Err(fault) => {
+                    // The rest of this run counts as done: progress stays honest.
+                    self.done += self.points[*p].exp.episodes - run.episodes_done();
+                    self.faults.push(fault);
+                    self.current = None;
+                    continue;
+                }
+            };
             if finished {
                 let (p, run) = (*p, self.current.take().expect("set above").1);
                 self.records[p].push(run.finish());
@@ -435,10 +602,29 @@ impl RunQueue {
         &self.exp
     }
 
-    /// The results (once [`RunQueue::is_done`], and for an unsharded batch).
+    /// The results (once [`RunQueue::is_done`], and for an unsharded
+    /// batch), without the learners that failed.
     pub fn output(&self) -> Output {
         assert!(self.is_done(), "every run has finished");
-        assemble(&self.exp, &self.points, self.records.clone())
+        assemble_without(
+            &self.exp,
+            &self.points,
+            self.records.clone(),
+            self.faults.clone(),
+        )
+    }
+
+    /// The guest learners' failures so far.
+    pub fn faults(&self) -> &[RunFault] {
+        &self.faults
+    }
+
+    /// The run in progress: (learner index, seed index, episodes done).
+    pub fn current(&self) -> Option<(usize, u64, u64)> {
+        self.current.as_ref().map(|(_, r)| {
+            let (l, s) = r.identity();
+            (l, s, r.episodes_done())
+        })
     }
 
     /// The finished runs as (point, record) pairs, for a shard file.

@@ -46,7 +46,11 @@ pub struct EpsResult {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct LearnerResult {
     pub label: String,
+    /// The algorithm's key, or `"guest"` for a guest learner.
     pub algorithm: String,
+    /// A guest learner's name.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub guest: Option<String>,
     pub checkpoints: Vec<u64>,
     /// Mean cumulative expected regret across seeds at each checkpoint.
     pub regret_mean: Vec<f64>,
@@ -98,6 +102,9 @@ pub struct Results {
     /// written before they were added.
     #[serde(default)]
     pub comparisons: Vec<Comparison>,
+    /// Guest learners that failed, left out of `learners`.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub failed: Vec<super::RunFault>,
 }
 
 /// With at most this many learners every pair is compared; with more, each
@@ -370,7 +377,8 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
                 .collect();
             LearnerResult {
                 label: spec.label.clone(),
-                algorithm: spec.algorithm.key().to_owned(),
+                algorithm: spec.kind_key().to_owned(),
+                guest: spec.guest().map(str::to_owned),
                 checkpoints: ks.clone(),
                 slope: tail_slope(ks, &mean_r),
                 burn_in: burn_in(ks, &mean_r),
@@ -389,7 +397,7 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
                 run_seeds: runs.iter().map(|r| r.seed).collect(),
                 episodes_to_eps,
                 visits,
-                bound: spec.algorithm.bound(&set, ks),
+                bound: spec.builtin().and_then(|a| a.bound(&set, ks)),
             }
         })
         .collect();
@@ -409,6 +417,7 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
         lower_bound: theory::lower_bound(&set, ks),
         comparisons: compare(&labels, &by_learner, exp.episodes),
         learners,
+        failed: Vec::new(),
     }
 }
 
@@ -474,6 +483,9 @@ pub struct SweepResults {
     pub values: Vec<f64>,
     pub learners: Vec<SweepLearner>,
     pub points: Vec<Results>,
+    /// Guest learners that failed, left out of `learners`.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub failed: Vec<super::RunFault>,
 }
 
 impl SweepResults {
@@ -506,6 +518,7 @@ impl SweepResults {
             values: values.to_vec(),
             learners,
             points,
+            failed: Vec::new(),
         }
     }
 

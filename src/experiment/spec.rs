@@ -26,11 +26,65 @@ pub const MAX_CHECKPOINTS: u64 = 2_000;
 /// Largest seed (seeds travel as JSON numbers, exact up to 2^53).
 pub const MAX_SEED: u64 = 1 << 53;
 
-/// One learner of an experiment: its algorithm and a unique label.
+/// One learner of an experiment: what it runs and a unique label.
 #[derive(Debug, Clone, PartialEq)]
 pub struct LearnerSpec {
     pub label: String,
-    pub algorithm: Algorithm,
+    pub source: Source,
+}
+
+/// What a learner of an experiment runs.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Source {
+    /// A built-in algorithm of the catalogue.
+    Builtin(Algorithm),
+    /// A guest learner (`learn::guest`) by the name a front end knows it by:
+    /// a file names a guest, never a command or code.
+    Guest(String),
+}
+
+/// Longest guest name.
+pub const MAX_GUEST_NAME: usize = 64;
+
+/// Whether `name` can name a guest learner: 1 … 64 of A–Z, a–z, 0–9, `_`,
+/// `-`, `.` (so it survives a command line's `NAME=CMD` unquoted).
+pub fn valid_guest_name(name: &str) -> bool {
+    !name.is_empty()
+        && name.len() <= MAX_GUEST_NAME
+        && name
+            .bytes()
+            .all(|b| b.is_ascii_alphanumeric() || matches!(b, b'_' | b'-' | b'.'))
+}
+
+impl LearnerSpec {
+    /// The built-in algorithm, if it is one.
+    pub fn builtin(&self) -> Option<&Algorithm> {
+        match &self.source {
+            Source::Builtin(a) => Some(a),
+            Source::Guest(_) => None,
+        }
+    }
+
+    /// The guest's name, if it is one.
+    pub fn guest(&self) -> Option<&str> {
+        match &self.source {
+            Source::Builtin(_) => None,
+            Source::Guest(g) => Some(g),
+        }
+    }
+
+    /// The key results and tables show: the algorithm's, or `"guest"`.
+    pub fn kind_key(&self) -> &'static str {
+        self.builtin().map_or("guest", Algorithm::key)
+    }
+
+    /// The label a learner gets when its file gives none.
+    pub fn default_label(&self) -> String {
+        match &self.source {
+            Source::Builtin(a) => a.default_label(),
+            Source::Guest(g) => g.clone(),
+        }
+    }
 }
 
 /// What a sweep varies.
@@ -169,9 +223,12 @@ pub struct LearnerSummary {
     pub label: String,
     /// Whether the label is the algorithm's default one.
     pub default_label: bool,
+    /// The algorithm's key, or `"guest"`.
     pub algorithm: &'static str,
     /// The parameter's value, for an algorithm that takes one.
     pub param: Option<f64>,
+    /// A guest learner's name.
+    pub guest: Option<String>,
 }
 
 impl Experiment {
@@ -199,10 +256,11 @@ impl Experiment {
                 .learners
                 .iter()
                 .map(|l| LearnerSummary {
-                    default_label: l.label == l.algorithm.default_label(),
+                    default_label: l.label == l.default_label(),
                     label: l.label.clone(),
-                    algorithm: l.algorithm.key(),
-                    param: l.algorithm.info().param.map(|_| l.algorithm.param),
+                    algorithm: l.kind_key(),
+                    param: l.builtin().and_then(|a| a.info().param.map(|_| a.param)),
+                    guest: l.guest().map(str::to_owned),
                 })
                 .collect(),
             sweep: self
@@ -248,6 +306,7 @@ lax_object! {
 lax_object! {
     struct RawLearner {
         algorithm: Lax<String>,
+        guest: Lax<String>,
         label: Lax<String>,
         bonus_scale: Lax<f64>,
         epsilon: Lax<f64>,
@@ -339,6 +398,20 @@ fn number(
 
 fn learner(r: &mut Reader, path: &str, raw: RawLearner) -> Option<LearnerSpec> {
     raw.fields.finish(path, RawLearner::FIELDS, r.problems);
+    if let Some(g) = raw.guest {
+        return guest_learner(
+            r,
+            path,
+            raw.algorithm.is_some(),
+            g,
+            raw.label,
+            &[
+                ("bonus_scale", raw.bonus_scale.is_some()),
+                ("epsilon", raw.epsilon.is_some()),
+                ("prior", raw.prior.is_some()),
+            ],
+        );
+    }
     let key = r.require(
         &format!("{path}.algorithm"),
         raw.algorithm,
@@ -381,9 +454,64 @@ fn learner(r: &mut Reader, path: &str, raw: RawLearner) -> Option<LearnerSpec> {
         }
         algorithm.param = x;
     }
-    let label = match raw.label {
+    let source = Source::Builtin(algorithm);
+    let label = learner_label(r, path, raw.label, &source)?;
+    Some(LearnerSpec { label, source })
+}
+
+/// A learner `{"guest": NAME}`: a name only, with no parameters.
+fn guest_learner(
+    r: &mut Reader,
+    path: &str,
+    has_algorithm: bool,
+    name: Lax<String>,
+    label: Option<Lax<String>>,
+    params: &[(&str, bool)],
+) -> Option<LearnerSpec> {
+    let at = format!("{path}.guest");
+    let name = r.take(&at, name, "a guest learner's name")?;
+    if has_algorithm {
+        r.problems.push(
+            format!("{path}.algorithm"),
+            "a learner has either \"algorithm\" (a built-in) or \"guest\" (your own), not both",
+        );
+    }
+    for (key, given) in params {
+        if *given {
+            r.problems.push(
+                format!("{path}.{key}"),
+                format!("a guest learner takes no {key}; its parameters are its own business"),
+            );
+        }
+    }
+    if !valid_guest_name(&name) {
+        r.problems.push(
+            at,
+            format!(
+                "expected a name of 1 to {MAX_GUEST_NAME} letters, digits, '_', '-' or '.', found {name:?}"
+            ),
+        );
+        return None;
+    }
+    let source = Source::Guest(name);
+    let label = learner_label(r, path, label, &source)?;
+    Some(LearnerSpec { label, source })
+}
+
+/// A learner's label: the one given, or its default; non-blank, ≤ 200 characters.
+fn learner_label(
+    r: &mut Reader,
+    path: &str,
+    label: Option<Lax<String>>,
+    source: &Source,
+) -> Option<String> {
+    let label = match label {
         Some(l) => r.take(&format!("{path}.label"), l, "a string")?,
-        None => algorithm.default_label(),
+        None => LearnerSpec {
+            label: String::new(),
+            source: source.clone(),
+        }
+        .default_label(),
     };
     if label.trim().is_empty() || label.chars().count() > 200 {
         r.problems.push(
@@ -392,7 +520,7 @@ fn learner(r: &mut Reader, path: &str, raw: RawLearner) -> Option<LearnerSpec> {
         );
         return None;
     }
-    Some(LearnerSpec { label, algorithm })
+    Some(label)
 }
 
 /// Reads and checks an experiment file. `load` resolves `model_path`; the
@@ -582,7 +710,7 @@ fn convert(
     let mut specs: Vec<LearnerSpec> = Vec::new();
     for (i, l) in learners.into_iter().enumerate() {
         let path = format!("learners[{i}]");
-        let Some(raw) = r.take(&path, l, "an object with \"algorithm\"") else {
+        let Some(raw) = r.take(&path, l, "an object with \"algorithm\" or \"guest\"") else {
             continue;
         };
         let Some(spec) = learner(r, &path, raw) else {
@@ -605,7 +733,7 @@ fn convert(
                 episodes: 1,
                 delta: 0.5,
             };
-            if let Err(msg) = spec.algorithm.check_setting(&set) {
+            if let Some(Err(msg)) = spec.builtin().map(|a| a.check_setting(&set)) {
                 r.problems.push(format!("{path}.algorithm"), msg);
             }
         }
@@ -777,7 +905,7 @@ impl Experiment {
                 }
                 let set = e.setting();
                 for (i, l) in e.learners.iter().enumerate() {
-                    if let Err(msg) = l.algorithm.check_setting(&set) {
+                    if let Some(Err(msg)) = l.builtin().map(|a| a.check_setting(&set)) {
                         return Err(Problems::single(format!("learners[{i}]"), msg));
                     }
                 }
@@ -787,8 +915,10 @@ impl Experiment {
                     return bad(msg);
                 }
                 for l in &mut e.learners {
-                    if let Some(a) = l.algorithm.with_param(p.key, x) {
-                        l.algorithm = a;
+                    if let Source::Builtin(alg) = &mut l.source
+                        && let Some(a) = alg.with_param(p.key, x)
+                    {
+                        *alg = a;
                     }
                 }
             }

@@ -357,6 +357,9 @@ pub enum AnyLearner {
     Ucb1(Ucb1),
     EpsGreedy(EpsGreedy),
     Uniform(Uniform),
+    /// A user's learner (`learn::guest`), boxed: it is larger than the rest
+    /// and its cost is in the guest, not in this call.
+    Guest(Box<super::GuestLearner>),
 }
 
 /// `with_learner!(any, l => expr)`: evaluates `expr` with `l` bound to the
@@ -373,6 +376,7 @@ macro_rules! with_learner {
             $crate::learn::AnyLearner::Ucb1($l) => $body,
             $crate::learn::AnyLearner::EpsGreedy($l) => $body,
             $crate::learn::AnyLearner::Uniform($l) => $body,
+            $crate::learn::AnyLearner::Guest($l) => $body,
         }
     };
 }
@@ -399,6 +403,9 @@ impl Learner for AnyLearner {
     }
     fn model_updates(&self) -> u64 {
         with_learner!(self, l => l.model_updates())
+    }
+    fn fault(&mut self) -> Option<String> {
+        with_learner!(self, l => l.fault())
     }
 }
 

@@ -46,6 +46,8 @@ pub enum PolicyView<'a> {
     Mixed { greedy: &'a [u32], epsilon: f64 },
     /// Every action with probability 1/A.
     Uniform,
+    /// Any Markov policy: `[(h·S + s)·A + a]` → probability of action a.
+    Table(&'a [f64]),
 }
 
 /// An online learner.
@@ -64,4 +66,36 @@ pub trait Learner: Send {
     fn end_episode(&mut self, _rng: &mut LearnRng) {}
     /// How often the plan was recomputed (the initial plan included).
     fn model_updates(&self) -> u64;
+    /// Why the learner cannot go on, once, after the call that failed (a
+    /// guest learner's error; built-in learners never fail).
+    fn fault(&mut self) -> Option<String> {
+        None
+    }
+}
+
+impl<L: Learner + ?Sized> Learner for Box<L> {
+    fn begin_episode(&mut self, rng: &mut LearnRng) {
+        (**self).begin_episode(rng)
+    }
+    fn policy(&self) -> PolicyView<'_> {
+        (**self).policy()
+    }
+    fn policy_version(&self) -> u64 {
+        (**self).policy_version()
+    }
+    fn act(&mut self, h: usize, s: usize, rng: &mut LearnRng) -> usize {
+        (**self).act(h, s, rng)
+    }
+    fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, rng: &mut LearnRng) {
+        (**self).observe(h, s, a, r, next, rng)
+    }
+    fn end_episode(&mut self, rng: &mut LearnRng) {
+        (**self).end_episode(rng)
+    }
+    fn model_updates(&self) -> u64 {
+        (**self).model_updates()
+    }
+    fn fault(&mut self) -> Option<String> {
+        (**self).fault()
+    }
 }

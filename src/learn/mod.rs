@@ -19,6 +19,7 @@ mod baseline;
 mod catalog;
 mod contract;
 mod counts;
+mod guest;
 mod mvp;
 mod plan;
 mod psrl;
@@ -32,6 +33,10 @@ pub use catalog::{
 };
 pub use contract::{LearnRng, Learner, PolicyView, Setting};
 pub use counts::RowCounts;
+pub use guest::{
+    Batch, Decision, GUEST_PROTOCOL, GUEST_VERSION, Guest, GuestHost, GuestIntro, GuestLearner,
+    GuestPolicy, GuestStep, Guests, MAX_BATCH, ROW_SUM_TOLERANCE,
+};
 pub use mvp::{
     FrozenStats, Mvp, largest_bonus as mvp_largest_bonus, log_factor as mvp_log_factor,
     visits_for_bonus_below_h as mvp_visits_for_bonus_below_h,

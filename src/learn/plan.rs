@@ -356,7 +356,7 @@ mod tests {
         let (mut r1, mut r2) = (LearnRng::seed_from_u64(7), LearnRng::seed_from_u64(7));
         let policy = |l: &dyn Learner| match l.policy() {
             PolicyView::Greedy(p) | PolicyView::Mixed { greedy: p, .. } => p.to_vec(),
-            PolicyView::Uniform => Vec::new(),
+            PolicyView::Uniform | PolicyView::Table(_) => Vec::new(),
         };
         for k in 0..episodes {
             fast.begin_episode(&mut r1);

@@ -1,6 +1,9 @@
 //! `burnin`: the command-line front end. Glue only: arguments, files, exit
-//! codes (0 ok, 1 invalid input, 2 usage or I/O error); all logic is in the
-//! library, shared with the page.
+//! codes (0 ok, 1 invalid input, 2 usage or I/O error, 3 a guest learner
+//! failed); all logic is in the library, shared with the page, except
+//! starting guest learners' processes (`guest.rs`).
+
+mod guest;
 
 use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
@@ -55,6 +58,13 @@ enum Command {
         /// Run only shard I of N of the runs and print a shard file for `burnin merge`.
         #[arg(long, value_name = "I/N")]
         shard: Option<String>,
+        /// The command that starts the guest learner NAME (one process per
+        /// run, through the shell); repeat for each guest the file names.
+        #[arg(long = "learner", value_name = "NAME=CMD")]
+        learners: Vec<String>,
+        /// Seconds a guest learner may take to answer one message.
+        #[arg(long, value_name = "SECS", default_value_t = 30.0)]
+        learner_timeout: f64,
     },
     /// Time the reference workloads (solver, learners, MVP replanning) on this machine.
     Bench {
@@ -198,6 +208,8 @@ enum Failure {
     Invalid(Vec<String>),
     /// Usage or I/O (exit 2).
     Io(String),
+    /// A guest learner failed (exit 3).
+    Guest(String),
 }
 
 fn main() -> ExitCode {
@@ -211,7 +223,19 @@ fn main() -> ExitCode {
             csv,
             threads,
             shard,
-        } => run(&file, json, csv.as_deref(), threads, shard.as_deref()),
+            learners,
+            learner_timeout,
+        } => run(
+            &file,
+            &RunOptions {
+                json,
+                csv: csv.as_deref(),
+                threads,
+                shard: shard.as_deref(),
+                learners: &learners,
+                learner_timeout,
+            },
+        ),
         Command::Merge { files, json, csv } => merge(&files, json, csv.as_deref()),
         Command::Bench {
             quick,
@@ -240,6 +264,10 @@ fn main() -> ExitCode {
         Err(Failure::Io(msg)) => {
             let _ = writeln!(std::io::stderr(), "burnin: {msg}");
             ExitCode::from(2)
+        }
+        Err(Failure::Guest(msg)) => {
+            let _ = writeln!(std::io::stderr(), "burnin: guest learner failed: {msg}");
+            ExitCode::from(3)
         }
     }
 }
@@ -415,18 +443,24 @@ fn parse_shard(text: &str) -> Result<(usize, usize), Failure> {
     Ok((i, n))
 }
 
-fn run(
-    path: &Path,
-    json: bool,
-    csv: Option<&Path>,
-    threads: Option<usize>,
-    shard: Option<&str>,
-) -> Result<(), Failure> {
+fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     use burnin::experiment::{Point, Run, ShardFile, assemble, parse_experiment, shard_jobs};
-    use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering};
+    use std::sync::atomic::{AtomicBool, AtomicU64, AtomicUsize, Ordering};
     use std::sync::{Arc, Mutex};
 
-    let shard = shard.map(parse_shard).transpose()?;
+    let (json, csv, threads) = (o.json, o.csv, o.threads);
+    let shard = o.shard.map(parse_shard).transpose()?;
+    if !(o.learner_timeout > 0.0 && o.learner_timeout <= 86_400.0) {
+        return Err(Failure::Io(format!(
+            "--learner-timeout: expected 0 < SECS ≤ 86400, found {}",
+            o.learner_timeout
+        )));
+    }
+    let host = guest::host(
+        o.learners,
+        std::time::Duration::from_secs_f64(o.learner_timeout),
+    )
+    .map_err(Failure::Io)?;
     let text = read_text(path)?;
     let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
     let model_text = Mutex::new(None::<String>);
@@ -442,8 +476,26 @@ fn run(
     if let Some(w) = exp.seed_warning() {
         let _ = writeln!(std::io::stderr(), "warning: {w}");
     }
+    for (i, l) in exp.learners.iter().enumerate() {
+        if let Some(g) = l.guest()
+            && !host.commands.contains_key(g)
+        {
+            return Err(Failure::Io(format!(
+                "learners[{i}] is the guest learner {g:?}; say what starts it with --learner {g}=CMD"
+            )));
+        }
+    }
+    for name in host.commands.keys() {
+        if !exp.learners.iter().any(|l| l.guest() == Some(name)) {
+            let _ = writeln!(
+                std::io::stderr(),
+                "warning: --learner {name}: the experiment names no guest learner {name:?}"
+            );
+        }
+    }
+    let guests: burnin::learn::Guests = Arc::new(host);
     // A sweep is one experiment per value; all their runs share one pool.
-    let points: Vec<Arc<Point>> = exp.points().into_iter().map(Point::new).collect();
+    let points = Point::all(&exp, Some(&guests));
     let (index, count) = shard.map_or((0, 1), |(i, n)| (i - 1, n));
     let jobs = shard_jobs(&points, index, count);
     let threads = threads
@@ -452,22 +504,34 @@ fn run(
     let next = AtomicUsize::new(0);
     let done_episodes = AtomicU64::new(0);
     let records = Mutex::new(Vec::with_capacity(jobs.len()));
+    let fault = Mutex::new(None);
+    let stop = AtomicBool::new(false);
     let progress = Progress::new(jobs.iter().map(|&(p, _)| points[p].exp.episodes).sum());
     std::thread::scope(|scope| {
         for _ in 0..threads {
             scope.spawn(|| {
-                loop {
+                'jobs: while !stop.load(Ordering::Relaxed) {
                     let j = next.fetch_add(1, Ordering::Relaxed);
                     let Some(&(p, i)) = jobs.get(j) else { break };
                     let mut r = Run::new(Arc::clone(&points[p]), i);
                     const CHUNK: u64 = 512;
                     loop {
                         let before = r.episodes_done();
-                        let finished = r.advance(CHUNK);
+                        let finished = match r.advance(CHUNK) {
+                            Ok(f) => f,
+                            Err(f) => {
+                                stop.store(true, Ordering::Relaxed);
+                                fault.lock().expect("no thread panicked").get_or_insert(f);
+                                break 'jobs;
+                            }
+                        };
                         let step = r.episodes_done() - before;
                         progress.show(done_episodes.fetch_add(step, Ordering::Relaxed) + step);
                         if finished {
                             break;
+                        }
+                        if stop.load(Ordering::Relaxed) {
+                            break 'jobs;
                         }
                     }
                     records
@@ -479,6 +543,11 @@ fn run(
         }
     });
     progress.clear();
+    if let Some(f) = fault.into_inner().expect("no thread panicked") {
+        return Err(Failure::Guest(format!(
+            "{f}\nno results were written; the other runs were stopped"
+        )));
+    }
     let mut records = records.into_inner().expect("no thread panicked");
     records.sort_by_key(|r| r.0);
     if let Some((i, n)) = shard {
@@ -496,6 +565,16 @@ fn run(
         by_point[p].push(r);
     }
     finish_output(&assemble(&exp, &points, by_point), json, csv)
+}
+
+/// `burnin run`'s options besides the file.
+struct RunOptions<'a> {
+    json: bool,
+    csv: Option<&'a Path>,
+    threads: Option<usize>,
+    shard: Option<&'a str>,
+    learners: &'a [String],
+    learner_timeout: f64,
 }
 
 fn finish_output(

@@ -1,0 +1,418 @@
+//! Guest learners (src/learn/guest.rs, src/bin/burnin/guest.rs): a user's
+//! own learner measured with the same exact regret as the built-ins, as a
+//! process speaking the JSON-lines protocol and as a Rust value. The guest
+//! scripts are `examples/*.py` and `tests/guests/*.py` (Python 3, standard
+//! library only).
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Stdio};
+use std::sync::Arc;
+
+use serde_json::{Value, json};
+
+use burnin::experiment::{Point, RunRecord, parse_experiment, run_all, try_run_all};
+use burnin::learn::{Batch, Decision, Guest, GuestIntro, GuestPolicy, Guests};
+
+fn root() -> &'static Path {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// Two doors, worked by hand. S = {hall, garden}, A = {left, right}, H = 2,
+/// start in the hall. In the hall, left stays (Bernoulli reward, mean 0.8)
+/// and right goes to the garden (reward 0); in the garden, left pays 1 and
+/// right 0, both staying.
+///
+/// Optimal: at step 2, V(hall) = 0.8 and V(garden) = 1; at step 1,
+/// Q(hall, left) = 0.8 + 0.8 = 1.6 and Q(hall, right) = 0 + 1 = 1, so
+/// V* = 1.6. Uniform: at step 2, V(hall) = ½·0.8 = 0.4 and V(garden) = ½;
+/// at step 1, V(hall) = ½·(0.8 + 0.4) + ½·(0 + 0.5) = 0.85. Each episode of
+/// the uniform learner costs 1.6 − 0.85 = 0.75 (derived by hand).
+const TWO_DOORS: &str = r#"{"format": "burnin-model", "version": 1, "name": "Two doors",
+  "horizon": 2, "states": ["hall", "garden"], "actions": ["left", "right"],
+  "start": [1, 0],
+  "steps": [{"transitions": [[[[0, 1]], [[1, 1]]], [[[1, 1]], [[1, 1]]]],
+             "rewards": [[{"bernoulli": 0.8}, 0], [1, 0]]}]}"#;
+const UNIFORM_EPISODE_REGRET: f64 = 0.75;
+
+struct Scratch(PathBuf);
+
+impl Scratch {
+    fn new(tag: &str) -> Scratch {
+        let p = std::env::temp_dir().join(format!("burnin-guest-{tag}-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&p);
+        std::fs::create_dir_all(&p).unwrap();
+        std::fs::write(p.join("two-doors.json"), TWO_DOORS).unwrap();
+        Scratch(p)
+    }
+    fn experiment(&self, name: &str, v: Value) -> PathBuf {
+        let p = self.0.join(name);
+        std::fs::write(&p, v.to_string()).unwrap();
+        p
+    }
+}
+
+impl Drop for Scratch {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
+}
+
+fn experiment(model: &str, episodes: u64, seeds: u64, learners: Value) -> Value {
+    json!({"format": "burnin-experiment", "version": 1, "model_path": model,
+           "episodes": episodes, "seeds": seeds, "seed": 3, "learners": learners})
+}
+
+struct Out {
+    code: i32,
+    stdout: String,
+    stderr: String,
+}
+
+fn burnin(args: &[&str]) -> Out {
+    let out = Command::new(env!("CARGO_BIN_EXE_burnin"))
+        .args(args)
+        .current_dir(root())
+        .stdin(Stdio::null())
+        .output()
+        .expect("the binary runs");
+    Out {
+        code: out.status.code().expect("exited"),
+        stdout: String::from_utf8(out.stdout).unwrap(),
+        stderr: String::from_utf8(out.stderr).unwrap(),
+    }
+}
+
+fn results(args: &[&str]) -> Value {
+    let out = burnin(args);
+    assert_eq!(out.code, 0, "{}", out.stderr);
+    serde_json::from_str(&out.stdout).unwrap()
+}
+
+fn curve(v: &Value, learner: usize, key: &str) -> Vec<f64> {
+    v["learners"][learner][key]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|x| x.as_f64().unwrap())
+        .collect()
+}
+
+/// The external uniform learner's regret is K·(V* − V^uniform) at every
+/// checkpoint (hand-derived above), equal to the built-in uniform learner's
+/// to 1e-12, with one message per episode and with batches of 64.
+#[test]
+fn process_uniform_learner_pays_the_hand_derived_regret() {
+    let d = Scratch::new("uniform");
+    let e = d.experiment(
+        "e.json",
+        experiment(
+            "two-doors.json",
+            300,
+            3,
+            json!([{"algorithm": "uniform"}, {"guest": "mine"}, {"guest": "batched"}]),
+        ),
+    );
+    let v = results(&[
+        "run",
+        e.to_str().unwrap(),
+        "--json",
+        "--learner",
+        "mine=python3 examples/uniform.py",
+        "--learner",
+        "batched=python3 examples/uniform.py 64",
+    ]);
+    assert_eq!(v["optimal_value"].as_f64().unwrap(), 1.6);
+    let ks: Vec<f64> = v["learners"][1]["checkpoints"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|k| k.as_f64().unwrap())
+        .collect();
+    let builtin = curve(&v, 0, "regret_mean");
+    for li in [1, 2] {
+        assert_eq!(v["learners"][li]["algorithm"], "guest");
+        let guest = curve(&v, li, "regret_mean");
+        for (i, k) in ks.iter().enumerate() {
+            let want = k * UNIFORM_EPISODE_REGRET;
+            assert!(
+                (guest[i] - want).abs() <= 1e-12 * want,
+                "k = {k}: {} vs {want}",
+                guest[i]
+            );
+            assert!((guest[i] - builtin[i]).abs() <= 1e-12 * want);
+        }
+        // One policy, given once: one model update per run; no published bound.
+        assert_eq!(v["learners"][li]["model_updates"], json!([1, 1, 1]));
+        assert!(v["learners"][li]["bound"].is_null());
+    }
+    // Batching changes the messages, not the draws: the same results.
+    let alone = d.experiment(
+        "alone.json",
+        experiment("two-doors.json", 300, 3, json!([{"guest": "mine"}])),
+    );
+    let one = burnin(&[
+        "run",
+        alone.to_str().unwrap(),
+        "--json",
+        "--learner",
+        "mine=python3 examples/uniform.py",
+    ]);
+    let batched = burnin(&[
+        "run",
+        alone.to_str().unwrap(),
+        "--json",
+        "--learner",
+        "mine=python3 examples/uniform.py 64",
+    ]);
+    assert_eq!(one.code, 0, "{}", one.stderr);
+    assert_eq!(one.stdout, batched.stdout);
+}
+
+/// A guest whose rows are exactly uniform draws its actions as the built-in
+/// uniform learner does, so at the same position in an experiment its runs
+/// are the built-in's bit for bit (regret, returns, visits), all but the
+/// model-update count.
+#[test]
+fn rust_guest_uniform_reproduces_the_built_in_run_for_run() {
+    struct Coin(usize);
+    impl Guest for Coin {
+        fn decide(&mut self, b: Batch<'_>) -> Result<Decision, String> {
+            Ok(if b.done == 0 {
+                Decision::new(GuestPolicy::Probabilities(vec![0.5; self.0]), 7)
+            } else {
+                Decision::keep(7)
+            })
+        }
+    }
+    let text = |learner: Value| {
+        json!({"format": "burnin-experiment", "version": 1, "model": serde_json::from_str::<Value>(TWO_DOORS).unwrap(),
+               "episodes": 250, "seeds": 4, "learners": [learner]})
+        .to_string()
+    };
+    let host: Guests = Arc::new(
+        |_: &str, i: &GuestIntro| -> Result<Box<dyn Guest>, String> {
+            let s = i.setting;
+            Ok(Box::new(Coin(s.horizon * s.states * s.actions)))
+        },
+    );
+    let guest = Point::with_guests(
+        parse_experiment(&text(json!({"guest": "coin"})), None).unwrap(),
+        Some(host),
+    );
+    let builtin =
+        Point::new(parse_experiment(&text(json!({"algorithm": "uniform"})), None).unwrap());
+    let strip = |rs: Vec<RunRecord>| -> Vec<RunRecord> {
+        rs.into_iter()
+            .map(|r| RunRecord {
+                model_updates: 0,
+                ..r
+            })
+            .collect()
+    };
+    let g = try_run_all(&guest).unwrap();
+    assert!(g.iter().all(|r| r.model_updates == 1));
+    assert_eq!(strip(g), strip(run_all(&builtin)));
+}
+
+fn mean_and_se(xs: &[f64]) -> (f64, f64) {
+    let n = xs.len() as f64;
+    let m = xs.iter().sum::<f64>() / n;
+    let var = xs.iter().map(|x| (x - m) * (x - m)).sum::<f64>() / (n - 1.0);
+    (m, (var / n).sqrt())
+}
+
+/// An external port of the built-in Q-learning with the Hoeffding bonus
+/// (tests/guests/q_ucb_port.py; Jin et al. 2018, Algorithm 1) pays the same
+/// mean regret as the built-in over 64 seeds: the two means differ by less
+/// than 4 standard errors of their difference (a two-sample z-test at
+/// 64 + 64 runs; a false alarm has probability about 6·10⁻⁵, and the seeds
+/// are fixed, so the test is deterministic). The two break ties with
+/// different generators, so they agree in distribution, not run for run.
+#[test]
+fn guest_port_of_q_learning_matches_the_built_in_over_64_seeds() {
+    let d = Scratch::new("port");
+    std::fs::copy(
+        root().join("demo-models/tide-pool-forager.json"),
+        d.0.join("tide.json"),
+    )
+    .unwrap();
+    let e = d.experiment(
+        "e.json",
+        experiment(
+            "tide.json",
+            400,
+            64,
+            json!([{"algorithm": "q-ucb-hoeffding", "bonus_scale": 0.05}, {"guest": "port"}]),
+        ),
+    );
+    let v = results(&[
+        "run",
+        e.to_str().unwrap(),
+        "--json",
+        "--learner",
+        "port=python3 tests/guests/q_ucb_port.py 0.05",
+    ]);
+    let (mb, sb) = mean_and_se(&curve(&v, 0, "final_regret"));
+    let (mg, sg) = mean_and_se(&curve(&v, 1, "final_regret"));
+    let z = (mb - mg) / (sb * sb + sg * sg).sqrt();
+    assert!(mb > 10.0, "the workload has regret to compare: {mb}");
+    assert!(
+        z.abs() < 4.0,
+        "built-in {mb} ± {sb}, port {mg} ± {sg}: z = {z}"
+    );
+    // The port changes its policy as often as the built-in, roughly.
+    let (ub, _) = mean_and_se(&curve(&v, 0, "model_updates"));
+    let (ug, _) = mean_and_se(&curve(&v, 1, "model_updates"));
+    assert!((ub - ug).abs() < 0.25 * ub, "updates {ub} vs {ug}");
+}
+
+/// Each way of breaking the contract stops the run with exit 3 and a
+/// message naming the learner, the seed, the episode and what went wrong.
+#[test]
+fn a_misbehaving_process_is_stopped_with_a_message_naming_run_episode_and_line() {
+    let d = Scratch::new("bad");
+    let e = d.experiment(
+        "e.json",
+        experiment(
+            "two-doors.json",
+            50,
+            2,
+            json!([{"algorithm": "uniform"}, {"guest": "bad", "label": "my learner"}]),
+        ),
+    );
+    let e = e.to_str().unwrap();
+    for (how, want) in [
+        (
+            "crash",
+            vec![
+                "ended (exit status: 7) without answering message 2",
+                "ZeroDivisionError",
+            ],
+        ),
+        (
+            "silent",
+            vec!["gave no answer line 2 within 1 s; it was stopped"],
+        ),
+        (
+            "garbage",
+            vec!["answer line 2 is not JSON", "\"policy please?\""],
+        ),
+        (
+            "action-out-of-range",
+            vec!["answer line 2: \"actions\"[0][0] must be an action 0 … 1, found 2"],
+        ),
+        (
+            "row-sum",
+            vec!["answer line 2: \"probabilities\"[0][0] sums to 0.7, not 1"],
+        ),
+        (
+            "wrong-shape",
+            vec!["answer line 2: \"actions\"[0] must be a list of S = 2 entries"],
+        ),
+    ] {
+        let cmd = format!("bad=python3 tests/guests/misbehave.py {how}");
+        let out = burnin(&[
+            "run",
+            e,
+            "--learner",
+            &cmd,
+            "--learner-timeout",
+            "1",
+            "--threads",
+            "1",
+        ]);
+        assert_eq!(out.code, 3, "{how}: {}", out.stderr);
+        let first = out
+            .stderr
+            .lines()
+            .find(|l| l.starts_with("burnin:"))
+            .unwrap_or_default();
+        assert!(
+            first.starts_with(
+                "burnin: guest learner failed: learner \"my learner\", seed 0, episode 2: "
+            ),
+            "{how}: {first}"
+        );
+        for w in want {
+            assert!(first.contains(w), "{how}: {first:?} lacks {w:?}");
+        }
+        assert!(out.stdout.is_empty(), "{how}: no results are written");
+    }
+}
+
+/// A file names a guest; only the command line starts one, and the reader
+/// refuses entries that mix the two kinds or give a guest parameters.
+#[test]
+fn guests_are_named_by_files_and_started_only_by_the_command_line() {
+    let d = Scratch::new("names");
+    let e = d.experiment(
+        "e.json",
+        experiment("two-doors.json", 10, 2, json!([{"guest": "mine"}])),
+    );
+    let out = burnin(&["run", e.to_str().unwrap()]);
+    assert_eq!(out.code, 2);
+    assert!(
+        out.stderr.contains(
+            "learners[0] is the guest learner \"mine\"; say what starts it with --learner mine=CMD"
+        ),
+        "{}",
+        out.stderr
+    );
+    let out = burnin(&["run", e.to_str().unwrap(), "--learner", "mine"]);
+    assert_eq!(out.code, 2);
+    assert!(
+        out.stderr
+            .contains("--learner \"mine\": expected NAME=COMMAND"),
+        "{}",
+        out.stderr
+    );
+    let bad = d.experiment(
+        "bad.json",
+        experiment(
+            "two-doors.json",
+            10,
+            2,
+            json!([{"guest": "a b"}, {"guest": "x", "algorithm": "mvp"}, {"guest": "y", "epsilon": 0.1}]),
+        ),
+    );
+    let out = burnin(&["run", bad.to_str().unwrap()]);
+    assert_eq!(out.code, 1);
+    for w in [
+        "learners[0].guest: expected a name of 1 to 64 letters, digits, '_', '-' or '.', found \"a b\"",
+        "learners[1].algorithm: a learner has either \"algorithm\" (a built-in) or \"guest\" (your own), not both",
+        "learners[2].epsilon: a guest learner takes no epsilon",
+    ] {
+        assert!(out.stderr.contains(w), "{} lacks {w}", out.stderr);
+    }
+}
+
+/// Shards of an experiment with a guest merge into exactly the unsharded
+/// results: one process per run keeps runs independent.
+#[test]
+fn sharded_guest_runs_merge_into_the_unsharded_results() {
+    let d = Scratch::new("shards");
+    let e = d.experiment(
+        "e.json",
+        experiment(
+            "two-doors.json",
+            120,
+            3,
+            json!([{"guest": "opt"}, {"algorithm": "mvp"}]),
+        ),
+    );
+    let e = e.to_str().unwrap();
+    let learner = "opt=python3 examples/optimist.py";
+    let whole = burnin(&["run", e, "--json", "--learner", learner]);
+    assert_eq!(whole.code, 0, "{}", whole.stderr);
+    let mut files = Vec::new();
+    for i in 1..=2 {
+        let out = burnin(&["run", e, "--shard", &format!("{i}/2"), "--learner", learner]);
+        assert_eq!(out.code, 0, "{}", out.stderr);
+        let f = d.0.join(format!("s{i}.json"));
+        std::fs::write(&f, out.stdout).unwrap();
+        files.push(f.to_str().unwrap().to_owned());
+    }
+    let merged = burnin(&["merge", &files[0], &files[1], "--json"]);
+    assert_eq!(merged.code, 0, "{}", merged.stderr);
+    assert_eq!(merged.stdout, whole.stdout);
+}
