@@ -121,14 +121,25 @@ pub struct ExperimentRun {
 impl ExperimentRun {
     /// Reads an experiment file's text and takes shard `index` (0-based) of
     /// `count` of its runs; throws `{ok: false, problems, unlisted}`.
+    /// `guests` maps each guest learner's name to the function its module
+    /// exports (`start(intro)` → `{decide(batch)}`, docs/formats.md); it may
+    /// be undefined when the experiment names none.
     #[wasm_bindgen(constructor)]
-    pub fn new(text: &str, index: u32, count: u32) -> Result<ExperimentRun, JsValue> {
+    pub fn new(
+        text: &str,
+        index: u32,
+        count: u32,
+        guests: JsValue,
+    ) -> Result<ExperimentRun, JsValue> {
         let exp =
             crate::experiment::parse_experiment(text, None).map_err(|p| problems_value(&p))?;
         let count = count.max(1) as usize;
         let index = (index as usize).min(count - 1);
+        let host: Option<crate::learn::Guests> = guests
+            .is_object()
+            .then(|| std::sync::Arc::new(JsHost(guests)) as crate::learn::Guests);
         Ok(ExperimentRun {
-            batch: crate::experiment::RunQueue::shard(exp, index, count),
+            batch: crate::experiment::RunQueue::shard_with_guests(exp, index, count, host),
             text: text.to_owned(),
             index,
             count,
@@ -138,19 +149,63 @@ impl ExperimentRun {
     /// The finished shard as a burnin-shard file's text (for `mergeShards`).
     #[wasm_bindgen(js_name = shardJson)]
     pub fn shard_json(&self) -> String {
-        crate::experiment::ShardFile::new(
+        let mut f = crate::experiment::ShardFile::new(
             self.index,
             self.count,
             self.text.clone(),
             None,
             self.batch.records(),
-        )
-        .to_json()
+        );
+        f.faults = self.batch.faults().to_vec();
+        f.to_json()
+    }
+
+    /// The run in progress as `[learner, seed index, episodes done]`, or
+    /// undefined between runs (for the page's watchdog).
+    pub fn current(&self) -> Option<Vec<f64>> {
+        self.batch
+            .current()
+            .map(|(l, s, d)| vec![l as f64, s as f64, d as f64])
+    }
+
+    /// Records that `learner`'s run of seed `seed_index` stopped answering at
+    /// `episode`: its runs in this shard are left out (see `RunQueue::fail`).
+    pub fn fail(&mut self, learner: u32, seed_index: f64, episode: f64, message: &str) {
+        let learner = learner as usize;
+        let exp = self.batch.experiment();
+        if learner >= exp.learners.len() {
+            return;
+        }
+        let label = exp.learners[learner].label.clone();
+        self.batch.fail(crate::experiment::RunFault {
+            learner,
+            label,
+            seed_index: seed_index as u64,
+            episode: episode as u64,
+            message: message.to_owned(),
+        });
     }
 
     /// Runs up to `max` more episodes; true when everything is done.
     pub fn advance(&mut self, max: f64) -> bool {
         self.batch.advance(max.max(1.0) as u64)
+    }
+
+    /// `advance`, but not past the end of the run in progress (so that
+    /// `current()` before the call names the run a hang is in).
+    #[wasm_bindgen(js_name = advanceOneRun)]
+    pub fn advance_one_run(&mut self, max: f64) -> bool {
+        self.batch.advance_one_run(max.max(1.0) as u64)
+    }
+
+    /// Whether any learner is a guest.
+    #[wasm_bindgen(js_name = hasGuests)]
+    pub fn has_guests(&self) -> bool {
+        self.batch
+            .experiment()
+            .learners
+            .iter()
+            .any(|l| l.guest().is_some())
     }
 
     #[wasm_bindgen(js_name = episodesDone)]
@@ -161,6 +216,132 @@ impl ExperimentRun {
     #[wasm_bindgen(js_name = totalEpisodes)]
     pub fn total_episodes(&self) -> f64 {
         self.batch.total_episodes() as f64
+    }
+}
+
+/// The page's guest learners: name → the start function of a JavaScript
+/// module, called in this worker.
+struct JsHost(JsValue);
+
+// SAFETY: the page's wasm module is built without threads (no atomics), so
+// these JS values are only ever touched by the one worker thread that made
+// them; `Send`/`Sync` are needed only by the core's native thread pool.
+unsafe impl Send for JsHost {}
+unsafe impl Sync for JsHost {}
+
+/// A guest's `decide` function and its object.
+struct JsGuest {
+    this: JsValue,
+    decide: js_sys::Function,
+    setting: crate::learn::Setting,
+}
+
+// SAFETY: as for `JsHost`.
+unsafe impl Send for JsGuest {}
+
+/// What a JS exception says.
+fn thrown(e: &JsValue) -> String {
+    if let Some(err) = e.dyn_ref::<js_sys::Error>() {
+        String::from(err.message())
+    } else {
+        e.as_string().unwrap_or_else(|| format!("{e:?}"))
+    }
+}
+
+/// The guest's introduction as a plain object (the process protocol's
+/// first line, with the same keys).
+#[derive(serde::Serialize)]
+struct IntroJs<'a> {
+    protocol: &'a str,
+    version: u32,
+    states: usize,
+    actions: usize,
+    horizon: usize,
+    episodes: u64,
+    delta: f64,
+    seed: u64,
+    state_labels: &'a [String],
+    action_labels: &'a [String],
+}
+
+impl crate::learn::GuestHost for JsHost {
+    fn start(
+        &self,
+        name: &str,
+        intro: &crate::learn::GuestIntro,
+    ) -> Result<Box<dyn crate::learn::Guest>, String> {
+        let start = Reflect::get(&self.0, &JsValue::from_str(name))
+            .ok()
+            .and_then(|f| f.dyn_into::<js_sys::Function>().ok())
+            .ok_or_else(|| format!("your learner {name:?} is not loaded in this worker"))?;
+        let s = intro.setting;
+        let js_intro = to_js(&IntroJs {
+            protocol: crate::learn::GUEST_PROTOCOL,
+            version: crate::learn::GUEST_VERSION,
+            states: s.states,
+            actions: s.actions,
+            horizon: s.horizon,
+            episodes: s.episodes,
+            delta: s.delta,
+            seed: intro.seed,
+            state_labels: &intro.state_labels,
+            action_labels: &intro.action_labels,
+        });
+        let this = start
+            .call1(&JsValue::UNDEFINED, &js_intro)
+            .map_err(|e| format!("its start function threw: {}", thrown(&e)))?;
+        let decide = Reflect::get(&this, &JsValue::from_str("decide"))
+            .ok()
+            .and_then(|f| f.dyn_into::<js_sys::Function>().ok())
+            .ok_or_else(|| {
+                "its start function must return an object with a decide(batch) method".to_string()
+            })?;
+        Ok(Box::new(JsGuest {
+            this,
+            decide,
+            setting: s,
+        }))
+    }
+}
+
+impl crate::learn::Guest for JsGuest {
+    fn decide(&mut self, batch: crate::learn::Batch<'_>) -> Result<crate::learn::Decision, String> {
+        let n = batch.steps.len();
+        let (mut st, mut ac, mut nx) = (
+            Vec::with_capacity(n),
+            Vec::with_capacity(n),
+            Vec::with_capacity(n),
+        );
+        let mut rw = Vec::with_capacity(n);
+        for x in batch.steps {
+            st.push(x.state);
+            ac.push(x.action);
+            rw.push(x.reward);
+            nx.push(x.next);
+        }
+        let b = Object::new();
+        set(&b, "done", batch.done as f64);
+        set(&b, "episodes", batch.episodes() as f64);
+        set(&b, "horizon", batch.horizon as f64);
+        set(&b, "states", Uint32Array::from(st.as_slice()));
+        set(&b, "actions", Uint32Array::from(ac.as_slice()));
+        set(&b, "rewards", Float64Array::from(rw.as_slice()));
+        set(&b, "next", Uint32Array::from(nx.as_slice()));
+        let answer = self
+            .decide
+            .call1(&self.this, &b)
+            .map_err(|e| format!("decide threw: {}", thrown(&e)))?;
+        // The answer goes through JSON, so the page and a process are read
+        // by the same reader with the same messages.
+        let text = js_sys::JSON::stringify(&answer)
+            .ok()
+            .and_then(|t| t.as_string())
+            .ok_or_else(|| {
+                "decide returned a value that is not JSON (undefined or a function)".to_string()
+            })?;
+        let v: serde_json::Value = serde_json::from_str(&text)
+            .map_err(|_| format!("decide returned {text:.80}, not an answer object"))?;
+        crate::learn::Decision::from_json(&v, &self.setting)
     }
 }
 

@@ -27,11 +27,16 @@ fn root() -> &'static Path {
 /// V* = 1.6. Uniform: at step 2, V(hall) = ½·0.8 = 0.4 and V(garden) = ½;
 /// at step 1, V(hall) = ½·(0.8 + 0.4) + ½·(0 + 0.5) = 0.85. Each episode of
 /// the uniform learner costs 1.6 − 0.85 = 0.75 (derived by hand).
-const TWO_DOORS: &str = r#"{"format": "burnin-model", "version": 1, "name": "Two doors",
-  "horizon": 2, "states": ["hall", "garden"], "actions": ["left", "right"],
-  "start": [1, 0],
-  "steps": [{"transitions": [[[[0, 1]], [[1, 1]]], [[[1, 1]], [[1, 1]]]],
-             "rewards": [[{"bernoulli": 0.8}, 0], [1, 0]]}]}"#;
+/// (The model is in the page's fixture `tests/browser/fixtures/
+/// two-doors-guest-experiment.json`, shared with the browser check.)
+fn two_doors() -> String {
+    let text = std::fs::read_to_string(
+        root().join("tests/browser/fixtures/two-doors-guest-experiment.json"),
+    )
+    .unwrap();
+    let v: Value = serde_json::from_str(&text).unwrap();
+    v["model"].to_string()
+}
 const UNIFORM_EPISODE_REGRET: f64 = 0.75;
 
 struct Scratch(PathBuf);
@@ -41,7 +46,7 @@ impl Scratch {
         let p = std::env::temp_dir().join(format!("burnin-guest-{tag}-{}", std::process::id()));
         let _ = std::fs::remove_dir_all(&p);
         std::fs::create_dir_all(&p).unwrap();
-        std::fs::write(p.join("two-doors.json"), TWO_DOORS).unwrap();
+        std::fs::write(p.join("two-doors.json"), two_doors()).unwrap();
         Scratch(p)
     }
     fn experiment(&self, name: &str, v: Value) -> PathBuf {
@@ -185,7 +190,7 @@ fn rust_guest_uniform_reproduces_the_built_in_run_for_run() {
         }
     }
     let text = |learner: Value| {
-        json!({"format": "burnin-experiment", "version": 1, "model": serde_json::from_str::<Value>(TWO_DOORS).unwrap(),
+        json!({"format": "burnin-experiment", "version": 1, "model": serde_json::from_str::<Value>(&two_doors()).unwrap(),
                "episodes": 250, "seeds": 4, "learners": [learner]})
         .to_string()
     };

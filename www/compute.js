@@ -20,7 +20,7 @@ class Client {
       const msg = event.data;
       const job = this.pending.get(msg.id);
       if (!job) return;
-      if (msg.type === 'progress') { job.onProgress?.(msg.done, msg.total); return; }
+      if (msg.type === 'progress') { job.onProgress?.(msg.done, msg.total, msg.at); return; }
       this.pending.delete(msg.id);
       if (msg.type === 'done') job.resolve(msg.result);
       else if (msg.type === 'cancelled') job.resolve({ cancelled: true, done: msg.done, total: msg.total });
@@ -44,6 +44,18 @@ class Client {
       this.worker.postMessage({ type, id, ...payload });
     });
     return { id, promise, cancel: () => this.worker.postMessage({ type: 'cancel', target: id }) };
+  }
+
+  /**
+   * Stops a worker that stopped answering and starts a fresh one; the
+   * request `id` rejects with `why`, any others with a restart message.
+   */
+  replace(id, why) {
+    this.worker.terminate();
+    const jobs = [...this.pending.entries()];
+    this.pending.clear();
+    this.start();
+    for (const [k, job] of jobs) job.reject(k === id ? why : new Error('a compute worker was restarted'));
   }
 }
 
@@ -87,22 +99,87 @@ export const withLayout = (text, positions) => quick.request('with-layout', { te
 /** A generated model file's text (or problems) from a generator object. */
 export const generate = (spec) => quick.request('generate', { spec: JSON.stringify(spec) }).promise;
 
+/** How long a worker running a guest learner may stay silent, in ms. */
+let guestTimeoutMs = 10000;
+/** For the browser tests: a shorter wait for a guest that never answers. */
+export function setGuestTimeoutForTest(ms) { guestTimeoutMs = ms; }
+
+/** A worker stopped because a guest learner never answered. */
+class Hung extends Error {
+  constructor(at, ms) {
+    super('hung');
+    this.at = at;
+    this.ms = ms;
+  }
+}
+
+/** Why a silent worker was stopped when the user cancelled. */
+const CANCELLED = new Error('cancelled');
+
+/** Whether a user's learner module exports a learner: {ok, message}. Runs it in a throwaway worker. */
+export function checkGuest(source) {
+  const c = new Client();
+  const job = c.request('check-guest', { source });
+  const timer = setTimeout(() => c.replace(job.id, new Error(`the module did not finish loading within ${guestTimeoutMs / 1000} s`)), guestTimeoutMs);
+  return job.promise.finally(() => { clearTimeout(timer); c.worker.terminate(); });
+}
+
 /**
  * Runs an experiment file's text on the pool. Returns {promise, cancel,
  * workers}; the promise resolves to {json, csv}, to {cancelled: true, done,
- * total}, or to problems {ok: false}.
+ * total}, or to problems {ok: false}. `guests` ([{name, source}]) are the
+ * user's learner modules the experiment names: they run only in the pool's
+ * workers. A worker whose guest stays silent longer than the guest timeout
+ * is replaced, and its shard run again without that learner (the fault is
+ * listed in the results); the other learners' results stay.
  */
-export function runExperiment(text, onProgress, workers = POOL_SIZE) {
+export function runExperiment(text, onProgress, workers = POOL_SIZE, guests = []) {
   while (pool.length < workers) pool.push(new Client());
   const done = new Array(workers).fill(0), total = new Array(workers).fill(0);
   const report = () => onProgress?.(done.reduce((a, b) => a + b, 0), total.reduce((a, b) => a + b, 0));
-  const jobs = pool.slice(0, workers).map((c, i) => c.request('run', { text, shard: i, of: workers }, (d, t) => { done[i] = d; total[i] = t; report(); }));
-  const cancel = () => jobs.forEach((j) => j.cancel());
+  let stopped = false, cancelled = false;
+  /** Per shard: its request and when its worker last spoke. */
+  const current = new Array(workers).fill(null);
+  const shard = (i, skip) => {
+    const c = pool[i];
+    let last = performance.now(), at = null;
+    const job = c.request('run', { text, shard: i, of: workers, guests, skip }, (d, t, where) => {
+      done[i] = d; total[i] = t; last = performance.now();
+      if (where) at = where;
+      report();
+    });
+    current[i] = { job, quiet: () => performance.now() - last, stop: (why) => c.replace(job.id, why) };
+    const watch = guests.length && setInterval(() => {
+      const quiet = performance.now() - last;
+      if (quiet > guestTimeoutMs && at) c.replace(job.id, new Hung(at, quiet));
+    }, Math.min(500, guestTimeoutMs / 4));
+    return job.promise.then(
+      (r) => { clearInterval(watch); return r; },
+      (err) => {
+        clearInterval(watch);
+        if (cancelled && (err instanceof Hung || err === CANCELLED)) return { cancelled: true };
+        if (!(err instanceof Hung) || stopped) throw err;
+        const [learner, seedIndex, episodes] = err.at;
+        const fault = { learner, seed_index: seedIndex, episode: episodes + 1, message: `gave no answer within ${(err.ms / 1000).toFixed(0)} s; its worker was stopped` };
+        return shard(i, [...skip, fault]);
+      },
+    );
+  };
+  const jobs = pool.slice(0, workers).map((_, i) => shard(i, []));
+  const cancel = () => {
+    cancelled = true;
+    for (const s of current) {
+      // A worker silent for a second is inside a guest's call: stop it now.
+      if (s && s.quiet() > 1000) s.stop(CANCELLED);
+      else s?.job.cancel();
+    }
+  };
   const promise = (async () => {
     let results;
     try {
-      results = await Promise.all(jobs.map((j) => j.promise));
+      results = await Promise.all(jobs);
     } catch (err) {
+      stopped = true;
       cancel();
       throw err;
     }

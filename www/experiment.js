@@ -1,7 +1,8 @@
 // The experiment view: set-up form, running in the worker with progress and
 // cancel, and the results (charts with hover, table, visit heat map, exports,
 // presentation view).
-import { runExperiment } from './compute.js';
+import { runExperiment, checkGuest } from './compute.js';
+import * as store from './store.js';
 import { el, download, safeName } from './dom.js';
 import { drawChart, CanvasPen, SvgPen, PALETTE, nearestIndex } from './chart.js';
 import { short, grouped, valueColour, inkOn } from './format.js';
@@ -61,6 +62,23 @@ export class ExperimentView {
     this.layout = null;
     this.rows = $('learner-rows');
     $('add-learner').addEventListener('click', () => { this.addRow({ use: true, algorithm: 'mvp', value: 1, label: '' }); hooks.changed(); });
+    /** The user's learners loaded in this page: name → {source, file}. Never saved unless kept. */
+    this.guests = new Map();
+    $('add-guest').addEventListener('click', () => $('guest-file').click());
+    $('guest-file').addEventListener('change', (e) => { const f = e.target.files[0]; e.target.value = ''; if (f) this.loadGuestFile(f); });
+    const drop = $('guest-drop');
+    drop.addEventListener('dragover', (e) => { e.preventDefault(); e.stopPropagation(); drop.classList.add('over'); });
+    drop.addEventListener('dragleave', () => drop.classList.remove('over'));
+    drop.addEventListener('drop', (e) => {
+      e.preventDefault();
+      e.stopPropagation();
+      drop.classList.remove('over');
+      document.body.classList.remove('dropping');
+      const f = e.dataTransfer.files[0];
+      if (f) this.loadGuestFile(f);
+    });
+    $('guest-code-cancel').addEventListener('click', () => $('guest-code').close());
+    this.renderGuests();
     $('exp-form').addEventListener('submit', (e) => { e.preventDefault(); this.run(); });
     $('exp-form').addEventListener('input', () => hooks.changed());
     $('cancel-exp').addEventListener('click', () => {
@@ -116,14 +134,13 @@ export class ExperimentView {
     const use = el('input', null, { type: 'checkbox', 'aria-label': 'use this learner' });
     use.checked = l.use !== false;
     const alg = el('select', null, { 'aria-label': 'algorithm' });
-    for (const a of this.catalogue.algorithms) alg.append(el('option', a.name, { value: a.key, title: a.reference }));
-    alg.value = l.algorithm;
+    this.fillAlgorithms(alg, l.guest ? `guest:${l.guest}` : l.algorithm);
     const param = el('input', null, { type: 'number', step: 'any', min: '0' });
     const label = el('input', null, { type: 'text', 'aria-label': 'label', placeholder: 'default label' });
     label.value = l.label || '';
     const remove = el('button', '✕', { type: 'button', 'aria-label': 'remove this learner' });
     const syncParam = (value) => {
-      const p = this.algorithms.get(alg.value).param;
+      const p = this.algorithms.get(alg.value)?.param;
       param.disabled = !p;
       param.setAttribute('aria-label', p ? p.name : 'no parameter');
       param.value = p ? String(value ?? p.default) : '';
@@ -137,6 +154,96 @@ export class ExperimentView {
     this.rows.append(tr);
   }
 
+  /** Fills an algorithm menu: the catalogue's algorithms, then the user's learners; selects `value`. */
+  fillAlgorithms(sel, value) {
+    sel.replaceChildren();
+    for (const a of this.catalogue.algorithms) sel.append(el('option', a.name, { value: a.key, title: a.reference }));
+    const names = new Set(this.guests.keys());
+    if (value?.startsWith('guest:')) names.add(value.slice(6));
+    if (names.size) {
+      const group = el('optgroup', null, { label: 'Your learners' });
+      for (const n of [...names].sort()) {
+        group.append(el('option', this.guests.has(n) ? `${n} (yours)` : `${n} (yours, not loaded)`, { value: `guest:${n}` }));
+      }
+      sel.append(group);
+    }
+    sel.value = value;
+  }
+
+  /** Rebuilds every row's algorithm menu, keeping each row's choice. */
+  refreshAlgorithmMenus() {
+    for (const sel of this.rows.querySelectorAll('select')) this.fillAlgorithms(sel, sel.value);
+  }
+
+  /** The name a learner file gives: its base name, in the letters a name may use. */
+  static guestName(fileName) {
+    const base = fileName.replace(/\.(m?js)$/i, '').replace(/[^A-Za-z0-9_.-]+/g, '-').replace(/^-+|-+$/g, '');
+    return (base || 'my-learner').slice(0, 64);
+  }
+
+  /** Loads a learner module the user chose (file input or drop): checked in a throwaway worker first. */
+  async loadGuestFile(f) {
+    const status = $('guest-status');
+    if (!/\.(m?js)$/i.test(f.name)) { status.textContent = `${f.name} is not a JavaScript module (.js or .mjs); nothing was loaded.`; return; }
+    if (f.size > store.MAX_GUEST_SOURCE) { status.textContent = `${f.name} is larger than ${store.MAX_GUEST_SOURCE >> 10} KiB; nothing was loaded.`; return; }
+    const source = await f.text();
+    await this.addGuest(ExperimentView.guestName(f.name), f.name, source, true);
+  }
+
+  /** Adds a checked learner under `name`; with `addRow`, also a row that uses it. */
+  async addGuest(name, file, source, addRow) {
+    const status = $('guest-status');
+    status.textContent = `Checking ${file} in a worker…`;
+    let check;
+    try { check = await checkGuest(source); } catch (err) { check = { ok: false, message: err.message }; }
+    if (!check.ok) { status.textContent = `${file} was not loaded: ${check.message}`; return false; }
+    const had = this.guests.has(name);
+    this.guests.set(name, { source, file });
+    if (addRow && !had && ![...this.rows.querySelectorAll('select')].some((s) => s.value === `guest:${name}`)) {
+      this.addRow({ use: true, guest: name, label: '' });
+    }
+    this.refreshAlgorithmMenus();
+    this.renderGuests();
+    status.textContent = had ? `${file} replaced your learner "${name}".` : `Your learner "${name}" is loaded from ${file}; it runs only in the page's workers.`;
+    this.hooks.changed();
+    return true;
+  }
+
+  /** The list of loaded and kept learners, with their actions. */
+  renderGuests() {
+    const list = $('guest-list');
+    list.replaceChildren();
+    const kept = new Map(store.keptGuests().map((k) => [k.name, k]));
+    for (const [name, g] of this.guests) {
+      const keep = el('button', kept.has(name) && kept.get(name).source === g.source ? 'Kept in this browser' : 'Keep in this browser', { type: 'button' });
+      keep.disabled = kept.has(name) && kept.get(name).source === g.source;
+      keep.addEventListener('click', () => {
+        try { store.keepGuest(name, g.file, g.source); $('guest-status').textContent = `A copy of "${name}" is kept in this browser; it will be shown to you before it runs again.`; } catch (err) { $('guest-status').textContent = err.message; }
+        this.renderGuests();
+      });
+      const unload = el('button', 'Unload', { type: 'button' });
+      unload.addEventListener('click', () => { this.guests.delete(name); this.refreshAlgorithmMenus(); this.renderGuests(); });
+      { const li = el('li'); li.append(el('strong', name), ` — loaded from ${g.file} (${(g.source.length / 1024).toFixed(1)} KiB) `, keep, ' ', unload); list.append(li); }
+    }
+    for (const [name, k] of kept) {
+      if (this.guests.has(name)) continue;
+      const use = el('button', 'Show code and use…', { type: 'button' });
+      use.addEventListener('click', () => this.showKept(k));
+      const forget = el('button', 'Forget', { type: 'button' });
+      forget.addEventListener('click', () => { store.forgetGuest(name); this.renderGuests(); });
+      { const li = el('li'); li.append(el('strong', name), ` — kept in this browser from ${k.file} `, use, ' ', forget); list.append(li); }
+    }
+  }
+
+  /** Shows a kept learner's code; it is loaded only if the user says so. */
+  showKept(k) {
+    $('guest-code-title').textContent = `Your learner "${k.name}" (${k.file})`;
+    $('guest-code-text').textContent = k.source;
+    const dialog = $('guest-code');
+    $('guest-code-use').onclick = async () => { dialog.close(); await this.addGuest(k.name, k.file, k.source, false); };
+    dialog.showModal();
+  }
+
   /** The form as a plain object (autosave, share links). */
   setup() {
     return {
@@ -144,6 +251,7 @@ export class ExperimentView {
       seed: Number($('exp-seed').value), delta: Number($('exp-delta').value),
       learners: [...this.rows.children].map((tr) => {
         const [use, alg, param, label] = tr.querySelectorAll('input, select');
+        if (alg.value.startsWith('guest:')) return { use: use.checked, guest: alg.value.slice(6), value: null, label: label.value };
         return { use: use.checked, algorithm: alg.value, value: param.disabled ? null : Number(param.value), label: label.value };
       }),
       sweep: { parameter: $('sweep-param').value, values: $('sweep-values').value },
@@ -158,7 +266,7 @@ export class ExperimentView {
     $('exp-delta').value = String(d.delta);
     this.rows.replaceChildren();
     for (const l of Array.isArray(d.learners) ? d.learners : DEFAULT_SETUP.learners) {
-      if (l && this.algorithms.has(l.algorithm)) this.addRow(l);
+      if (l && (this.algorithms.has(l.algorithm) || (typeof l.guest === 'string' && l.guest))) this.addRow(l);
     }
     $('sweep-param').value = d.sweep?.parameter || '';
     $('sweep-values').value = d.sweep?.values || '';
@@ -173,9 +281,13 @@ export class ExperimentView {
     [...this.rows.children].forEach((tr, i) => {
       const l = s.learners[i];
       if (!l.use) return;
-      const p = this.algorithms.get(l.algorithm).param;
-      const o = { algorithm: l.algorithm };
-      if (p) o[p.key] = l.value;
+      let o;
+      if (l.guest) o = { guest: l.guest };
+      else {
+        const p = this.algorithms.get(l.algorithm).param;
+        o = { algorithm: l.algorithm };
+        if (p) o[p.key] = l.value;
+      }
       if (l.label.trim()) o.label = l.label.trim();
       learners.push(o);
       rows.push(tr);
@@ -200,7 +312,7 @@ export class ExperimentView {
       const m = /^learners\[(\d+)\]\.(\w+)/.exec(p.path);
       if (m && rows[Number(m[1])]) {
         const [, alg, param, label] = rows[Number(m[1])].querySelectorAll('input, select');
-        const target = { algorithm: alg, label }[m[2]] || param;
+        const target = { algorithm: alg, guest: alg, label }[m[2]] || param;
         target.setAttribute('aria-invalid', 'true');
       }
       const top = { episodes: 'exp-episodes', seeds: 'exp-seeds', seed: 'exp-seed', delta: 'exp-delta' }[p.path];
@@ -217,6 +329,20 @@ export class ExperimentView {
     $('exp-problems').hidden = true;
     let file;
     try { file = this.experimentFile(); } catch (err) { this.showProblems({ problems: [{ path: '', message: err.message }], unlisted: 0 }, []); return; }
+    const named = [...new Set(JSON.parse(file.text).learners.map((l) => l.guest).filter(Boolean))];
+    const missing = named.filter((g) => !this.guests.has(g));
+    if (missing.length) {
+      const kept = new Set(store.keptGuests().map((k) => k.name));
+      this.showProblems({
+        problems: JSON.parse(file.text).learners.flatMap((l, i) => (missing.includes(l.guest) ? [{
+          path: `learners[${i}].guest`,
+          message: `your learner "${l.guest}" is not loaded: ${kept.has(l.guest) ? 'use the copy kept in this browser (Your learners, below the table) or ' : ''}add its file with "Add your learner…" (an experiment, a library entry or a link names a learner, never carries its code)`,
+        }] : [])),
+        unlisted: 0,
+      }, file.rows);
+      return;
+    }
+    const guests = named.map((name) => ({ name, source: this.guests.get(name).source }));
     const t0 = performance.now();
     $('run-exp').disabled = true;
     $('cancel-exp').disabled = false;
@@ -230,7 +356,7 @@ export class ExperimentView {
       $('exp-progress').max = total;
       $('exp-progress').value = done;
       $('exp-status').textContent = `${grouped(done)} / ${grouped(total)} episodes · ${grouped(rate)} per second · about ${((total - done) / Math.max(rate, 1)).toFixed(1)} s left · ${job.workers} worker${job.workers === 1 ? '' : 's'}`;
-    });
+    }, undefined, guests);
     this.running = job;
     try {
       const r = await job.promise;
@@ -278,6 +404,12 @@ export class ExperimentView {
         sel.selectedIndex = Math.min(pick, data.learners.length - 1);
       }
       this.showComparison();
+    }
+    const failed = $('results-failed');
+    failed.replaceChildren();
+    failed.hidden = !data.failed?.length;
+    for (const f of data.failed || []) {
+      failed.append(el('p', `Your learner "${f.label}" failed in seed ${f.seed_index}, episode ${grouped(f.episode)}: ${f.message}. It is left out of these results; the other learners' results stand.`));
     }
     $('export-csv').disabled = !this.results.csv;
     $('save-results').disabled = !r.experiment;

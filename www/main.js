@@ -142,7 +142,7 @@ async function openDemo(file) {
 function setupFromSummary(e) {
   return {
     episodes: e.episodes, seeds: e.seeds, seed: e.seed, delta: e.delta,
-    learners: e.learners.map((l) => ({ use: true, algorithm: l.algorithm, value: l.param, label: l.default_label ? '' : l.label })),
+    learners: e.learners.map((l) => ({ use: true, algorithm: l.algorithm, guest: l.guest ?? undefined, value: l.param, label: l.default_label ? '' : l.label })),
     sweep: e.sweep ? { parameter: e.sweep.parameter, values: e.sweep.values.join(', ') } : { parameter: '', values: '' },
   };
 }
@@ -386,7 +386,10 @@ async function start() {
   document.addEventListener('drop', (e) => {
     e.preventDefault();
     document.body.classList.remove('dropping');
-    openFile(e.dataTransfer.files[0]).catch(fail);
+    const f = e.dataTransfer.files[0];
+    // A learner module dropped anywhere is a learner to add, not a model.
+    if (f && /\.m?js$/i.test(f.name)) experiment.loadGuestFile(f).catch(fail);
+    else openFile(f).catch(fail);
   });
   // The library changed in another tab: show it as it is now.
   window.addEventListener('storage', (e) => {

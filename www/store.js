@@ -139,3 +139,33 @@ function pruneAutosaves() {
 export function loadAutosave() {
   return readAutosave(AUTOSAVE) || (autosaveKeys()[0] && readAutosave(autosaveKeys()[0].k));
 }
+
+// Kept learners: a user's own learner module, kept only when the user asks
+// ("Keep in this browser"), never loaded by itself: the page shows its code
+// before it runs again. One key per learner name.
+const GUEST_PREFIX = 'burnin:v1:learner:';
+const GUEST_FORMAT = 'burnin-kept-learner';
+/** Largest learner module kept, in characters. */
+export const MAX_GUEST_SOURCE = 1 << 20;
+
+/** Keeps a learner module's text under its name (replacing an older copy). */
+export function keepGuest(name, file, source) {
+  if (source.length > MAX_GUEST_SOURCE) throw new Error(`${file} is larger than ${MAX_GUEST_SOURCE >> 10} KiB; it was not kept`);
+  write(GUEST_PREFIX + name, { format: GUEST_FORMAT, version: 1, name, file, source, saved: new Date().toISOString() });
+}
+
+/** The kept learners, [{name, file, source, saved}], by name; unreadable ones are skipped. */
+export function keptGuests() {
+  const out = [];
+  for (let i = 0; i < localStorage.length; i++) {
+    const key = localStorage.key(i);
+    if (!key?.startsWith(GUEST_PREFIX)) continue;
+    try {
+      const e = JSON.parse(localStorage.getItem(key));
+      if (e?.format === GUEST_FORMAT && e.version === 1 && typeof e.source === 'string' && typeof e.name === 'string') out.push(e);
+    } catch { /* a damaged copy is not offered */ }
+  }
+  return out.sort((a, b) => a.name.localeCompare(b.name));
+}
+
+export function forgetGuest(name) { localStorage.removeItem(GUEST_PREFIX + name); }

@@ -5,8 +5,12 @@
 //   check {text}       → done {result}            (a model's summary or problems)
 //   check-experiment {text} → done {result}       ({ok: true} or problems)
 //   generate {spec}    → done {result}            (a model file's text or problems)
-//   run {text, shard, of} → progress {done, total}…, then done {result: shard file text},
-//                        or error {problems} for a bad experiment
+//   run {text, shard, of, guests, skip} → progress {done, total, at}…, then done {result: shard file text},
+//                        or error {problems} for a bad experiment. guests: [{name, source}], the
+//                        user's learner modules (run here, never on the page's thread); skip:
+//                        [{learner, seed_index, episode, message}], learners already given up on.
+//                        at: [learner, seed index, episodes done] of the run in progress.
+//   check-guest {source} → done {result: {ok, message}}  (whether a module exports a learner)
 //   merge {shards}     → done {result: {json, csv}} or problems
 //   catalogue          → done {result}            (algorithms, generators, limits: src/catalogue.rs)
 //   read-document {text} → done {result}          (what a file is, read by the core)
@@ -23,16 +27,38 @@ const SLICE_MS = 20;
 
 const pause = () => new Promise((resolve) => setTimeout(resolve, 0));
 
-async function run(id, text, shard, of) {
-  let job;
+/** A user's learner module, imported from its text: its default export. */
+async function importGuest(source) {
+  const url = URL.createObjectURL(new Blob([source], { type: 'text/javascript' }));
   try {
-    job = new ExperimentRun(text, shard, of);
+    const mod = await import(url);
+    if (typeof mod.default !== 'function') throw new Error('the module has no default export function start(intro) (see examples/uniform.mjs)');
+    return mod.default;
+  } finally {
+    URL.revokeObjectURL(url);
+  }
+}
+
+async function run(id, text, shard, of, guests = [], skip = []) {
+  let job;
+  let starts;
+  try {
+    starts = {};
+    for (const g of guests) starts[g.name] = await importGuest(g.source);
+  } catch (err) {
+    self.postMessage({ type: 'error', id, message: `your learner could not be loaded: ${err.message}` });
+    return;
+  }
+  try {
+    job = new ExperimentRun(text, shard, of, guests.length ? starts : undefined);
   } catch (problems) {
     self.postMessage({ type: 'error', id, problems });
     return;
   }
+  for (const f of skip) job.fail(f.learner, f.seed_index, f.episode, f.message);
   let chunk = 64;
   const total = job.totalEpisodes();
+  const guarded = job.hasGuests();
   try {
     for (;;) {
       if (cancelled.delete(id)) {
@@ -40,11 +66,14 @@ async function run(id, text, shard, of) {
         return;
       }
       const t0 = performance.now();
-      const finished = job.advance(chunk);
+      // With guest learners, say which run is next before stepping it: if a
+      // guest never answers, the page's watchdog knows whose run hung.
+      if (guarded) self.postMessage({ type: 'progress', id, done: job.episodesDone(), total, at: job.current() });
+      const finished = guarded ? job.advanceOneRun(chunk) : job.advance(chunk);
       const dt = performance.now() - t0;
       // Aim each slice at SLICE_MS so a cancel is heard quickly.
       chunk = Math.max(1, Math.min(chunk * 4, Math.round(chunk * SLICE_MS / Math.max(dt, 0.5))));
-      self.postMessage({ type: 'progress', id, done: job.episodesDone(), total });
+      self.postMessage({ type: 'progress', id, done: job.episodesDone(), total, at: job.current() });
       if (finished) break;
       await pause();
     }
@@ -80,7 +109,11 @@ self.onmessage = async (event) => {
     } else if (type === 'generate') {
       self.postMessage({ type: 'done', id, result: generateModel(event.data.spec) });
     } else if (type === 'run') {
-      await run(id, event.data.text, event.data.shard, event.data.of);
+      await run(id, event.data.text, event.data.shard, event.data.of, event.data.guests, event.data.skip);
+    } else if (type === 'check-guest') {
+      let result;
+      try { await importGuest(event.data.source); result = { ok: true }; } catch (err) { result = { ok: false, message: String(err?.message || err) }; }
+      self.postMessage({ type: 'done', id, result });
     } else if (type === 'catalogue') {
       self.postMessage({ type: 'done', id, result: catalogue() });
     } else if (type === 'read-document') {

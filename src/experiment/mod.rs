@@ -548,7 +548,18 @@ impl RunQueue {
     }
 
     /// Runs up to `max` more episodes in total; true when every run is done.
-    pub fn advance(&mut self, mut max: u64) -> bool {
+    pub fn advance(&mut self, max: u64) -> bool {
+        self.step(max, false)
+    }
+
+    /// [`RunQueue::advance`], but never past the end of the run in
+    /// progress, so that [`RunQueue::current`] before the call names the
+    /// only run it touches (the page's watchdog for guest learners).
+    pub fn advance_one_run(&mut self, max: u64) -> bool {
+        self.step(max, true)
+    }
+
+    fn step(&mut self, mut max: u64, one_run: bool) -> bool {
         while max > 0 {
             if self.current.is_none() {
                 let Some(&(p, i)) = self.jobs.get(self.next) else {
@@ -575,12 +586,18 @@ impl RunQueue {
                     self.done += self.points[*p].exp.episodes - run.episodes_done();
                     self.faults.push(fault);
                     self.current = None;
+                    if one_run {
+                        break;
+                    }
                     continue;
                 }
             };
             if finished {
                 let (p, run) = (*p, self.current.take().expect("set above").1);
                 self.records[p].push(run.finish());
+                if one_run {
+                    break;
+                }
             }
         }
         self.is_done()
@@ -619,12 +636,34 @@ impl RunQueue {
         &self.faults
     }
 
-    /// The run in progress: (learner index, seed index, episodes done).
+    /// Records a failure seen outside the core (a guest that never
+    /// answered): the run in progress of that learner is dropped and its
+    /// other runs are skipped.
+    pub fn fail(&mut self, fault: RunFault) {
+        if let Some((p, run)) = &self.current
+            && run.identity().0 == fault.learner
+        {
+            self.done += self.points[*p].exp.episodes - run.episodes_done();
+            self.current = None;
+        }
+        self.faults.push(fault);
+    }
+
+    /// The run in progress, or else the next one to start: (learner index,
+    /// seed index, episodes done); None when every run is done.
     pub fn current(&self) -> Option<(usize, u64, u64)> {
-        self.current.as_ref().map(|(_, r)| {
+        if let Some((_, r)) = &self.current {
             let (l, s) = r.identity();
-            (l, s, r.episodes_done())
-        })
+            return Some((l, s, r.episodes_done()));
+        }
+        self.jobs[self.next.min(self.jobs.len())..]
+            .iter()
+            .map(|&(p, i)| {
+                let seeds = self.points[p].exp.seeds as usize;
+                (i / seeds, (i % seeds) as u64)
+            })
+            .find(|(l, _)| !self.faults.iter().any(|f| f.learner == *l))
+            .map(|(l, s)| (l, s, 0))
     }
 
     /// The finished runs as (point, record) pairs, for a shard file.

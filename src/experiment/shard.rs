@@ -10,7 +10,7 @@ use std::sync::Arc;
 
 use serde::{Deserialize, Serialize};
 
-use super::{Output, Point, RunRecord, assemble, parse_experiment, shard_jobs};
+use super::{Output, Point, RunFault, RunRecord, assemble_without, parse_experiment, shard_jobs};
 use crate::model::Problems;
 
 pub const SHARD_FORMAT: &str = "burnin-shard";
@@ -30,6 +30,10 @@ pub struct ShardFile {
     pub model: Option<String>,
     /// (point, record) for every run of the shard.
     pub records: Vec<(usize, RunRecord)>,
+    /// Guest learners that failed in this shard (the page's pool; the CLI
+    /// stops instead). Their runs are missing from `records`.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub faults: Vec<RunFault>,
 }
 
 impl ShardFile {
@@ -50,6 +54,7 @@ impl ShardFile {
             experiment,
             model,
             records,
+            faults: Vec::new(),
         }
     }
 
@@ -130,15 +135,26 @@ pub fn merge(shards: &[ShardFile], name: &dyn Fn(usize) -> String) -> Result<Out
     let exp = parse_experiment(&first.experiment, Some(&loader))?;
     let points: Vec<Arc<Point>> = exp.points().into_iter().map(Point::new).collect();
     let mut records: Vec<Vec<RunRecord>> = vec![Vec::new(); points.len()];
+    let faults: Vec<RunFault> = shards.iter().flat_map(|s| s.faults.clone()).collect();
+    let failed = |li: usize| faults.iter().any(|f| f.learner == li);
     for (k, s) in shards.iter().enumerate() {
-        let want = shard_jobs(&points, s.shard - 1, n).len();
-        if s.records.len() != want {
+        // A failed learner's runs are left out wherever they ran.
+        let want = shard_jobs(&points, s.shard - 1, n)
+            .iter()
+            .filter(|&&(pt, i)| !failed(i / points[pt].exp.seeds as usize))
+            .count();
+        let kept: Vec<&(usize, RunRecord)> = s
+            .records
+            .iter()
+            .filter(|(_, r)| !failed(r.learner))
+            .collect();
+        if kept.len() != want {
             p.push(
                 name(k),
-                format!("holds {} runs, expected {want}", s.records.len()),
+                format!("holds {} runs, expected {want}", kept.len()),
             );
         }
-        for (point, r) in &s.records {
+        for (point, r) in kept {
             match records.get_mut(*point) {
                 Some(v) => v.push(r.clone()),
                 None => p.push(
@@ -149,5 +165,5 @@ pub fn merge(shards: &[ShardFile], name: &dyn Fn(usize) -> String) -> Result<Out
         }
     }
     std::mem::take(&mut p).into_result()?;
-    Ok(assemble(&exp, &points, records))
+    Ok(assemble_without(&exp, &points, records, faults))
 }

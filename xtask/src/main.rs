@@ -289,8 +289,17 @@ fn browser_checks(www: PathBuf) -> Result<()> {
         if !name.ends_with("-experiment.json") {
             continue;
         }
-        let json = output(Command::new(&cli).args(["run", "--json"]).arg(&p))
-            .ok_or_else(|| format!("burnin run failed on {}", p.display()))?;
+        let mut run = Command::new(&cli);
+        run.args(["run", "--json"]).arg(&p);
+        // A fixture naming a guest learner runs it as the page does, with
+        // the example learner (here a Python process, there a JS module).
+        if name.ends_with("-guest-experiment.json") {
+            let py = root().join("examples/uniform.py");
+            run.arg("--learner")
+                .arg(format!("uniform=python3 {}", py.display()));
+        }
+        let json =
+            output(&mut run).ok_or_else(|| format!("burnin run failed on {}", p.display()))?;
         std::fs::write(out.join(format!("{name}.results.json")), json)
             .map_err(|e| e.to_string())?;
     }
