@@ -14,10 +14,14 @@
 //                                key, native rate, wasm rate, native checksum, wasm checksum
 //   BURNIN_NUMPY                 "python3 SCRIPT MODEL EPISODES": run once per
 //                                ucbvi-hoeffding round; its rate is a sixth column
+//   BURNIN_GUEST_MODEL           the learning workload's model file: time a guest
+//                                learner module (examples/uniform.mjs) against the
+//                                built-in uniform learner in the page, in rounds
+//   BURNIN_GUEST_OUT             where to write one TSV line per round: guest rate, built-in rate
 // Prints the wasm figures (JSON) of the solver and replanning workloads, or
 // of BURNIN_ONLY's learner.
 import { execFileSync } from 'node:child_process';
-import { writeFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { chromium } from 'playwright-core';
 
 const env = process.env;
@@ -58,5 +62,19 @@ if (env.BURNIN_ONLY) {
     }
   }
   writeFileSync(env.BURNIN_PAIRS_OUT, lines.join('\n') + '\n');
+}
+if (env.BURNIN_GUEST_MODEL) {
+  const model = readFileSync(env.BURNIN_GUEST_MODEL, 'utf8');
+  const source = readFileSync(new URL('../../examples/uniform.mjs', import.meta.url), 'utf8');
+  const text = (learner) => `{"format": "burnin-experiment", "version": 1, "episodes": ${quick ? 20000 : 200000}, "seeds": 1,
+    "learners": [${learner}], "model": ${model}}`;
+  const texts = [text('{"guest": "trivial"}'), text('{"algorithm": "uniform"}')];
+  const lines = [];
+  for (let i = 0; i < 3; i++) {
+    const r = JSON.parse(await wasm({ guest: { texts, source } }));
+    lines.push(`${r.guest}\t${r.builtin}`);
+    console.error(`guest\t${r.guest}\t${r.builtin}`);
+  }
+  writeFileSync(env.BURNIN_GUEST_OUT, lines.join('\n') + '\n');
 }
 await browser.close();

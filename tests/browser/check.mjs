@@ -894,6 +894,32 @@ for (const [how, want] of [
   });
 }
 
+await check('a learner module dropped on the learner table, or anywhere on the page, is added as a learner', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  const rows = await page.locator('#learner-rows tr').count();
+  const drop = async (target, name) => {
+    const dt = await page.evaluateHandle(([n, t]) => {
+      const d = new DataTransfer();
+      d.items.add(new File([t], n, { type: 'text/javascript' }));
+      return d;
+    }, [name, readFileSync(join(examples, 'optimist.mjs'), 'utf8')]);
+    await page.dispatchEvent(target, 'dragover', { dataTransfer: dt });
+    await page.dispatchEvent(target, 'drop', { dataTransfer: dt });
+  };
+  await drop('#guest-drop', 'optimist.mjs');
+  await page.waitForFunction(() => /"optimist" is loaded/.test(document.getElementById('guest-status').textContent), null, { timeout: 15000 });
+  await drop('body', 'second-idea.mjs');
+  await page.waitForFunction(() => /"second-idea" is loaded/.test(document.getElementById('guest-status').textContent), null, { timeout: 15000 });
+  assertEqual(await page.locator('#learner-rows tr').count(), rows + 2, 'a row for each');
+  // The model stayed open: a module is never read as a model file.
+  assertEqual((await shownValue(page, defaultName)).data, expected[index.default], 'the model is unchanged');
+  await page.fill('#exp-episodes', '400');
+  await runAndWait(page);
+  const labels = await page.locator('#results-table tbody th').allTextContents();
+  assert(labels.includes('optimist') && labels.includes('second-idea'), `both run: ${labels}`);
+});
+
 await check('a kept learner is shown as code before it runs, and links and files carry only its name', async (page) => {
   await openPage(page);
   await upload(page, 'two-doors-guest-experiment.json', guestFixture);

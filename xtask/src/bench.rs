@@ -113,6 +113,7 @@ pub fn bench(quick: bool) -> Result<()> {
     let dir = browser_dir()?;
     let server = crate::serve::Server::start(www, 0).map_err(|e| format!("cannot listen: {e}"))?;
     let pairs_out = tmp.join("pairs.tsv");
+    let guest_out = tmp.join("guest.tsv");
     let mut node = Command::new("node");
     node.arg(dir.join("bench.mjs"))
         .env("BURNIN_URL", server.url())
@@ -120,6 +121,8 @@ pub fn bench(quick: bool) -> Result<()> {
         .env("BURNIN_CLI", &cli)
         .env("BURNIN_PAIRS", LEARNERS.join(","))
         .env("BURNIN_PAIRS_OUT", &pairs_out)
+        .env("BURNIN_GUEST_MODEL", &model)
+        .env("BURNIN_GUEST_OUT", &guest_out)
         .env(
             "BURNIN_NUMPY",
             format!(
@@ -164,6 +167,52 @@ pub fn bench(quick: bool) -> Result<()> {
         v[v.len() / 2]
     };
     let (t1, t2) = (median(one), median(two));
+
+    step("guest learners as processes (whole-process timings)");
+    let page_guest = std::fs::read_to_string(&guest_out).map_err(|e| e.to_string())?;
+    let py = root().join("examples/uniform.py");
+    let mut process_rates = Vec::new();
+    for (what, learner, batch, episodes) in [
+        (
+            "built-in uniform learner, for reference",
+            r#"{"algorithm": "uniform"}"#,
+            0,
+            k * 2,
+        ),
+        (
+            "Python process, one message per episode (`examples/uniform.py`)",
+            r#"{"guest": "trivial"}"#,
+            1,
+            k / 5,
+        ),
+        (
+            "Python process, batches of 64 (`examples/uniform.py 64`)",
+            r#"{"guest": "trivial"}"#,
+            64,
+            k * 2,
+        ),
+    ] {
+        let exp = tmp.join(format!("guest-{batch}.json"));
+        std::fs::write(
+            &exp,
+            format!(
+                r#"{{"format": "burnin-experiment", "version": 1, "model_path": "learn-model.json",
+                    "episodes": {episodes}, "seeds": 1, "learners": [{learner}]}}"#
+            ),
+        )
+        .map_err(|e| e.to_string())?;
+        let mut secs = Vec::new();
+        for _ in 0..3 {
+            let mut cmd = Command::new(&cli);
+            cmd.args(["run", "--json"]).arg(&exp);
+            if batch > 0 {
+                cmd.arg("--learner")
+                    .arg(format!("trivial=python3 {} {batch}", py.display()));
+            }
+            secs.push(timed(&mut cmd)?);
+        }
+        process_rates.push((what, batch, episodes, episodes as f64 / median(secs)));
+    }
     let _ = std::fs::remove_dir_all(&tmp);
 
     step("writing BENCHMARKS.md");
@@ -347,6 +396,45 @@ pub fn bench(quick: bool) -> Result<()> {
         mb(&native, "peak_memory_bytes"),
         mb(&wasm, "peak_memory_bytes")
     );
+    // The guest contract's overhead: a trivial learner (plays uniformly,
+    // keeps its policy) on the learning workload.
+    let page_rows: Vec<(f64, f64)> = page_guest
+        .lines()
+        .filter_map(|l| l.split_once('\t'))
+        .map(|(g, b)| (num(g), num(b)))
+        .collect();
+    let page_best = best(&page_rows.iter().map(|r| r.0).collect::<Vec<_>>());
+    let page_builtin = best(&page_rows.iter().map(|r| r.1).collect::<Vec<_>>());
+    let _ = writeln!(
+        md,
+        "\n## Guest learners (the learning workload's model, one seed; episodes/s)\n\nThe contract's overhead with a trivial guest that plays uniformly and keeps its policy. In the page, `examples/uniform.mjs` answers once per episode in a worker (best of {} rounds, each with the built-in uniform learner right after it); the processes are whole-process timings of `burnin run` (medians of 3, Python's start-up included).\n\n| guest | K | episodes/s |\n|---|---|---|\n| JS module in the page, one answer per episode | {} | {page_best:.0} |\n| built-in uniform learner in the page, for reference | {} | {page_builtin:.0} |",
+        page_rows.len(),
+        if quick { 20_000 } else { 200_000 },
+        if quick { 20_000 } else { 200_000 },
+    );
+    for (what, _, episodes, rate) in &process_rates {
+        let _ = writeln!(md, "| {what} | {episodes} | {rate:.0} |");
+    }
+    targets.push(format!(
+        "| JS guest in the page ≥ 50 000 episodes/s | {page_best:.0} | {} |",
+        mark(page_best >= 50_000.0)
+    ));
+    for (_, batch, _, rate) in &process_rates {
+        let want = match batch {
+            1 => 5_000.0,
+            64 => 50_000.0,
+            _ => continue,
+        };
+        targets.push(format!(
+            "| Python guest, {} ≥ {want:.0} episodes/s | {rate:.0} | {} |",
+            if *batch == 1 {
+                "one message per episode,"
+            } else {
+                "batches of 64,"
+            },
+            mark(*rate >= want)
+        ));
+    }
     let _ = writeln!(
         md,
         "\n## Targets\n\n| target | measured | status |\n|---|---|---|"

@@ -119,7 +119,8 @@ fn ensure_wasm_tools() -> Result<()> {
 }
 
 /// Builds the core for wasm32 and generates the JS glue in `www/pkg`; copies
-/// the demo models into `www/demo-models`. Returns the `www` folder.
+/// the demo models into `www/demo-models` and the example learner modules
+/// into `www/examples`. Returns the `www` folder.
 pub(crate) fn build_wasm() -> Result<PathBuf> {
     ensure_wasm_tools()?;
     step("building the wasm core");
@@ -144,6 +145,14 @@ pub(crate) fn build_wasm() -> Result<PathBuf> {
                 std::fs::copy(&p, to.join(p.file_name().unwrap())).map_err(|e| e.to_string())?;
             }
         }
+    }
+    // The example learner modules, for the page to offer as downloads.
+    let ex = www.join("examples");
+    let _ = std::fs::remove_dir_all(&ex);
+    std::fs::create_dir_all(&ex).map_err(|e| e.to_string())?;
+    for name in ["uniform.mjs", "optimist.mjs"] {
+        std::fs::copy(root().join("examples").join(name), ex.join(name))
+            .map_err(|e| format!("examples/{name}: {e}"))?;
     }
     Ok(www)
 }
