@@ -153,10 +153,11 @@ export function runExperiment(text, onProgress, workers = POOL_SIZE, guests = []
       const quiet = performance.now() - last;
       if (quiet > guestTimeoutMs && at) c.replace(job.id, new Hung(at, quiet));
     }, Math.min(500, guestTimeoutMs / 4));
+    const settle = () => { clearInterval(watch); current[i].settled = true; };
     return job.promise.then(
-      (r) => { clearInterval(watch); return r; },
+      (r) => { settle(); return r; },
       (err) => {
-        clearInterval(watch);
+        settle();
         if (cancelled && (err instanceof Hung || err === CANCELLED)) return { cancelled: true };
         if (!(err instanceof Hung) || stopped) throw err;
         const [learner, seedIndex, episodes] = err.at;
@@ -168,10 +169,13 @@ export function runExperiment(text, onProgress, workers = POOL_SIZE, guests = []
   const jobs = pool.slice(0, workers).map((_, i) => shard(i, []));
   const cancel = () => {
     cancelled = true;
-    for (const s of current) {
-      // A worker silent for a second is inside a guest's call: stop it now.
-      if (s && s.quiet() > 1000) s.stop(CANCELLED);
-      else s?.job.cancel();
+    for (const s of current) s?.job.cancel();
+    // A worker that has not answered the cancel after a few slices is inside
+    // a guest's call that does not return: stop it.
+    if (guests.length) {
+      setTimeout(() => {
+        for (const s of current) if (s && !s.settled && s.quiet() > 300) s.stop(CANCELLED);
+      }, 400);
     }
   };
   const promise = (async () => {

@@ -894,6 +894,28 @@ for (const [how, want] of [
   });
 }
 
+await check('a run with a learner module cancels promptly, even while the module never answers', async (page) => {
+  await openPage(page);
+  // The watchdog must not be what stops it: Cancel is.
+  await page.evaluate(async () => (await import('./compute.js')).setGuestTimeoutForTest(60000));
+  await upload(page, 'two-doors-guest-experiment.json', guestFixture.replace('"episodes": 300', '"episodes": 1000000').replace('"uniform", "label": "your uniform"', '"bad", "label": "my learner"'));
+  await page.waitForSelector('#panel-experiment:not([hidden])');
+  const source = readFileSync(join(browserDir, 'guests/misbehave.mjs'), 'utf8').replace("'BURNIN_HOW'", "'silent'");
+  await loadGuest(page, 'bad.mjs', source);
+  await page.click('#run-exp');
+  await page.waitForFunction(() => Number(document.getElementById('exp-progress').value) > 0, null, { timeout: 20000 });
+  await page.waitForTimeout(1500);
+  const t0 = Date.now();
+  await page.click('#cancel-exp');
+  await page.waitForFunction(() => /^Cancelled/.test(document.getElementById('exp-status').textContent), null, { timeout: 5000 });
+  const ms = Date.now() - t0;
+  assert(ms < 2000, `cancelled in ${ms} ms`);
+  // The replaced workers run the next experiment.
+  await page.fill('#exp-episodes', '200');
+  await page.selectOption('#learner-rows tr:nth-child(2) select', 'uniform');
+  await runAndWait(page);
+});
+
 await check('a learner module dropped on the learner table, or anywhere on the page, is added as a learner', async (page) => {
   await openPage(page);
   await page.click('#tab-experiment');
