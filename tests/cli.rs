@@ -6,28 +6,7 @@ use serde_json::json;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
 
-/// A scratch folder removed when dropped.
-struct Scratch(PathBuf);
-
-impl Scratch {
-    fn new(tag: &str) -> Scratch {
-        let p = std::env::temp_dir().join(format!("burnin-cli-{tag}-{}", std::process::id()));
-        let _ = std::fs::remove_dir_all(&p);
-        std::fs::create_dir_all(&p).unwrap();
-        Scratch(p)
-    }
-    fn file(&self, name: &str, text: &str) -> PathBuf {
-        let p = self.0.join(name);
-        std::fs::write(&p, text).unwrap();
-        p
-    }
-}
-
-impl Drop for Scratch {
-    fn drop(&mut self) {
-        let _ = std::fs::remove_dir_all(&self.0);
-    }
-}
+use common::Scratch;
 
 struct Run {
     code: i32,

@@ -39,27 +39,20 @@ fn two_doors() -> String {
 }
 const UNIFORM_EPISODE_REGRET: f64 = 0.75;
 
-struct Scratch(PathBuf);
+mod common;
 
-impl Scratch {
-    fn new(tag: &str) -> Scratch {
-        let p = std::env::temp_dir().join(format!("burnin-guest-{tag}-{}", std::process::id()));
-        let _ = std::fs::remove_dir_all(&p);
-        std::fs::create_dir_all(&p).unwrap();
-        std::fs::write(p.join("two-doors.json"), two_doors()).unwrap();
-        Scratch(p)
-    }
-    fn experiment(&self, name: &str, v: Value) -> PathBuf {
-        let p = self.0.join(name);
-        std::fs::write(&p, v.to_string()).unwrap();
-        p
-    }
+use common::Scratch;
+
+/// A scratch folder holding the two-doors model as `two-doors.json`.
+fn scratch(tag: &str) -> Scratch {
+    let d = Scratch::new(&format!("guest-{tag}"));
+    d.file("two-doors.json", &two_doors());
+    d
 }
 
-impl Drop for Scratch {
-    fn drop(&mut self) {
-        let _ = std::fs::remove_dir_all(&self.0);
-    }
+/// Writes an experiment file into the folder.
+fn write_experiment(d: &Scratch, name: &str, v: Value) -> PathBuf {
+    d.file(name, &v.to_string())
 }
 
 fn experiment(model: &str, episodes: u64, seeds: u64, learners: Value) -> Value {
@@ -107,8 +100,9 @@ fn curve(v: &Value, learner: usize, key: &str) -> Vec<f64> {
 /// to 1e-12, with one message per episode and with batches of 64.
 #[test]
 fn process_uniform_learner_pays_the_hand_derived_regret() {
-    let d = Scratch::new("uniform");
-    let e = d.experiment(
+    let d = scratch("uniform");
+    let e = write_experiment(
+        &d,
         "e.json",
         experiment(
             "two-doors.json",
@@ -151,7 +145,8 @@ fn process_uniform_learner_pays_the_hand_derived_regret() {
         assert!(v["learners"][li]["bound"].is_null());
     }
     // Batching changes the messages, not the draws: the same results.
-    let alone = d.experiment(
+    let alone = write_experiment(
+        &d,
         "alone.json",
         experiment("two-doors.json", 300, 3, json!([{"guest": "mine"}])),
     );
@@ -235,13 +230,14 @@ fn mean_and_se(xs: &[f64]) -> (f64, f64) {
 /// different generators, so they agree in distribution, not run for run.
 #[test]
 fn guest_port_of_q_learning_matches_the_built_in_over_64_seeds() {
-    let d = Scratch::new("port");
+    let d = scratch("port");
     std::fs::copy(
         root().join("demo-models/tide-pool-forager.json"),
         d.0.join("tide.json"),
     )
     .unwrap();
-    let e = d.experiment(
+    let e = write_experiment(
+        &d,
         "e.json",
         experiment(
             "tide.json",
@@ -275,8 +271,9 @@ fn guest_port_of_q_learning_matches_the_built_in_over_64_seeds() {
 /// message naming the learner, the seed, the episode and what went wrong.
 #[test]
 fn a_misbehaving_process_is_stopped_with_a_message_naming_run_episode_and_line() {
-    let d = Scratch::new("bad");
-    let e = d.experiment(
+    let d = scratch("bad");
+    let e = write_experiment(
+        &d,
         "e.json",
         experiment(
             "two-doors.json",
@@ -349,8 +346,9 @@ fn a_misbehaving_process_is_stopped_with_a_message_naming_run_episode_and_line()
 /// refuses entries that mix the two kinds or give a guest parameters.
 #[test]
 fn guests_are_named_by_files_and_started_only_by_the_command_line() {
-    let d = Scratch::new("names");
-    let e = d.experiment(
+    let d = scratch("names");
+    let e = write_experiment(
+        &d,
         "e.json",
         experiment("two-doors.json", 10, 2, json!([{"guest": "mine"}])),
     );
@@ -371,7 +369,8 @@ fn guests_are_named_by_files_and_started_only_by_the_command_line() {
         "{}",
         out.stderr
     );
-    let bad = d.experiment(
+    let bad = write_experiment(
+        &d,
         "bad.json",
         experiment(
             "two-doors.json",
@@ -395,8 +394,9 @@ fn guests_are_named_by_files_and_started_only_by_the_command_line() {
 /// results: one process per run keeps runs independent.
 #[test]
 fn sharded_guest_runs_merge_into_the_unsharded_results() {
-    let d = Scratch::new("shards");
-    let e = d.experiment(
+    let d = scratch("shards");
+    let e = write_experiment(
+        &d,
         "e.json",
         experiment(
             "two-doors.json",

@@ -83,3 +83,27 @@ pub fn demo_files() -> Vec<std::path::PathBuf> {
     v.sort();
     v
 }
+
+/// A scratch folder for one test, removed when dropped.
+pub struct Scratch(pub std::path::PathBuf);
+
+impl Scratch {
+    pub fn new(tag: &str) -> Scratch {
+        let p = std::env::temp_dir().join(format!("burnin-test-{tag}-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&p);
+        std::fs::create_dir_all(&p).unwrap();
+        Scratch(p)
+    }
+    /// Writes `text` to `name` in the folder; its path.
+    pub fn file(&self, name: &str, text: &str) -> std::path::PathBuf {
+        let p = self.0.join(name);
+        std::fs::write(&p, text).unwrap();
+        p
+    }
+}
+
+impl Drop for Scratch {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
+}
