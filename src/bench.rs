@@ -160,6 +160,7 @@ pub fn learn_experiment(algorithm: Algorithm, episodes: u64) -> Experiment {
         seed: 1,
         delta: 0.05,
         checkpoints: 64,
+        decompose: false,
         learners: vec![LearnerSpec {
             label: algorithm.key().into(),
             source: Source::Builtin(algorithm),

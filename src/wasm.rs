@@ -400,6 +400,7 @@ pub fn read_document(text: &str) -> JsValue {
                 set(&obj, "kind", "results");
                 set(&obj, "json", out.to_json());
                 set(&obj, "csv", out.to_csv());
+                set(&obj, "cellsCsv", out.cells_csv());
             }
             Err(p) => return problems_value(&p),
         },
@@ -437,7 +438,8 @@ pub fn check_experiment(text: &str) -> JsValue {
     }
 }
 
-/// Merges shard files' texts into `{json, csv}` of the results, or problems.
+/// Merges shard files' texts into `{json, csv, cellsCsv}` of the results
+/// (`cellsCsv`: where regret was paid, by cell), or problems.
 #[wasm_bindgen(js_name = mergeShards)]
 pub fn merge_shards(shards: Vec<String>) -> JsValue {
     let mut files = Vec::with_capacity(shards.len());
@@ -458,6 +460,7 @@ pub fn merge_shards(shards: Vec<String>) -> JsValue {
             let obj = Object::new();
             set(&obj, "json", out.to_json());
             set(&obj, "csv", out.to_csv());
+            set(&obj, "cellsCsv", out.cells_csv());
             obj.into()
         }
         Err(p) => problems_value(&p),

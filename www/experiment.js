@@ -10,7 +10,7 @@ import { sweepableParams } from './generator-form.js';
 
 /** The ready experiment of a first visit: a few seconds in the browser. */
 export const DEFAULT_SETUP = {
-  episodes: 3000, seeds: 8, seed: 1, delta: 0.05,
+  episodes: 3000, seeds: 8, seed: 1, delta: 0.05, decompose: true,
   learners: [
     { use: true, algorithm: 'mvp', value: 1, label: 'MVP, theory constants' },
     { use: true, algorithm: 'mvp', value: 0.002, label: 'MVP ×0.002' },
@@ -89,11 +89,13 @@ export class ExperimentView {
     for (const id of ['chart-view', 'show-bands', 'show-lower', 'show-bounds']) $(id).addEventListener('change', () => this.draw());
     for (const r of document.querySelectorAll('input[name=axes]')) r.addEventListener('change', () => this.draw());
     $('heat-learner').addEventListener('change', () => this.drawHeat());
-    for (const id of ['cmp-a', 'cmp-b']) $(id).addEventListener('change', () => { this.showComparison(); if ($('chart-view').value === 'difference') this.draw(); });
+    for (const id of ['cmp-a', 'cmp-b']) $(id).addEventListener('change', () => { this.showComparison(); if ($('chart-view').value === 'difference') this.draw(); if ($('heat-view').value === 'regret-diff') this.drawHeat(); });
     $('export-png').addEventListener('click', () => this.exportPng());
     $('export-svg').addEventListener('click', () => this.exportSvg());
     $('export-json').addEventListener('click', () => download(`${this.fileBase()}-results.json`, this.results.text, 'application/json'));
     $('export-csv').addEventListener('click', () => download(`${this.fileBase()}-results.csv`, this.results.csv, 'text/csv'));
+    $('export-cells').addEventListener('click', () => download(`${this.fileBase()}-regret-by-cell.csv`, this.results.cellsCsv, 'text/csv'));
+    $('heat-view').addEventListener('change', () => this.drawHeat());
     $('save-results').addEventListener('click', () => hooks.saveResults(this.results.experiment, this.results.text));
     $('present').addEventListener('click', () => this.present());
     $('present-close').addEventListener('click', () => this.closePresent());
@@ -249,6 +251,7 @@ export class ExperimentView {
     return {
       episodes: Number($('exp-episodes').value), seeds: Number($('exp-seeds').value),
       seed: Number($('exp-seed').value), delta: Number($('exp-delta').value),
+      decompose: $('exp-decompose').checked,
       learners: [...this.rows.children].map((tr) => {
         const [use, alg, param, label] = tr.querySelectorAll('input, select');
         if (alg.value.startsWith('guest:')) return { use: use.checked, guest: alg.value.slice(6), value: null, label: label.value };
@@ -264,6 +267,7 @@ export class ExperimentView {
     $('exp-seeds').value = String(d.seeds);
     $('exp-seed').value = String(d.seed);
     $('exp-delta').value = String(d.delta);
+    $('exp-decompose').checked = Boolean(d.decompose);
     this.rows.replaceChildren();
     for (const l of Array.isArray(d.learners) ? d.learners : DEFAULT_SETUP.learners) {
       if (l && (this.algorithms.has(l.algorithm) || (typeof l.guest === 'string' && l.guest))) this.addRow(l);
@@ -293,6 +297,7 @@ export class ExperimentView {
       rows.push(tr);
     });
     const exp = { format: 'burnin-experiment', version: 1, name: `${m.name} experiment`, episodes: s.episodes, seeds: s.seeds, seed: s.seed, delta: s.delta, learners };
+    if (s.decompose) exp.decompose = true;
     if (s.sweep.parameter) {
       exp.sweep = { parameter: s.sweep.parameter, values: s.sweep.values.split(/[,\s]+/).filter(Boolean).map(Number) };
     }
@@ -369,7 +374,7 @@ export class ExperimentView {
         this.showProblems(r, file.rows);
       } else {
         const secs = (performance.now() - t0) / 1000;
-        this.setResults({ text: r.json, csv: r.csv, experiment: file.text });
+        this.setResults({ text: r.json, csv: r.csv, cellsCsv: r.cellsCsv, experiment: file.text });
         $('exp-status').textContent = `Done in ${secs.toFixed(1)} s on ${job.workers} worker${job.workers === 1 ? '' : 's'}.`;
         this.hooks.changed();
         $('results').scrollIntoView({ block: 'start', behavior: 'instant' });
@@ -412,6 +417,10 @@ export class ExperimentView {
       failed.append(el('p', `Your learner "${f.label}" failed in seed ${f.seed_index}, episode ${grouped(f.episode)}: ${f.message}. It is left out of these results; the other learners' results stand.`));
     }
     $('export-csv').disabled = !this.results.csv;
+    const decomposed = !sweep && data.learners.some((l) => l.regret_by_cell?.length);
+    $('export-cells').disabled = !decomposed || !this.results.cellsCsv;
+    for (const o of $('heat-view').options) if (o.value !== 'visits') o.disabled = !decomposed || (o.value === 'regret-diff' && data.learners.length < 2);
+    if ($('heat-view').selectedOptions[0]?.disabled) $('heat-view').value = 'visits';
     $('save-results').disabled = !r.experiment;
     $('results').hidden = false;
     const heatSel = $('heat-learner');
@@ -573,29 +582,68 @@ export class ExperimentView {
     $('results-table').replaceChildren(table);
   }
 
+  /**
+   * The step × state map of the chosen view: mean visits; where a learner's
+   * regret is paid (the core's exact decomposition, summed over actions, the
+   * action split on hover); or that map's difference between the compared
+   * learners A and B.
+   */
   drawHeat() {
     const d = this.results?.data;
     if (!d || d.format === 'burnin-sweep') return;
-    const l = d.learners[Number($('heat-learner').value) || 0];
+    const view = $('heat-view').value;
+    const byLabel = (id) => d.learners.find((x) => x.label === $(id).value) || d.learners[0];
+    const l = view === 'regret-diff' ? byLabel('cmp-a') : d.learners[Number($('heat-learner').value) || 0];
+    const other = view === 'regret-diff' ? byLabel('cmp-b') : null;
+    $('heat-learner').disabled = view === 'regret-diff';
+    const total = (x) => x.regret_mean[x.regret_mean.length - 1];
+    const cell = (h, s) => {
+      if (view === 'visits') return l.visits[h][s];
+      const x = l.regret_by_step_state[h][s];
+      return other ? x - other.regret_by_step_state[h][s] : x;
+    };
     const H = l.visits.length, S = l.visits[0].length;
     let hi = 0;
-    for (const row of l.visits) for (const x of row) hi = Math.max(hi, x);
+    for (let h = 0; h < H; h++) for (let s = 0; s < S; s++) hi = Math.max(hi, Math.abs(cell(h, s)));
+    const states = d.state_labels?.length ? d.state_labels : (this.hooks.model().states || []);
+    const actions = d.action_labels || [];
+    const title = { visits: 'Visits per step and state', regret: 'Where regret is paid', 'regret-diff': 'Where regret is paid: A − B' }[view];
+    $('heat-title').textContent = title;
+    let caption;
+    if (view === 'visits') caption = 'Mean visits of each (step, state) per run; darker is visited more.';
+    else if (view === 'regret') {
+      const shown = l.regret_by_state.reduce((a, b) => a + b, 0);
+      caption = `${l.label}: mean regret paid in each (step, state), the exact occupancy × gap summed over its episodes (hover for the split by action); darker pays more. The cells hold ${short(shown)} of its regret ${short(total(l))} at K (${(100 * shown / Math.max(total(l), 1e-300)).toFixed(1)}%).`;
+    } else {
+      caption = `${l.label} (A) minus ${other.label} (B): regret paid in each (step, state); ember where A pays more, teal where B does. Totals at K: A ${short(total(l))}, B ${short(total(other))}.`;
+    }
+    $('heat-caption').textContent = caption;
     const table = el('table');
     const head = el('tr');
     head.append(el('th', 'state'));
     for (let h = 0; h < Math.min(H, 60); h++) head.append(el('th', `h=${h + 1}`));
     table.createTHead().append(head);
     const body = table.createTBody();
-    const states = this.hooks.model().states || [];
     for (let s = 0; s < Math.min(S, 200); s++) {
       const tr = el('tr');
       tr.append(el('th', states[s] ?? `state ${s}`));
       for (let h = 0; h < Math.min(H, 60); h++) {
-        const x = l.visits[h][s];
-        const t = hi > 0 ? x / hi : 0;
-        const td = el('td', x >= 100 ? grouped(x) : x.toFixed(1));
-        td.style.background = valueColour(t);
-        td.style.color = inkOn(t);
+        const x = cell(h, s);
+        const t = hi > 0 ? Math.abs(x) / hi : 0;
+        const td = el('td', view === 'visits' && x >= 100 ? grouped(x) : view === 'visits' ? x.toFixed(1) : short(x), { 'data-value': String(x) });
+        if (view === 'regret-diff') {
+          td.style.background = x === 0 ? '' : `color-mix(in srgb, ${x > 0 ? 'var(--ember)' : 'var(--teal)'} ${Math.round(t * 85)}%, var(--card))`;
+          td.style.color = t > 0.55 ? '#fff' : '';
+        } else {
+          td.style.background = valueColour(t);
+          td.style.color = inkOn(t);
+        }
+        if (view !== 'visits') {
+          const split = (x2) => x2.regret_by_cell[h][s].map((v, a) => `${actions[a] ?? `action ${a}`} ${short(v)}`).join(', ');
+          td.title = other
+            ? `h=${h + 1}, ${states[s] ?? s}: A ${split(l)}; B ${split(other)}`
+            : `h=${h + 1}, ${states[s] ?? s}: ${short(x)} (${(100 * x / Math.max(total(l), 1e-300)).toFixed(1)}% of the regret at K) — ${split(l)}`;
+        }
         tr.append(td);
       }
       body.append(tr);

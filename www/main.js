@@ -143,6 +143,7 @@ function setupFromSummary(e) {
   return {
     episodes: e.episodes, seeds: e.seeds, seed: e.seed, delta: e.delta,
     learners: e.learners.map((l) => ({ use: true, algorithm: l.algorithm, guest: l.guest ?? undefined, value: l.param, label: l.default_label ? '' : l.label })),
+    decompose: e.decompose,
     sweep: e.sweep ? { parameter: e.sweep.parameter, values: e.sweep.values.join(', ') } : { parameter: '', values: '' },
   };
 }
@@ -162,7 +163,7 @@ async function openText(text, label) {
   }
   if (doc.kind === 'results') {
     try {
-      experiment.setResults({ text: doc.json, csv: doc.csv, experiment: null });
+      experiment.setResults({ text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, experiment: null });
       showTab('experiment');
       notice(`Showing results from ${label}.`);
     } catch (err) {
@@ -286,7 +287,7 @@ async function openEntry(id) {
       if (doc.ok && doc.kind === 'experiment') experiment.applySetup(setupFromSummary(doc.experiment));
     }
     const results = e.results ? await readDocument(e.results) : null;
-    if (results?.ok && results.kind === 'results') { experiment.setResults({ text: results.json, csv: results.csv, experiment: e.experiment }); showTab('experiment'); } else showTab('solution');
+    if (results?.ok && results.kind === 'results') { experiment.setResults({ text: results.json, csv: results.csv, cellsCsv: results.cellsCsv, experiment: e.experiment }); showTab('experiment'); } else showTab('solution');
     saveWork();
   }
 }
@@ -412,7 +413,11 @@ async function start() {
     const shown = await openModel(saved.model, saved.source?.name || 'your last model', saved.source || { kind: 'file', name: 'autosave' }, saved.generator || null);
     if (shown) {
       experiment.applySetup(saved.setup);
-      if (saved.results) experiment.setResults(saved.results);
+      if (saved.results) {
+        // The CSVs are the core's to write: read the saved results again.
+        const doc = await readDocument(saved.results.text);
+        experiment.setResults(doc.ok && doc.kind === 'results' ? { ...saved.results, csv: doc.csv, cellsCsv: doc.cellsCsv } : saved.results);
+      }
     }
     if (shown !== false) return;
   }

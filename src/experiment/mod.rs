@@ -18,7 +18,7 @@ mod spec;
 pub use shard::{SHARD_FORMAT, SHARD_VERSION, ShardFile, merge};
 
 pub use results::{
-    BOOTSTRAP_RESAMPLES, Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS, RESULTS_FORMAT,
+    BOOTSTRAP_RESAMPLES, Cell, Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS, RESULTS_FORMAT,
     RESULTS_VERSION, Results, SETTLED_SLOPE, SLOPE_WINDOW_DECADES, SWEEP_FORMAT, SweepLearner,
     SweepResults, burn_in, burn_in_interval, csv_field, parse_results, summarise, tail_slope,
     verdict,
@@ -35,7 +35,7 @@ use rand::SeedableRng;
 
 use crate::learn::{AnyLearner, GuestIntro, GuestLearner, Guests, LearnRng, Learner, PolicyView};
 use crate::sample::{self, Sampler};
-use crate::solve::{Evaluator, solve};
+use crate::solve::{Evaluator, RegretCells, solve};
 
 /// SplitMix64's output function (Steele, Lea & Flood, "Fast splittable
 /// pseudorandom number generators", OOPSLA 2014).
@@ -92,6 +92,9 @@ pub struct Point {
     /// V*₁(ρ).
     pub optimal_value: f64,
     pub checkpoints: Vec<u64>,
+    /// The gaps Δ_h(s,a), `[(h·S + s)·A + a]`, for the regret decomposition
+    /// (empty unless the experiment asks for it).
+    pub gaps: Vec<f64>,
     /// Starts the experiment's guest learners (None: it has none, or they
     /// cannot run here).
     pub guests: Option<Guests>,
@@ -115,11 +118,16 @@ impl Point {
 
     /// A point whose guest learners `guests` starts.
     pub fn with_guests(exp: Experiment, guests: Option<Guests>) -> Arc<Point> {
-        let optimal_value = solve(&exp.model).optimal_value;
+        let sol = solve(&exp.model);
         Arc::new(Point {
             sampler: Sampler::new(&exp.model),
             checkpoints: checkpoints(exp.episodes, exp.checkpoints),
-            optimal_value,
+            optimal_value: sol.optimal_value,
+            gaps: if exp.decompose {
+                sol.gaps().into_raw_vec_and_offset().0
+            } else {
+                Vec::new()
+            },
             exp,
             guests,
         })
@@ -169,6 +177,11 @@ pub struct RunRecord {
     pub within: Vec<u64>,
     /// Visits of each (h, s), `[h·S + s]`.
     pub visits: Vec<u64>,
+    /// Where the run's regret was paid: Σ over its episodes of
+    /// d_h^π(s,a)·Δ_h(s,a), `[(h·S + s)·A + a]` (it sums to the run's final
+    /// regret; `RegretCells`). Empty unless the experiment has `decompose`.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub regret_cells: Vec<f64>,
 }
 
 /// Why a run stopped early: its guest learner failed.
@@ -210,6 +223,12 @@ struct RunState {
     cached: Option<(u64, f64)>,
     next_cp: usize,
     record: RunRecord,
+    cells: RegretCells,
+    /// The current policy's regret by cell (its non-zero cells), and how
+    /// many episodes used it since it was last added to
+    /// `record.regret_cells`.
+    policy_cells: Vec<(u32, f64)>,
+    policy_episodes: u64,
 }
 
 impl Run {
@@ -249,6 +268,11 @@ impl Run {
             first_within: vec![0; ctx.exp.eps_targets.len()],
             within: vec![0; ctx.exp.eps_targets.len()],
             visits: vec![0; m.horizon() * m.n_states()],
+            regret_cells: if ctx.exp.decompose {
+                vec![0.0; m.horizon() * m.n_states() * m.n_actions()]
+            } else {
+                Vec::new()
+            },
         };
         Run {
             learner,
@@ -261,6 +285,9 @@ impl Run {
                 cached: None,
                 next_cp: 0,
                 record,
+                cells: RegretCells::new(m),
+                policy_cells: Vec::new(),
+                policy_episodes: 0,
                 ctx,
             },
         }
@@ -287,6 +314,7 @@ impl Run {
     pub fn finish(self) -> RunRecord {
         let mut state = self.state;
         assert_eq!(state.done, state.ctx.exp.episodes, "the run is complete");
+        state.flush_cells();
         state.record.model_updates = self.learner.model_updates();
         state.record
     }
@@ -326,9 +354,14 @@ impl RunState {
                     };
                     let r = episode_regret(ctx.optimal_value, value);
                     self.cached = Some((version, r));
+                    self.flush_cells();
+                    if ctx.exp.decompose {
+                        self.place_regret(learner.policy(), r);
+                    }
                     r
                 }
             };
+            self.policy_episodes += 1;
             let mut s = ctx.sampler.start(&mut self.rng);
             let mut ret = 0.0;
             for h in 0..h_n {
@@ -368,6 +401,60 @@ impl RunState {
     }
 }
 
+impl RunState {
+    /// The cells of a new policy whose episode regret is `r`.
+    fn place_regret(&mut self, view: PolicyView<'_>, r: f64) {
+        if r == 0.0 {
+            // Zero as the curves count it: nothing to place.
+            self.policy_cells.clear();
+            return;
+        }
+        let ctx = Arc::clone(&self.ctx);
+        let m = &ctx.exp.model;
+        let s_n = m.n_states();
+        self.cells.fill(
+            m,
+            &ctx.gaps,
+            |h, s, row| policy_row(&view, s_n, h, s, row),
+            &mut self.policy_cells,
+        );
+    }
+
+    /// Adds the current policy's cells, once per episode that used it, to
+    /// the run's totals.
+    fn flush_cells(&mut self) {
+        let n = self.policy_episodes as f64;
+        if n > 0.0 {
+            for &(i, c) in &self.policy_cells {
+                self.record.regret_cells[i as usize] += n * c;
+            }
+        }
+        self.policy_episodes = 0;
+    }
+}
+
+/// π_h(·|s) of a policy view: the action of a deterministic choice, or None
+/// with the distribution in `row`.
+fn policy_row(
+    view: &PolicyView<'_>,
+    s_n: usize,
+    h: usize,
+    s: usize,
+    row: &mut [f64],
+) -> Option<usize> {
+    let a_n = row.len();
+    match *view {
+        PolicyView::Greedy(p) => return Some(p[h * s_n + s] as usize),
+        PolicyView::Mixed { greedy, epsilon } => {
+            row.fill(epsilon / a_n as f64);
+            row[greedy[h * s_n + s] as usize] += 1.0 - epsilon;
+        }
+        PolicyView::Uniform => row.fill(1.0 / a_n as f64),
+        PolicyView::Table(p) => row.copy_from_slice(&p[(h * s_n + s) * a_n..][..a_n]),
+    }
+    None
+}
+
 /// The host of a point built without one: every guest fails to start.
 struct NoGuests;
 
@@ -398,6 +485,10 @@ pub fn try_run_all(ctx: &Arc<Point>) -> Result<Vec<RunRecord>, RunFault> {
 
 /// What an experiment produces: results, or sweep results for a sweep.
 #[derive(Debug, Clone, PartialEq)]
+#[allow(
+    clippy::large_enum_variant,
+    reason = "one value per experiment; boxing buys nothing"
+)]
 pub enum Output {
     Single(Results),
     Sweep(SweepResults),
@@ -414,6 +505,31 @@ impl Output {
         match self {
             Output::Single(r) => r.to_csv(),
             Output::Sweep(r) => r.to_csv(),
+        }
+    }
+    /// Where regret was paid, by (learner, h, s, a); for a sweep, each
+    /// point's rows with the swept value in front.
+    pub fn cells_csv(&self) -> String {
+        match self {
+            Output::Single(r) => r.cells_csv(),
+            Output::Sweep(r) => {
+                let mut o = format!("{},", r.parameter);
+                let mut first = true;
+                for (p, v) in r.points.iter().zip(&r.values) {
+                    for (i, line) in p.cells_csv().lines().enumerate() {
+                        if i == 0 {
+                            if first {
+                                o.push_str(line);
+                                o.push('\n');
+                                first = false;
+                            }
+                            continue;
+                        }
+                        o.push_str(&format!("{v},{line}\n"));
+                    }
+                }
+                o
+            }
         }
     }
 }

@@ -42,6 +42,45 @@ pub struct EpsResult {
     pub pac_order: f64,
 }
 
+/// One (h, s, a) cell of a regret decomposition: 0-based indices, the mean
+/// regret paid there, and its share of the learner's regret at K.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Cell {
+    pub step: usize,
+    pub state: usize,
+    pub action: usize,
+    pub regret: f64,
+    pub share: f64,
+}
+
+impl LearnerResult {
+    /// The `n` cells where most regret was paid, largest first (ties by
+    /// position); cells with no regret are left out.
+    pub fn top_cells(&self, n: usize) -> Vec<Cell> {
+        let total = self.regret_mean.last().copied().unwrap_or(0.0);
+        let mut cells: Vec<Cell> = self
+            .regret_by_cell
+            .iter()
+            .enumerate()
+            .flat_map(|(h, hs)| {
+                hs.iter().enumerate().flat_map(move |(s, c)| {
+                    c.iter().enumerate().map(move |(a, &x)| Cell {
+                        step: h,
+                        state: s,
+                        action: a,
+                        regret: x,
+                        share: if total > 0.0 { x / total } else { 0.0 },
+                    })
+                })
+            })
+            .filter(|c| c.regret > 0.0)
+            .collect();
+        cells.sort_by(|a, b| b.regret.total_cmp(&a.regret));
+        cells.truncate(n);
+        cells
+    }
+}
+
 /// One learner's summary.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct LearnerResult {
@@ -76,6 +115,18 @@ pub struct LearnerResult {
     pub episodes_to_eps: Vec<EpsResult>,
     /// Mean visits of each (h, s) per run, `[h][s]`.
     pub visits: Vec<Vec<f64>>,
+    /// Where the regret was paid, mean over seeds: Σ over episodes of
+    /// d_h^π(s,a)·Δ_h(s,a), `[h][s][a]`; it sums to the mean regret at K.
+    /// Empty (and absent from the file) unless the experiment has
+    /// `"decompose": true`.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub regret_by_cell: Vec<Vec<Vec<f64>>>,
+    /// `regret_by_cell` summed over actions, `[h][s]`.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub regret_by_step_state: Vec<Vec<f64>>,
+    /// `regret_by_cell` summed over steps and actions, `[s]`.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub regret_by_state: Vec<f64>,
     /// The learner's published regret bound, as an order.
     pub bound: Option<Bound>,
 }
@@ -91,6 +142,12 @@ pub struct Results {
     pub actions: usize,
     pub horizon: usize,
     pub optimal_value: f64,
+    /// The model's state and action labels (for the decomposition's tables;
+    /// empty in files written before they were added).
+    #[serde(default)]
+    pub state_labels: Vec<String>,
+    #[serde(default)]
+    pub action_labels: Vec<String>,
     pub episodes: u64,
     pub seeds: u64,
     pub seed: u64,
@@ -375,7 +432,36 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
                         .collect()
                 })
                 .collect();
+            let aa = m.n_actions();
+            let n_runs = runs.len() as f64;
+            let regret_by_cell: Vec<Vec<Vec<f64>>> = (0..if exp.decompose { hh } else { 0 })
+                .map(|h| {
+                    (0..ss)
+                        .map(|s| {
+                            (0..aa)
+                                .map(|a| {
+                                    let i = (h * ss + s) * aa + a;
+                                    runs.iter()
+                                        .map(|r| r.regret_cells.get(i).copied().unwrap_or(0.0))
+                                        .sum::<f64>()
+                                        / n_runs
+                                })
+                                .collect()
+                        })
+                        .collect()
+                })
+                .collect();
+            let regret_by_step_state: Vec<Vec<f64>> = regret_by_cell
+                .iter()
+                .map(|hs| hs.iter().map(|cell| cell.iter().sum()).collect())
+                .collect();
+            let regret_by_state = (0..if exp.decompose { ss } else { 0 })
+                .map(|s| regret_by_step_state.iter().map(|hs| hs[s]).sum())
+                .collect();
             LearnerResult {
+                regret_by_cell,
+                regret_by_step_state,
+                regret_by_state,
                 label: spec.label.clone(),
                 algorithm: spec.kind_key().to_owned(),
                 guest: spec.guest().map(str::to_owned),
@@ -410,6 +496,8 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
         actions: m.n_actions(),
         horizon: m.horizon(),
         optimal_value: ctx.optimal_value,
+        state_labels: m.states().to_vec(),
+        action_labels: m.actions().to_vec(),
         episodes: exp.episodes,
         seeds: exp.seeds,
         seed: exp.seed,
@@ -425,6 +513,36 @@ impl Results {
     /// The results as JSON (format v1).
     pub fn to_json(&self) -> String {
         serde_json::to_string_pretty(self).expect("results hold no non-finite numbers") + "\n"
+    }
+
+    /// Where each learner's regret was paid, one row per (learner, h, s, a)
+    /// with h 1-based as shown to people: mean regret over seeds and its
+    /// share of the learner's regret at K.
+    pub fn cells_csv(&self) -> String {
+        let mut o = String::from(
+            "learner,algorithm,step,state,action,state_label,action_label,regret,share\n",
+        );
+        for l in &self.learners {
+            let total = l.regret_mean.last().copied().unwrap_or(0.0);
+            for (h, hs) in l.regret_by_cell.iter().enumerate() {
+                for (s, cell) in hs.iter().enumerate() {
+                    for (a, &x) in cell.iter().enumerate() {
+                        let label =
+                            |v: &[String], i: usize| csv_field(v.get(i).map_or("", String::as_str));
+                        o.push_str(&format!(
+                            "{},{},{},{s},{a},{},{},{x},{}\n",
+                            csv_field(&l.label),
+                            l.algorithm,
+                            h + 1,
+                            label(&self.state_labels, s),
+                            label(&self.action_labels, a),
+                            if total > 0.0 { x / total } else { 0.0 },
+                        ));
+                    }
+                }
+            }
+        }
+        o
     }
 
     /// One row per (learner, checkpoint).

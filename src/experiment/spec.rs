@@ -194,6 +194,10 @@ pub struct Experiment {
     pub delta: f64,
     /// Requested number of log-spaced checkpoints.
     pub checkpoints: u64,
+    /// Whether runs record where their regret is paid (`RegretCells`): off
+    /// by default, since it costs a forward pass per policy change (1.7–2.3×
+    /// the run time of learners that change policy often; BENCHMARKS.md).
+    pub decompose: bool,
     /// The ε of the empirical sample complexity (default H/10 and H/20).
     pub eps_targets: Vec<f64>,
     pub learners: Vec<LearnerSpec>,
@@ -209,6 +213,7 @@ pub struct ExperimentSummary {
     pub seed: u64,
     pub delta: f64,
     pub checkpoints: u64,
+    pub decompose: bool,
     pub learners: Vec<LearnerSummary>,
     /// `{"parameter": key, "values": […]}`, when the experiment sweeps.
     pub sweep: Option<serde_json::Value>,
@@ -252,6 +257,7 @@ impl Experiment {
             seed: self.seed,
             delta: self.delta,
             checkpoints: self.checkpoints,
+            decompose: self.decompose,
             learners: self
                 .learners
                 .iter()
@@ -297,6 +303,7 @@ lax_object! {
         seed: Lax<f64>,
         delta: Lax<f64>,
         checkpoints: Lax<f64>,
+        decompose: Lax<bool>,
         eps_targets: Lax<Vec<Lax<f64>>>,
         learners: Lax<Vec<Lax<RawLearner>>>,
         sweep: serde_json::Value,
@@ -676,6 +683,10 @@ fn convert(
         2,
         MAX_CHECKPOINTS,
     );
+    let decompose = match e.decompose {
+        None => Some(false),
+        Some(v) => r.take("decompose", v, "true or false"),
+    };
     let eps_targets = match e.eps_targets {
         None => Some(None),
         Some(v) => r
@@ -754,6 +765,7 @@ fn convert(
         seed: seed?,
         delta: delta?,
         checkpoints: checkpoints?,
+        decompose: decompose?,
         learners: specs,
     };
     if e.sweep.is_some() {

@@ -242,6 +242,38 @@ await check('an experiment run in the page gives the same regret as `burnin run`
   assert((await page.locator('#chart-caption').textContent()).length > 0, 'caption');
 });
 
+await check('where regret is paid: the page shows the core\'s exact decomposition, equal to `burnin run`\'s, summing to the regret, and compares two learners', async (page) => {
+  await openPage(page);
+  await upload(page, 'ferry-experiment.json', ferry);
+  await page.waitForSelector('#panel-experiment:not([hidden])');
+  assert(await page.isChecked('#exp-decompose'), 'the file asks for the decomposition and the form says so');
+  await runAndWait(page);
+  const r = await resultsJson(page);
+  ferryCli.learners.forEach((l, i) => {
+    assertEqual(JSON.stringify(r.learners[i].regret_by_cell), JSON.stringify(l.regret_by_cell), `${l.label}: the cells equal the CLI's, every bit`);
+    const k = l.regret_mean[l.regret_mean.length - 1];
+    const sum = l.regret_by_cell.flat(2).reduce((a, b) => a + b, 0);
+    assert(Math.abs(sum - k) <= 1e-9 * Math.max(k, 1), `${l.label}: the cells sum to the regret at K (${sum} vs ${k})`);
+  });
+  await page.selectOption('#heat-view', 'regret');
+  const shown = await page.locator('#heat-wrap td[data-value]').evaluateAll((tds) => tds.map((t) => Number(t.dataset.value)));
+  const want = ferryCli.learners[0].regret_by_step_state;
+  const S = want[0].length, H = want.length;
+  assertEqual(shown.length, S * H, 'a cell per (state, step)');
+  for (let s = 0; s < S; s++) for (let h = 0; h < H; h++) assertEqual(shown[s * H + h], want[h][s], `map (h=${h + 1}, s=${s})`);
+  assert(/of its regret .* at K \(100\.0%\)/.test(await page.locator('#heat-caption').textContent()), 'the share is printed');
+  const tip = await page.locator('#heat-wrap td[title]').first().getAttribute('title');
+  assert(/^h=1, .*% of the regret at K\) — /.test(tip), `the action split on hover: ${tip}`);
+  await page.selectOption('#heat-view', 'regret-diff');
+  const diff = await page.locator('#heat-wrap td[data-value]').evaluateAll((tds) => tds.map((t) => Number(t.dataset.value)));
+  const [a, b] = [ferryCli.learners[0], ferryCli.learners[1]];
+  assertEqual(diff[0], a.regret_by_step_state[0][0] - b.regret_by_step_state[0][0], 'the difference map is A − B');
+  const cells = await downloadText(page, '#export-cells');
+  assert(cells.text.startsWith('learner,algorithm,step,state,action,state_label,action_label,regret,share\n'), 'the cells CSV from the core');
+  await page.selectOption('#heat-view', 'regret');
+  await page.locator('#heat-section').screenshot({ path: join(out, 'regret-map.png') });
+});
+
 await check('charts and results export as PNG, SVG, JSON and CSV, and results re-open', async (page, context) => {
   await openPage(page);
   await upload(page, 'ferry-experiment.json', ferry);

@@ -52,6 +52,10 @@ enum Command {
         /// Also write the curves as CSV to this file.
         #[arg(long, value_name = "FILE")]
         csv: Option<PathBuf>,
+        /// Also write where the regret was paid, one row per (learner, step,
+        /// state, action), as CSV to this file.
+        #[arg(long, value_name = "FILE")]
+        cells_csv: Option<PathBuf>,
         /// Runs in parallel (default: the machine's cores); results do not depend on it.
         #[arg(long, value_name = "N")]
         threads: Option<usize>,
@@ -89,6 +93,9 @@ enum Command {
         /// Also write the curves as CSV to this file.
         #[arg(long, value_name = "FILE")]
         csv: Option<PathBuf>,
+        /// Also write where the regret was paid as CSV to this file.
+        #[arg(long, value_name = "FILE")]
+        cells_csv: Option<PathBuf>,
     },
     /// Rewrite a model file in the canonical layout (fields in order, one
     /// transition row per line) on standard output.
@@ -221,6 +228,7 @@ fn main() -> ExitCode {
             file,
             json,
             csv,
+            cells_csv,
             threads,
             shard,
             learners,
@@ -230,13 +238,19 @@ fn main() -> ExitCode {
             &RunOptions {
                 json,
                 csv: csv.as_deref(),
+                cells_csv: cells_csv.as_deref(),
                 threads,
                 shard: shard.as_deref(),
                 learners: &learners,
                 learner_timeout,
             },
         ),
-        Command::Merge { files, json, csv } => merge(&files, json, csv.as_deref()),
+        Command::Merge {
+            files,
+            json,
+            csv,
+            cells_csv,
+        } => merge(&files, json, csv.as_deref(), cells_csv.as_deref()),
         Command::Bench {
             quick,
             only,
@@ -564,13 +578,14 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     for (_, p, r) in records {
         by_point[p].push(r);
     }
-    finish_output(&assemble(&exp, &points, by_point), json, csv)
+    finish_output(&assemble(&exp, &points, by_point), json, csv, o.cells_csv)
 }
 
 /// `burnin run`'s options besides the file.
 struct RunOptions<'a> {
     json: bool,
     csv: Option<&'a Path>,
+    cells_csv: Option<&'a Path>,
     threads: Option<usize>,
     shard: Option<&'a str>,
     learners: &'a [String],
@@ -581,11 +596,14 @@ fn finish_output(
     out: &burnin::experiment::Output,
     json: bool,
     csv: Option<&Path>,
+    cells_csv: Option<&Path>,
 ) -> Result<(), Failure> {
     use burnin::experiment::Output;
-    if let Some(p) = csv {
-        std::fs::write(p, out.to_csv())
-            .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display())))?;
+    for (path, text) in [(csv, out.to_csv()), (cells_csv, out.cells_csv())] {
+        if let Some(p) = path {
+            std::fs::write(p, text)
+                .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display())))?;
+        }
     }
     if json {
         return emit(&out.to_json());
@@ -596,7 +614,12 @@ fn finish_output(
     })
 }
 
-fn merge(files: &[PathBuf], json: bool, csv: Option<&Path>) -> Result<(), Failure> {
+fn merge(
+    files: &[PathBuf],
+    json: bool,
+    csv: Option<&Path>,
+    cells_csv: Option<&Path>,
+) -> Result<(), Failure> {
     let mut shards = Vec::with_capacity(files.len());
     for f in files {
         let text = read_text(f)?;
@@ -607,7 +630,7 @@ fn merge(files: &[PathBuf], json: bool, csv: Option<&Path>) -> Result<(), Failur
     }
     let name = |i: usize| files[i].display().to_string();
     let out = burnin::experiment::merge(&shards, &name).map_err(invalid)?;
-    finish_output(&out, json, csv)
+    finish_output(&out, json, csv, cells_csv)
 }
 
 /// Width of a table's learner column: its longest label, at least "learner".
@@ -736,6 +759,9 @@ fn compact(x: f64) -> String {
     format!("{v:.digits$}{unit}")
 }
 
+/// Cells listed per learner in the table's "where the regret was paid".
+const TOP_CELLS: usize = 3;
+
 fn results_table(r: &burnin::experiment::Results) -> String {
     use std::fmt::Write as _;
     let mut o = String::new();
@@ -812,6 +838,39 @@ fn results_table(r: &burnin::experiment::Results) -> String {
                 );
             }
         }
+    }
+    let decomposed = r.learners.iter().any(|l| !l.regret_by_cell.is_empty());
+    if decomposed {
+        let _ = writeln!(
+            o,
+            "\nwhere the regret was paid (d·Δ summed over episodes, mean over seeds; the {TOP_CELLS} largest (step, state, action) cells, share of regret at K):"
+        );
+    }
+    for l in r.learners.iter().filter(|_| decomposed) {
+        let cells = l.top_cells(TOP_CELLS);
+        let name = |v: &[String], i: usize| v.get(i).map_or(i.to_string(), |x| format!("{x:?}"));
+        let text: Vec<String> = cells
+            .iter()
+            .map(|c| {
+                format!(
+                    "h={} {} {} {:.1}%",
+                    c.step + 1,
+                    name(&r.state_labels, c.state),
+                    name(&r.action_labels, c.action),
+                    100.0 * c.share
+                )
+            })
+            .collect();
+        let _ = writeln!(
+            o,
+            "  {:<lw$}  {}",
+            l.label,
+            if text.is_empty() {
+                "no regret".to_string()
+            } else {
+                text.join(" · ")
+            }
+        );
     }
     if !r.comparisons.is_empty() {
         let _ = writeln!(
