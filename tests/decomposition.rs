@@ -186,6 +186,14 @@ fn the_decomposition_is_recorded_only_when_asked() {
     assert!(!r.to_json().contains("regret_by_cell"));
 }
 
+/// The model of the next two tests (see the first).
+fn one_bad_cell() -> serde_json::Value {
+    json!({"format": "burnin-model", "version": 1, "name": "one bad cell", "horizon": 2,
+        "states": ["desk"], "actions": ["work", "slack"], "start": [1], "stationary": false,
+        "steps": [{"transitions": [[[[0, 1]], [[0, 1]]]], "rewards": [[1, 0]]},
+                  {"transitions": [[[[0, 1]], [[0, 1]]]], "rewards": [[1, 1]]}]})
+}
+
 /// One suboptimal cell, worked by hand: H = 2, one state, two actions; at
 /// step 1 "slack" pays 0 and "work" pays 1, at step 2 both pay 1. Only
 /// (step 1, "slack") has a gap (Δ = 1); the uniform learner takes it with
@@ -193,10 +201,7 @@ fn the_decomposition_is_recorded_only_when_asked() {
 /// K = 100. Every other learner's regret lands there too.
 #[test]
 fn one_suboptimal_cell_holds_all_the_regret() {
-    let model = json!({"format": "burnin-model", "version": 1, "name": "one bad cell", "horizon": 2,
-        "states": ["desk"], "actions": ["work", "slack"], "start": [1], "stationary": false,
-        "steps": [{"transitions": [[[[0, 1]], [[0, 1]]]], "rewards": [[1, 0]]},
-                  {"transitions": [[[[0, 1]], [[0, 1]]]], "rewards": [[1, 1]]}]});
+    let model = one_bad_cell();
     let r = run(
         json!({"format": "burnin-experiment", "version": 1, "model": model, "episodes": 100, "seeds": 2, "decompose": true,
         "learners": [{"algorithm": "uniform"}, {"algorithm": "eps-greedy", "epsilon": 0.5}, {"algorithm": "mvp"}]}),
@@ -243,10 +248,7 @@ fn one_suboptimal_cell_holds_all_the_regret() {
 #[test]
 fn the_cli_shows_where_regret_is_paid() {
     let d = common::Scratch::new("cells");
-    let model = json!({"format": "burnin-model", "version": 1, "name": "one bad cell", "horizon": 2,
-        "states": ["desk"], "actions": ["work", "slack"], "start": [1], "stationary": false,
-        "steps": [{"transitions": [[[[0, 1]], [[0, 1]]]], "rewards": [[1, 0]]},
-                  {"transitions": [[[[0, 1]], [[0, 1]]]], "rewards": [[1, 1]]}]});
+    let model = one_bad_cell();
     let e = d.file(
         "e.json",
         &json!({"format": "burnin-experiment", "version": 1, "model": model, "episodes": 100,
