@@ -1,7 +1,7 @@
 // The experiment view: set-up form, running in the worker with progress and
 // cancel, and the results (charts with hover, table, visit heat map, exports,
 // presentation view).
-import { runExperiment, checkGuest } from './compute.js';
+import { runExperiment, checkGuest, checkExperiment } from './compute.js';
 import * as store from './store.js';
 import { el, download, safeName } from './dom.js';
 import { drawChart, CanvasPen, SvgPen, PALETTE, nearestIndex } from './chart.js';
@@ -80,7 +80,8 @@ export class ExperimentView {
     $('guest-code-cancel').addEventListener('click', () => $('guest-code').close());
     this.renderGuests();
     $('exp-form').addEventListener('submit', (e) => { e.preventDefault(); this.run(); });
-    $('exp-form').addEventListener('input', () => hooks.changed());
+    $('exp-form').addEventListener('input', () => { hooks.changed(); this.recheckSoon(); });
+    $('exp-form').addEventListener('change', () => this.recheckSoon());
     $('cancel-exp').addEventListener('click', () => {
       if (!this.running) return;
       this.cancelAt = performance.now();
@@ -96,7 +97,8 @@ export class ExperimentView {
     $('export-csv').addEventListener('click', () => download(`${this.fileBase()}-results.csv`, this.results.csv, 'text/csv'));
     $('export-cells').addEventListener('click', () => download(`${this.fileBase()}-regret-by-cell.csv`, this.results.cellsCsv, 'text/csv'));
     $('heat-view').addEventListener('change', () => this.drawHeat());
-    $('save-results').addEventListener('click', () => hooks.saveResults(this.results.experiment, this.results.text));
+    $('save-results').addEventListener('click', () => { hooks.saveResults(this.results.experiment, this.results.text); this.resultsKept = true; });
+    for (const id of ['export-json', 'export-csv', 'export-cells']) $(id).addEventListener('click', () => { this.resultsKept = true; });
     $('present').addEventListener('click', () => this.present());
     $('present-close').addEventListener('click', () => this.closePresent());
     document.addEventListener('keydown', (e) => { if (e.key === 'Escape' && !$('presenter').hidden) this.closePresent(); });
@@ -138,28 +140,58 @@ export class ExperimentView {
     const alg = el('select', null, { 'aria-label': 'algorithm' });
     this.fillAlgorithms(alg, l.guest ? `guest:${l.guest}` : l.algorithm);
     const param = el('input', null, { type: 'number', step: 'any', min: '0' });
+    const paramName = el('span', null, { class: 'param-name' });
     const label = el('input', null, { type: 'text', 'aria-label': 'label', placeholder: 'default label' });
     label.value = l.label || '';
     const remove = el('button', '✕', { type: 'button', 'aria-label': 'remove this learner' });
     const syncParam = (value) => {
       const p = this.algorithms.get(alg.value)?.param;
       param.disabled = !p;
+      param.hidden = !p;
+      paramName.textContent = p ? p.name : 'no parameter';
       param.setAttribute('aria-label', p ? p.name : 'no parameter');
       param.value = p ? String(value ?? p.default) : '';
       param.title = p ? `${p.name}: ${p.help}` : '';
     };
     syncParam(l.value);
-    alg.addEventListener('change', () => syncParam(null));
+    // A label follows its row: a label the row came with is dropped (for the
+    // default one, which names the algorithm and its parameter) when the
+    // algorithm or the parameter changes; one the user typed here is kept
+    // and flagged, since it may no longer say what the row runs.
+    label.addEventListener('input', () => { label.dataset.typed = 'true'; label.classList.remove('stale'); label.removeAttribute('title'); });
+    const rowChanged = () => {
+      if (!label.value) return;
+      if (label.dataset.typed === 'true') {
+        label.classList.add('stale');
+        label.title = 'You typed this label; check that it still describes the algorithm and parameter (clear it for the default one).';
+      } else {
+        label.value = '';
+      }
+    };
+    alg.addEventListener('change', () => { syncParam(null); rowChanged(); });
+    param.addEventListener('input', rowChanged);
     remove.addEventListener('click', () => { tr.remove(); this.hooks.changed(); });
     const td = (c) => { const t = el('td'); t.append(c); return t; };
-    tr.append(td(use), td(alg), td(param), td(label), td(remove));
+    const paramCell = td(paramName);
+    paramCell.append(param);
+    paramCell.classList.add('param-cell');
+    tr.append(td(use), td(alg), paramCell, td(label), td(remove));
     this.rows.append(tr);
   }
 
   /** Fills an algorithm menu: the catalogue's algorithms, then the user's learners; selects `value`. */
   fillAlgorithms(sel, value) {
     sel.replaceChildren();
-    for (const a of this.catalogue.algorithms) sel.append(el('option', a.name, { value: a.key, title: a.reference }));
+    const sizes = this.hooks.model().sizes;
+    const bandit = sizes && sizes.S === 1 && sizes.H === 1;
+    for (const a of this.catalogue.algorithms) {
+      const o = el('option', a.name, { value: a.key, title: a.reference });
+      if (a.bandit_only && sizes && !bandit) {
+        o.disabled = true;
+        o.textContent = `${a.name} (bandits only: S = 1, H = 1)`;
+      }
+      sel.append(o);
+    }
     const names = new Set(this.guests.keys());
     if (value?.startsWith('guest:')) names.add(value.slice(6));
     if (names.size) {
@@ -206,6 +238,7 @@ export class ExperimentView {
     }
     this.refreshAlgorithmMenus();
     this.renderGuests();
+    this.recheckSoon();
     status.textContent = had ? `${file} replaced your learner "${name}".` : `Your learner "${name}" is loaded from ${file}; it runs only in the page's workers.`;
     this.hooks.changed();
     return true;
@@ -328,6 +361,35 @@ export class ExperimentView {
     box.hidden = false;
   }
 
+  /** Problems for the learners of `file` that name a learner of yours not loaded here. */
+  guestProblems(file) {
+    const kept = new Set(store.keptGuests().map((k) => k.name));
+    return JSON.parse(file.text).learners.flatMap((l, i) => (l.guest && !this.guests.has(l.guest) ? [{
+      path: `learners[${i}].guest`,
+      message: `your learner "${l.guest}" is not loaded: ${kept.has(l.guest) ? 'use the copy kept in this browser (Your learners, below the table) or ' : ''}add its file with "Add your learner…" (an experiment, a library entry or a link names a learner, never carries its code)`,
+    }] : []));
+  }
+
+  /**
+   * While the problems box is shown, reads the form again (through the core)
+   * a moment after each edit: problems that are fixed disappear, and the box
+   * closes when none is left.
+   */
+  recheckSoon() {
+    if ($('exp-problems').hidden) return;
+    clearTimeout(this.recheckTimer);
+    this.recheckTimer = setTimeout(async () => {
+      let file;
+      try { file = this.experimentFile(); } catch { return; }
+      const r = await checkExperiment(file.text);
+      if ($('exp-problems').hidden) return;
+      for (const e of document.querySelectorAll('#exp-form [aria-invalid]')) e.removeAttribute('aria-invalid');
+      const problems = [...(r.ok ? [] : r.problems), ...this.guestProblems(file)];
+      if (!problems.length) $('exp-problems').hidden = true;
+      else this.showProblems({ problems, unlisted: r.ok ? 0 : r.unlisted }, file.rows);
+    }, 250);
+  }
+
   async run() {
     if (this.running) return;
     for (const e of document.querySelectorAll('#exp-form [aria-invalid]')) e.removeAttribute('aria-invalid');
@@ -335,20 +397,16 @@ export class ExperimentView {
     let file;
     try { file = this.experimentFile(); } catch (err) { this.showProblems({ problems: [{ path: '', message: err.message }], unlisted: 0 }, []); return; }
     const named = [...new Set(JSON.parse(file.text).learners.map((l) => l.guest).filter(Boolean))];
-    const missing = named.filter((g) => !this.guests.has(g));
+    const missing = this.guestProblems(file);
     if (missing.length) {
-      const kept = new Set(store.keptGuests().map((k) => k.name));
-      this.showProblems({
-        problems: JSON.parse(file.text).learners.flatMap((l, i) => (missing.includes(l.guest) ? [{
-          path: `learners[${i}].guest`,
-          message: `your learner "${l.guest}" is not loaded: ${kept.has(l.guest) ? 'use the copy kept in this browser (Your learners, below the table) or ' : ''}add its file with "Add your learner…" (an experiment, a library entry or a link names a learner, never carries its code)`,
-        }] : [])),
-        unlisted: 0,
-      }, file.rows);
+      this.showProblems({ problems: missing, unlisted: 0 }, file.rows);
       return;
     }
     const guests = named.map((name) => ({ name, source: this.guests.get(name).source }));
     const t0 = performance.now();
+    // The set-up is what is running: it cannot change under the run.
+    const fieldsets = [...document.querySelectorAll('#exp-form fieldset')];
+    for (const f of fieldsets) f.disabled = true;
     $('run-exp').disabled = true;
     $('cancel-exp').disabled = false;
     $('exp-progress').value = 0;
@@ -375,6 +433,8 @@ export class ExperimentView {
       } else {
         const secs = (performance.now() - t0) / 1000;
         this.setResults({ text: r.json, csv: r.csv, cellsCsv: r.cellsCsv, experiment: file.text });
+        /** Whether these results are saved somewhere (library or a file): only then may opening another model clear them unasked. */
+        this.resultsKept = false;
         $('exp-status').textContent = `Done in ${secs.toFixed(1)} s on ${job.workers} worker${job.workers === 1 ? '' : 's'}.`;
         this.hooks.changed();
         $('results').scrollIntoView({ block: 'start', behavior: 'instant' });
@@ -384,6 +444,7 @@ export class ExperimentView {
     } finally {
       live = false;
       this.running = null;
+      for (const f of fieldsets) f.disabled = false;
       $('run-exp').disabled = false;
       $('cancel-exp').disabled = true;
     }
@@ -391,6 +452,8 @@ export class ExperimentView {
 
   /** Shows results {text, csv?, experiment?} (from a run, a file or the library). */
   setResults(r) {
+    // Results opened from a file or the library are kept elsewhere already.
+    this.resultsKept = true;
     const data = JSON.parse(r.text);
     this.results = { ...r, data, csv: r.csv || '' };
     const sweep = data.format === 'burnin-sweep';

@@ -53,6 +53,7 @@ for (const t of TABS) {
 /** `doc` is the model in the core's canonical form (every field explicit). */
 function show(sol, text, doc, source, generator = null) {
   current = { text, solution: sol, name: sol.name || 'Untitled model', source, generator };
+  experiment?.refreshAlgorithmMenus();
   $('problems').hidden = true;
   renderFacts($('model-facts'), sol);
   renderOptimal($('optimal-value'), sol.optimal_value);
@@ -297,17 +298,47 @@ async function copyShareLink() {
   if (!current) return;
   try {
     const frag = await share.encode({ model: current.text, setup: experiment.setup() });
-    const url = `${location.origin}${location.pathname}#${frag}`;
-    history.replaceState(null, '', `#${frag}`);
-    try { await navigator.clipboard.writeText(url); notice('Share link copied; it carries the model and the experiment set-up in the address itself.'); } catch { notice('Share link is in the address bar (the clipboard was not available).'); }
+    const url = `${location.origin}${location.pathname}${location.search}#${frag}`;
+    // The link is shown and copied, never written into this tab's address:
+    // a reload must reopen your latest work, not the model as it was shared.
+    $('share-url').value = url;
+    $('share-box').hidden = false;
+    let copied = true;
+    try { await navigator.clipboard.writeText(url); } catch { copied = false; }
+    $('share-said').textContent = copied
+      ? 'copied; it carries the model and the experiment set-up (never code) in the address itself.'
+      : 'the clipboard was not available: select the link and copy it.';
+    notice('');
   } catch (err) {
     notice(err.message, true);
   }
 }
 
+/** Takes a share link out of the address once it is opened (or refused), so a reload reopens the autosave. */
+function cleanAddress() {
+  if (location.hash) history.replaceState(null, '', `${location.pathname}${location.search}`);
+}
+
+/**
+ * Whether opening something else may clear the results on screen: yes when
+ * there are none, or they are saved; otherwise the user is asked.
+ */
+function mayReplaceResults() {
+  if (!experiment?.results || experiment.resultsKept) return Promise.resolve(true);
+  const d = $('replace-results');
+  return new Promise((resolve) => {
+    const done = (v) => { d.close(); resolve(v); };
+    $('replace-results-open').onclick = () => done(true);
+    $('replace-results-keep').onclick = () => done(false);
+    d.oncancel = () => resolve(false);
+    d.showModal();
+  });
+}
+
 async function openShared(hash) {
   try {
     const p = await share.decode(hash);
+    cleanAddress();
     if (!p || typeof p.model !== 'string') throw new Error('the link holds no model');
     const shown = await openModel(p.model, 'the shared link', { kind: 'link', name: 'shared link' });
     if (shown) {
@@ -316,6 +347,7 @@ async function openShared(hash) {
     }
     if (shown !== false) return shown;
   } catch (err) {
+    cleanAddress();
     notice(`This share link could not be opened: ${err.message}.`, true);
   }
   return false;
@@ -337,7 +369,7 @@ const graph = new GraphView(async (positions) => {
 onWorkerRestart((why) => notice(`A compute worker stopped (${why}) and was replaced; anything it was running has to be run again.`, true));
 let experiment = null;
 const experimentHooks = {
-  model: () => ({ text: current?.text, name: current?.name || 'model', generator: current?.generator, states: current?.solution.states }),
+  model: () => ({ text: current?.text, name: current?.name || 'model', generator: current?.generator, states: current?.solution.states, sizes: current ? { S: current.solution.states.length, H: current.solution.horizon } : null }),
   changed: saveWork,
   saveResults: (expText, resultsText) => saveToLibrary({ kind: 'experiment', name: `${current.name} — ${stamp(new Date().toISOString())}`, model: current.text, experiment: expText, results: resultsText }),
 };
@@ -368,7 +400,12 @@ async function start() {
   }
   if (group.children.length) select.append(group);
   select.value = index.default;
-  select.addEventListener('change', () => openDemo(select.value).catch(fail));
+  let shownDemo = select.value;
+  select.addEventListener('change', async () => {
+    if (!(await mayReplaceResults())) { select.value = shownDemo; return; }
+    shownDemo = select.value;
+    openDemo(select.value).catch(fail);
+  });
   const genSpec = initGeneratorForm($('gen-kind'), $('gen-params'), CATALOGUE.generators);
   $('gen-run').addEventListener('click', async () => {
     const spec = genSpec();
@@ -377,7 +414,11 @@ async function start() {
     else renderProblems($('problems'), `The ${spec.kind} generator`, r);
   });
   $('open-file').addEventListener('click', () => $('file-input').click());
-  $('file-input').addEventListener('change', (e) => { openFile(e.target.files[0]).catch(fail); e.target.value = ''; });
+  $('file-input').addEventListener('change', async (e) => {
+    const f = e.target.files[0];
+    e.target.value = '';
+    if (await mayReplaceResults()) openFile(f).catch(fail);
+  });
   $('save-model').addEventListener('click', () => current && download(`${safeName(current.name, 'model')}.json`, current.text));
   $('share-link').addEventListener('click', () => copyShareLink().catch(fail));
   $('save-current').addEventListener('click', () => current && saveToLibrary({ kind: 'model', name: current.name, model: current.text }));
@@ -390,7 +431,7 @@ async function start() {
     const f = e.dataTransfer.files[0];
     // A learner module dropped anywhere is a learner to add, not a model.
     if (f && /\.m?js$/i.test(f.name)) experiment.loadGuestFile(f).catch(fail);
-    else openFile(f).catch(fail);
+    else mayReplaceResults().then((ok) => ok && openFile(f)).catch(fail);
   });
   // The library changed in another tab: show it as it is now.
   window.addEventListener('storage', (e) => {
@@ -399,7 +440,12 @@ async function start() {
       notice('The library was changed in another tab; the list shows it as it is now.');
     }
   });
-  window.addEventListener('hashchange', () => { const h = location.hash.slice(1); if (share.isShare(h)) openShared(h); });
+  window.addEventListener('hashchange', async () => {
+    const h = location.hash.slice(1);
+    if (!share.isShare(h)) return;
+    if (await mayReplaceResults()) openShared(h);
+    else cleanAddress();
+  });
 
   // Each step falls through only when its model could not be shown; when the
   // person opened something else meanwhile (null), that stays.

@@ -408,15 +408,95 @@ await check('a share link opens the model it carries; a damaged one says so', as
   await page.selectOption('#demo-select', 'glasshouse-climate.json');
   const v = await shownValue(page, await demoName('glasshouse-climate.json'));
   await page.click('#share-link');
-  await page.waitForFunction(() => location.hash.startsWith('#share='));
-  const link = await page.evaluate(() => location.href);
+  await page.waitForFunction(() => document.getElementById('share-url').value.includes('#share='));
+  const link = await page.inputValue('#share-url');
+  // The tab's own address stays clean: a reload reopens the latest work, not the link.
+  assertEqual(await page.evaluate(() => location.hash), '', 'the address is not rewritten');
   const other = await context.newPage();
   await other.evaluate(() => localStorage.clear()).catch(() => {});
   await other.goto(link);
   assertEqual((await shownValue(other, await demoName('glasshouse-climate.json'))).data, v.data, 'shared model');
+  assertEqual(await other.evaluate(() => location.hash), '', 'an opened link leaves the address');
+  // Work done after opening the link survives a reload.
+  await other.selectOption('#demo-select', 'night-ferry.json');
+  await shownValue(other, await demoName('night-ferry.json'));
+  await other.waitForTimeout(300);
+  await other.reload();
+  await shownValue(other, await demoName('night-ferry.json'));
   const bad = await context.newPage();
   await bad.goto(`${url}/#share=AAAA-not-deflate`);
   await bad.waitForFunction(() => /could not be opened/.test(document.getElementById('notice').textContent));
+});
+
+await check('opening another model asks before clearing results that are not saved', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '200');
+  await runAndWait(page);
+  await page.selectOption('#demo-select', 'night-ferry.json');
+  await page.waitForSelector('#replace-results[open]');
+  await page.click('#replace-results-keep');
+  assert(await page.isVisible('#results'), 'the results stay');
+  assertEqual(await page.inputValue('#demo-select'), index.default, 'the selector shows what is open');
+  assertEqual((await shownValue(page, defaultName)).data, expected[index.default], 'the model stays');
+  // Saved results are not asked about.
+  await page.click('#save-results');
+  await page.selectOption('#demo-select', 'night-ferry.json');
+  await shownValue(page, await demoName('night-ferry.json'));
+  assert(!(await page.isVisible('#replace-results')), 'no question once saved');
+  // A fresh run, then a file: asked again; "open" clears.
+  await page.click('#tab-experiment');
+  await runAndWait(page);
+  await upload(page, 'pearl.json', await (await fetch(`${url}/demo-models/pearl-reef.json`)).text());
+  await page.waitForSelector('#replace-results[open]');
+  await page.click('#replace-results-open');
+  await shownValue(page, 'Pearl reef');
+  assert(!(await page.isVisible('#results')), 'the results are cleared after saying so');
+});
+
+await check('a learner row\'s label follows its algorithm and parameter unless typed; the row says what its parameter is and offers only what can run', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  const row = (i) => page.locator(`#learner-rows tr:nth-child(${i})`);
+  // Row 2 came as "MVP ×0.002": made a Bernstein UCBVI, it must not keep that name.
+  assertEqual(await row(2).locator('input[type=text]').inputValue(), 'MVP ×0.002', 'the preset label');
+  await row(2).locator('select').selectOption('ucbvi-bernstein');
+  assertEqual(await row(2).locator('input[type=text]').inputValue(), '', 'the label goes back to the default');
+  assertEqual(await row(2).locator('.param-name').textContent(), 'bonus scale', 'the parameter is named');
+  // A label typed here is kept, and flagged when the row changes under it.
+  await row(3).locator('input[type=text]').fill('my Bernstein');
+  await row(3).locator('input[type=number]').fill('0.5');
+  assert(await row(3).locator('input[type=text]').evaluate((e) => e.classList.contains('stale') && e.value === 'my Bernstein'), 'typed label kept and flagged');
+  // Uniform has no parameter: none is shown.
+  assert(await row(7).locator('input[type=number]').isHidden(), 'no parameter box for uniform');
+  assertEqual(await row(7).locator('.param-name').textContent(), 'no parameter', 'and it says so');
+  // A bandit-only learner is not offered on an MDP, and says why.
+  const ucb1 = await row(1).locator('select option[value=ucb1]').evaluate((o) => ({ disabled: o.disabled, text: o.textContent }));
+  assert(ucb1.disabled && /bandits only/.test(ucb1.text), `UCB1 on an MDP: ${JSON.stringify(ucb1)}`);
+  await page.fill('#exp-episodes', '200');
+  await runAndWait(page);
+  const labels = await page.locator('#results-table tbody th').allTextContents();
+  assert(labels.some((l) => /^ucbvi-bernstein/.test(l)) && !labels.includes('MVP ×0.002'), `the table names what ran: ${labels}`);
+});
+
+await check('the set-up is locked while a run goes, and a problem\'s message goes once it is fixed', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  await page.locator('#learner-rows tr:nth-child(3) input[type=text]').fill('same');
+  await page.locator('#learner-rows tr:nth-child(4) input[type=text]').fill('same');
+  await page.click('#run-exp');
+  await page.waitForSelector('#exp-problems:not([hidden])');
+  assert((await page.locator('#exp-problems').textContent()).includes('duplicate label'), 'the problem is shown');
+  await page.locator('#learner-rows tr:nth-child(4) input[type=text]').fill('different');
+  await page.waitForSelector('#exp-problems[hidden]', { state: 'attached', timeout: 5000 });
+  await page.fill('#exp-episodes', '100000000');
+  await page.click('#run-exp');
+  await page.waitForFunction(() => Number(document.getElementById('exp-progress').value) > 0, null, { timeout: 20000 });
+  assert(await page.locator('#exp-episodes').isDisabled(), 'episodes locked');
+  assert(await page.locator('#learner-rows select').first().isDisabled(), 'learners locked');
+  await page.click('#cancel-exp');
+  await page.waitForFunction(() => /^Cancelled/.test(document.getElementById('exp-status').textContent));
+  assert(await page.locator('#exp-episodes').isEnabled(), 'unlocked after the run');
 });
 
 await check('a sweep draws regret at K against the swept parameter', async (page) => {
@@ -944,7 +1024,7 @@ await check('a run with a learner module cancels promptly, even while the module
   assert(ms < 2000, `cancelled in ${ms} ms`);
   // The replaced workers run the next experiment.
   await page.fill('#exp-episodes', '200');
-  await page.selectOption('#learner-rows tr:nth-child(2) select', 'uniform');
+  await page.selectOption('#learner-rows tr:nth-child(2) select', 'eps-greedy');
   await runAndWait(page);
 });
 
@@ -982,8 +1062,8 @@ await check('a kept learner is shown as code before it runs, and links and files
   await loadGuest(page, 'uniform.mjs', source);
   await page.getByRole('button', { name: 'Keep in this browser' }).click();
   await page.click('#share-link');
-  await page.waitForFunction(() => location.hash.startsWith('#share='));
-  const shared = await page.evaluate(async () => JSON.stringify(await (await import('./share.js')).decode(location.hash.slice(1))));
+  await page.waitForFunction(() => document.getElementById('share-url').value.includes('#share='));
+  const shared = await page.evaluate(async () => JSON.stringify(await (await import('./share.js')).decode(document.getElementById('share-url').value.split('#')[1])));
   assert(shared.includes('"guest":"uniform"') && !shared.includes('export default'), 'the link names the learner and carries no code');
   // After a reload the learner is not loaded: the kept copy is offered, shown first.
   await page.reload();
