@@ -70,6 +70,24 @@ fn a_sum_off_by_more_than_the_tolerance_names_the_row_and_the_sum() {
     );
 }
 
+/// "Within 10⁻⁶" is inclusive (docs/formats.md): three entries of 0.333333,
+/// what a person types for thirds, sum to 1 − 10⁻⁶ and are renormalised to
+/// exact thirds; one more digit off is refused.
+#[test]
+fn thirds_typed_to_six_decimals_are_accepted_and_renormalised() {
+    let mut v = base();
+    v["steps"][0]["transitions"][1][1] = json!([[0, 0.333333], [1, 0.333333], [2, 0.333333]]);
+    let m = parse_model(&v.to_string()).unwrap();
+    let (_, p) = m.step(0).row(3);
+    assert!(p.iter().all(|x| (x - 1.0 / 3.0).abs() < 1e-15), "{p:?}");
+    check(
+        |v| {
+            v["steps"][0]["transitions"][1][1] = json!([[0, 0.333333], [1, 0.333333], [2, 0.33333]])
+        },
+        &["steps[0].transitions[1][1]: probabilities sum to 0.999996, expected 1"],
+    );
+}
+
 #[test]
 fn a_sum_within_the_tolerance_is_renormalised() {
     let mut v = base();

@@ -161,7 +161,7 @@ export class Editor {
     const st = d.steps[h];
     const table = el('table', null, { class: 'grid-editor' });
     const head = el('tr');
-    head.append(el('th', 'state'), el('th', 'action'), ...d.states.map((s) => el('th', `→ ${s}`)), el('th', 'reward'), el('th', 'check'));
+    head.append(el('th', 'state'), el('th', 'action'), ...d.states.map((s) => el('th', `→ ${s}`)), el('th', 'reward'), el('th', 'row'), el('th', 'check'));
     table.createTHead().append(head);
     const body = table.createTBody();
     for (let s = 0; s < S; s++) {
@@ -174,7 +174,9 @@ export class Editor {
           const k = cell.findIndex((e) => e[0] === t);
           const inp = el('input', null, { type: 'number', step: 'any', min: '0', max: '1', 'aria-label': `P(${d.states[t]} | ${d.states[s]}, ${d.actions[a]})` });
           if (k >= 0) { inp.value = String(cell[k][1]); inp.dataset.path = `steps[${h}].transitions[${s}][${a}][${k}][1]`; }
+          inp.addEventListener('focus', () => { tr.dataset.last = String(t); });
           inp.addEventListener('input', () => {
+            tr.dataset.last = String(t);
             const j = cell.findIndex((e) => e[0] === t);
             const p = inp.value === '' ? null : Number(inp.value);
             if (p === null || p === 0) { if (j >= 0) cell.splice(j, 1); } else if (j >= 0) cell[j][1] = p; else cell.push([t, p]);
@@ -189,11 +191,56 @@ export class Editor {
         rin.value = rewardText(st.rewards[s][a]);
         rin.addEventListener('input', () => { st.rewards[s][a] = parseReward(rin.value); this.validate(); });
         rtd.append(rin);
-        tr.append(rtd, el('td', '', { class: 'row-check' }));
+        const tools = el('td', null, { class: 'row-tools' });
+        const norm = el('button', 'normalise', { type: 'button', title: 'Divide every entry of this row by the row\'s sum' });
+        const rest = el('button', 'remainder here', { type: 'button', title: 'Put 1 − (the other entries) into the cell you edited last in this row' });
+        norm.addEventListener('click', () => {
+          const sum = cell.reduce((acc, e) => acc + e[1], 0);
+          if (!(sum > 0)) return;
+          for (const e of cell) e[1] /= sum;
+          this.refreshRow(tr, cell);
+        });
+        rest.addEventListener('click', () => {
+          const t = Number(tr.dataset.last ?? S - 1);
+          const others = cell.reduce((acc, e) => acc + (e[0] === t ? 0 : e[1]), 0);
+          const p = Math.max(0, 1 - others);
+          const j = cell.findIndex((e) => e[0] === t);
+          if (p === 0) { if (j >= 0) cell.splice(j, 1); } else if (j >= 0) cell[j][1] = p; else cell.push([t, p]);
+          this.refreshRow(tr, cell);
+        });
+        tools.append(norm, rest);
+        tr.append(rtd, tools, el('td', '', { class: 'row-check' }));
         body.append(tr);
       }
     }
     wrap.replaceChildren(table);
+  }
+
+  /** Shows a row's entries again after a tool changed them, and checks the model. */
+  refreshRow(tr, cell) {
+    const [, h, s, a] = /\[(\d+)\]\.transitions\[(\d+)\]\[(\d+)\]/.exec(tr.dataset.row).map(Number);
+    tr.querySelectorAll('td input[type=number]').forEach((inp, t) => {
+      const e = cell.find((x) => x[0] === t);
+      inp.value = e ? String(e[1]) : '';
+    });
+    this.renumber(tr, cell, h, s, a);
+    this.validate();
+  }
+
+  /** A problem's place in words: "step 2, row "cave mouth", "go left"" rather than its JSON path. */
+  where(path) {
+    const d = this.doc;
+    const m = /^steps\[(\d+)\]\.(transitions|rewards)\[(\d+)\]\[(\d+)\](?:\[(\d+)\])?/.exec(path);
+    if (m) {
+      const [, h, kind, s, a, k] = m.map((x) => (x === undefined ? undefined : Number(x)));
+      const step = d.stationary ? 'every step' : `step ${h + 1}`;
+      const name = (list, i) => (list[i] !== undefined ? `"${list[i]}"` : `#${i}`);
+      const entry = kind === 'transitions' && k !== undefined ? `, entry → ${name(d.states, d.steps[h]?.transitions[s]?.[a]?.[k]?.[0])}` : '';
+      return `${step}, ${kind === 'rewards' ? 'reward of' : 'row'} ${name(d.states, s)}, ${name(d.actions, a)}${entry}`;
+    }
+    const st = /^start\[(\d+)\]/.exec(path);
+    if (st) return `start probability of "${d.states[Number(st[1])] ?? st[1]}"`;
+    return path;
   }
 
   /** Entry k's input carries the JSON path of entry k after an edit reorders the row. */
@@ -223,7 +270,7 @@ export class Editor {
     $('ed-apply').disabled = true;
     $('ed-summary').textContent = `${r.problems.length + r.unlisted} problem${r.problems.length + r.unlisted === 1 ? '' : 's'}:`;
     for (const p of r.problems) {
-      const line = p.path ? `${p.path}: ${p.message}` : p.message;
+      const line = p.path ? `${this.where(p.path)}: ${p.message}` : p.message;
       list.append(el('li', line));
       const target = this.cellFor(p.path);
       if (target) {

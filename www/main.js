@@ -120,6 +120,7 @@ async function openModel(text, label, source, generator = null, latest = claimOp
     return false;
   }
   const changed = !current || current.text !== text;
+  if (changed) $('undo-box').hidden = true;
   show(result, text, JSON.parse(result.canonical), source, generator);
   if (changed) experiment.clearResults();
   setStatus(`Solved ${label} by backward induction in ${Math.max(1, Math.round(performance.now() - t0))} ms.`);
@@ -354,7 +355,20 @@ async function openShared(hash) {
 }
 
 // ---- editor and graph ---------------------------------------------------
-const editor = new Editor((text) => openModel(text, 'the edited model', { kind: 'edited', name: 'edited model' }).then((ok) => ok && showTab('solution')));
+const editor = new Editor(async (text) => {
+  const before = current && { text: current.text, name: current.name, source: current.source, generator: current.generator };
+  const ok = await openModel(text, 'the edited model', { kind: 'edited', name: `${current?.name || 'model'} (edited)` });
+  if (!ok) return;
+  showTab('solution');
+  if (before) {
+    // "Use this model" can be taken back: the model before the edits reopens.
+    $('undo-use').textContent = `Undo: reopen “${before.name}” as it was`;
+    $('undo-use').onclick = async () => {
+      if (await openModel(before.text, before.name, before.source, before.generator)) notice(`Reopened “${before.name}” as it was before your edits.`);
+    };
+    $('undo-box').hidden = false;
+  }
+});
 const graph = new GraphView(async (positions) => {
   if (!current) return;
   const shown = current;

@@ -564,6 +564,39 @@ await check('the editor shows a problem at its cell as you type, and uses the fi
   await page.screenshot({ path: join(out, 'editor.png'), fullPage: true });
 });
 
+await check('the editor takes normal edits: typed thirds, row tools, problems named by state and action, undo after use', async (page) => {
+  const v = await openPage(page);
+  await page.click('#tab-editor');
+  const row = page.locator('#ed-grid tbody tr').first();
+  const cells = row.locator('td input[type=number]');
+  const n = await cells.count();
+  const valid = () => page.waitForFunction(() => /^Valid/.test(document.getElementById('ed-summary').textContent), null, { timeout: 5000 });
+  // Thirds as a person types them (the format accepts sums within 10⁻⁶).
+  for (let t = 0; t < n; t++) await cells.nth(t).fill(t < 3 ? '0.333333' : '');
+  await valid();
+  // A wrong sum is named by the row's state and action, not a JSON path.
+  await cells.nth(0).fill('0.9');
+  await page.waitForFunction(() => document.getElementById('ed-problems').children.length > 0);
+  const said = await page.locator('#ed-problems li').first().textContent();
+  const model = await (await fetch(`${url}/demo-models/${index.default}`)).json();
+  assert(said.startsWith(`${model.stationary === false ? 'step 1' : 'every step'}, row "${model.states[0]}", "${model.actions[0]}": probabilities sum to`), `in words: ${said}`);
+  await row.getByRole('button', { name: 'normalise' }).click();
+  await valid();
+  // "Remainder here" fills the cell edited last with what the others leave.
+  await cells.nth(0).fill('0.25');
+  await cells.nth(1).focus();
+  await row.getByRole('button', { name: 'remainder here' }).click();
+  await valid();
+  const values = await cells.evaluateAll((xs) => xs.map((x) => Number(x.value || 0)));
+  assert(Math.abs(values.reduce((a, b) => a + b, 0) - 1) < 1e-12 && values[0] === 0.25, `the row sums to 1: ${values}`);
+  // Use it, then take it back.
+  await page.click('#ed-apply');
+  await page.waitForSelector('#undo-box:not([hidden])');
+  await page.click('#undo-use');
+  await page.waitForFunction(() => /as it was before your edits/.test(document.getElementById('notice').textContent));
+  assertEqual((await shownValue(page, defaultName)).data, v.data, 'the model before the edits is back');
+});
+
 await check('the graph draws every transition, highlights the policy, and keeps dragged positions', async (page) => {
   await openPage(page);
   await page.selectOption('#demo-select', 'pearl-reef.json');
