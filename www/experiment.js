@@ -102,7 +102,7 @@ export class ExperimentView {
     $('present').addEventListener('click', () => this.present());
     $('present-close').addEventListener('click', () => this.closePresent());
     document.addEventListener('keydown', (e) => { if (e.key === 'Escape' && !$('presenter').hidden) this.closePresent(); });
-    $('present-caption').addEventListener('input', () => this.drawPresent());
+    $('present-caption').addEventListener('input', () => { this.presentCaption = $('present-caption').value; this.drawPresent(); });
     window.addEventListener('resize', () => { this.draw(); if (!$('presenter').hidden) this.drawPresent(); });
     const canvas = $('chart');
     canvas.addEventListener('mousemove', (e) => this.hover(e));
@@ -454,6 +454,7 @@ export class ExperimentView {
   setResults(r) {
     // Results opened from a file or the library are kept elsewhere already.
     this.resultsKept = true;
+    this.presentCaption = undefined;
     const data = JSON.parse(r.text);
     this.results = { ...r, data, csv: r.csv || '' };
     const sweep = data.format === 'burnin-sweep';
@@ -731,7 +732,8 @@ export class ExperimentView {
   exportSvg() { download(`${this.fileBase()}-chart.svg`, this.svgText(), 'image/svg+xml'); }
 
   present() {
-    $('present-caption').value = this.caption();
+    // A caption the user wrote is kept for these results until new ones come.
+    $('present-caption').value = this.presentCaption ?? this.caption();
     $('presenter').hidden = false;
     this.drawPresent();
     $('present-close').focus();
@@ -739,7 +741,10 @@ export class ExperimentView {
 
   drawPresent() {
     const c = $('present-chart');
-    const w = window.innerWidth, h = Math.max(200, window.innerHeight - 80);
+    // The bar (caption and Close) keeps its own height, wrapped or not, so
+    // the chart never covers Close on a small screen.
+    const bar = document.querySelector('#presenter .presenter-bar');
+    const w = window.innerWidth, h = Math.max(160, window.innerHeight - bar.offsetHeight);
     const spec = { ...this.spec(), title: this.spec().title };
     drawChart(new CanvasPen(c, w, h), w, h, spec, Math.max(1.4, w / 900));
   }
