@@ -20,7 +20,7 @@ class Client {
       const msg = event.data;
       const job = this.pending.get(msg.id);
       if (!job) return;
-      if (msg.type === 'progress') { job.onProgress?.(msg.done, msg.total, msg.at); return; }
+      if (msg.type === 'progress') { job.onProgress?.(msg.done, msg.total, msg.at, msg.slice); return; }
       this.pending.delete(msg.id);
       if (msg.type === 'done') job.resolve(msg.result);
       else if (msg.type === 'cancelled') job.resolve({ cancelled: true, done: msg.done, total: msg.total });
@@ -136,16 +136,23 @@ export function checkGuest(source) {
 export function runExperiment(text, onProgress, workers = POOL_SIZE, guests = []) {
   while (pool.length < workers) pool.push(new Client());
   const done = new Array(workers).fill(0), total = new Array(workers).fill(0);
-  const report = () => onProgress?.(done.reduce((a, b) => a + b, 0), total.reduce((a, b) => a + b, 0));
+  /** Per learner index, {episodes, ms} measured so far over all workers. */
+  const measured = [];
+  const report = () => onProgress?.(done.reduce((a, b) => a + b, 0), total.reduce((a, b) => a + b, 0), measured);
   let stopped = false, cancelled = false;
   /** Per shard: its request and when its worker last spoke. */
   const current = new Array(workers).fill(null);
   const shard = (i, skip) => {
     const c = pool[i];
     let last = performance.now(), at = null;
-    const job = c.request('run', { text, shard: i, of: workers, guests, skip }, (d, t, where) => {
+    const job = c.request('run', { text, shard: i, of: workers, guests, skip }, (d, t, where, slice) => {
       done[i] = d; total[i] = t; last = performance.now();
       if (where) at = where;
+      if (slice && slice.episodes > 0) {
+        const m = (measured[slice.learner] ||= { episodes: 0, ms: 0 });
+        m.episodes += slice.episodes;
+        m.ms += slice.ms;
+      }
       report();
     });
     current[i] = { job, quiet: () => performance.now() - last, stop: (why) => c.replace(job.id, why) };

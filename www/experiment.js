@@ -3,6 +3,7 @@
 // presentation view).
 import { runExperiment, checkGuest, checkExperiment } from './compute.js';
 import * as store from './store.js';
+import { timeLeft } from './eta.js';
 import { el, download, safeName } from './dom.js';
 import { drawChart, CanvasPen, SvgPen, PALETTE, nearestIndex } from './chart.js';
 import { short, grouped, valueColour, inkOn } from './format.js';
@@ -412,13 +413,19 @@ export class ExperimentView {
     $('exp-progress').value = 0;
     $('exp-status').textContent = 'Starting…';
     let live = true;
-    const job = runExperiment(file.text, (done, total) => {
+    // Episodes each learner runs in all (every sweep point), for the estimate.
+    const spec = JSON.parse(file.text);
+    const points = spec.sweep ? spec.sweep.values.length : 1;
+    const totals = spec.learners.map(() => spec.episodes * spec.seeds * points);
+    const job = runExperiment(file.text, (done, total, measured) => {
       if (!live) return; // a late message from a worker that is stopping
       const secs = (performance.now() - t0) / 1000;
       const rate = done / Math.max(secs, 1e-3);
       $('exp-progress').max = total;
       $('exp-progress').value = done;
-      $('exp-status').textContent = `${grouped(done)} / ${grouped(total)} episodes · ${grouped(rate)} per second · about ${((total - done) / Math.max(rate, 1)).toFixed(1)} s left · ${job.workers} worker${job.workers === 1 ? '' : 's'}`;
+      const eta = timeLeft(totals, measured || [], job.workers);
+      const left = eta.seconds === null ? 'timing the learners…' : `${eta.atLeast ? 'at least' : 'about'} ${eta.seconds.toFixed(1)} s left`;
+      $('exp-status').textContent = `${grouped(done)} / ${grouped(total)} episodes · ${grouped(rate)} per second · ${left} · ${job.workers} worker${job.workers === 1 ? '' : 's'}`;
     }, undefined, guests);
     this.running = job;
     try {

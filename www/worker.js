@@ -9,7 +9,8 @@
 //                        or error {problems} for a bad experiment. guests: [{name, source}], the
 //                        user's learner modules (run here, never on the page's thread); skip:
 //                        [{learner, seed_index, episode, message}], learners already given up on.
-//                        at: [learner, seed index, episodes done] of the run in progress.
+//                        at: [learner, seed index, episodes done] of the run in progress; slice:
+//                        {learner, episodes, ms} of the slice just run (one run per slice).
 //   check-guest {source} → done {result: {ok, message}}  (whether a module exports a learner)
 //   merge {shards}     → done {result: {json, csv}} or problems
 //   catalogue          → done {result}            (algorithms, generators, limits: src/catalogue.rs)
@@ -66,14 +67,19 @@ async function run(id, text, shard, of, guests = [], skip = []) {
         return;
       }
       const t0 = performance.now();
-      // With guest learners, say which run is next before stepping it: if a
-      // guest never answers, the page's watchdog knows whose run hung.
-      if (guarded) self.postMessage({ type: 'progress', id, done: job.episodesDone(), total, at: job.current() });
-      const finished = guarded ? job.advanceOneRun(chunk) : job.advance(chunk);
+      // Say which run is next before stepping it: with guest learners, if a
+      // guest never answers, the page's watchdog knows whose run hung. One
+      // run per slice, so each slice's time is one learner's (for the
+      // estimate of the time left).
+      const at = job.current();
+      if (guarded) self.postMessage({ type: 'progress', id, done: job.episodesDone(), total, at });
+      const before = job.episodesDone();
+      const finished = job.advanceOneRun(chunk);
       const dt = performance.now() - t0;
+      const slice = at ? { learner: at[0], episodes: job.episodesDone() - before, ms: dt } : null;
       // Aim each slice at SLICE_MS so a cancel is heard quickly.
       chunk = Math.max(1, Math.min(chunk * 4, Math.round(chunk * SLICE_MS / Math.max(dt, 0.5))));
-      self.postMessage({ type: 'progress', id, done: job.episodesDone(), total, at: job.current() });
+      self.postMessage({ type: 'progress', id, done: job.episodesDone(), total, at: job.current(), slice });
       if (finished) break;
       await pause();
     }

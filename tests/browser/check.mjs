@@ -329,6 +329,34 @@ await check('the main thread never blocks for more than 50 ms during a run', asy
   assert(worst <= 50, `the main thread blocked for ${worst} ms`);
 });
 
+await check('the time left is estimated from each learner\'s own measured cost, not the overall rate', async (page) => {
+  await openPage(page);
+  const r = await page.evaluate(async () => {
+    const { timeLeft } = await import('./eta.js');
+    // A fast learner done (1000 episodes in 10 ms), a slow one a tenth done
+    // at 1 ms an episode: the slow one's 9000 episodes left take 9 s; the
+    // overall rate (2000 episodes in 1.01 s) would have said under 5 s.
+    const a = timeLeft([1000, 10000], [{ episodes: 1000, ms: 10 }, { episodes: 1000, ms: 1000 }], 1);
+    // Two workers share the work; a learner not yet started is counted at
+    // the slowest rate seen, and the estimate says "at least".
+    const b = timeLeft([1000, 10000, 4000], [{ episodes: 1000, ms: 10 }, { episodes: 1000, ms: 1000 }], 2);
+    const c = timeLeft([10], [], 1);
+    return { a, b, c };
+  });
+  assertEqual(r.a.seconds, 9, 'the slow learner\'s own rate');
+  assertEqual(r.a.atLeast, false, 'everything measured');
+  assertEqual(r.b.seconds, (9000 + 4000) / 1000 / 2, 'the unmeasured learner at the slowest rate, over two workers');
+  assertEqual(r.b.atLeast, true, 'says "at least"');
+  assertEqual(r.c.seconds, null, 'nothing measured: no number');
+  // During a run the status line gives it.
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '100000000');
+  await page.click('#run-exp');
+  await page.waitForFunction(() => / s left · /.test(document.getElementById('exp-status').textContent), null, { timeout: 20000 });
+  await page.click('#cancel-exp');
+  await page.waitForFunction(() => /^Cancelled/.test(document.getElementById('exp-status').textContent));
+});
+
 await check('a long run cancels within a quarter second', async (page) => {
   await openPage(page);
   await page.click('#tab-experiment');
