@@ -387,6 +387,9 @@ fn to_js<T: serde::Serialize>(v: &T) -> JsValue {
 pub fn read_document(text: &str) -> JsValue {
     use crate::experiment::{EXPERIMENT_FORMAT, RESULTS_FORMAT, SWEEP_FORMAT};
     let obj = Object::new();
+    if crate::format::is_burnin_csv(text) {
+        return problems_value(&Problems::single("", crate::format::CSV_NOT_OPENED));
+    }
     match crate::format::identify(text).as_deref() {
         Some(EXPERIMENT_FORMAT) => match crate::experiment::parse_experiment(text, None) {
             Ok(e) => {
@@ -401,6 +404,7 @@ pub fn read_document(text: &str) -> JsValue {
                 set(&obj, "json", out.to_json());
                 set(&obj, "csv", out.to_csv());
                 set(&obj, "cellsCsv", out.cells_csv());
+                set(&obj, "summaryCsv", out.summary_csv());
             }
             Err(p) => return problems_value(&p),
         },
@@ -461,6 +465,7 @@ pub fn merge_shards(shards: Vec<String>) -> JsValue {
             set(&obj, "json", out.to_json());
             set(&obj, "csv", out.to_csv());
             set(&obj, "cellsCsv", out.cells_csv());
+            set(&obj, "summaryCsv", out.summary_csv());
             obj.into()
         }
         Err(p) => problems_value(&p),

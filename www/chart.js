@@ -156,10 +156,34 @@ export function tickLabel(v) {
   return s.replace('-', '−');
 }
 
+/** `text` cut with an ellipsis to fit `maxW` pixels at `size`. */
+function fit(text, size, maxW, weight = 400) {
+  if (measure(text, size, weight) <= maxW) return text;
+  let lo = 0, hi = text.length;
+  while (lo < hi) {
+    const mid = Math.ceil((lo + hi) / 2);
+    if (measure(`${text.slice(0, mid)}…`, size, weight) <= maxW) lo = mid; else hi = mid - 1;
+  }
+  return `${text.slice(0, lo)}…`;
+}
+
+/** `text` broken into lines of at most `maxW` pixels at `size`. */
+function wrap(text, size, maxW) {
+  const lines = [];
+  let line = '';
+  for (const word of text.split(/\s+/).filter(Boolean)) {
+    const next = line ? `${line} ${word}` : word;
+    if (line && measure(next, size) > maxW) { lines.push(line); line = word; } else line = next;
+  }
+  if (line) lines.push(line);
+  return lines;
+}
+
 /**
  * Draws `spec` with `pen` in a w×h box; `scale` enlarges type (presentation).
  * spec: {title, xLabel, yLabel, log, series: [{label, color, x, y, lo?, hi?,
- * dash?, width?, legend?}], bars?: true for error bars at points}
+ * dash?, width?, legend?}], bars?: true for error bars at points, caption?:
+ * text printed under the chart (exports carry their explanation with them)}
  * Returns the layout for hover: {x0, x1, y0, y1, sx, sy, xs}.
  */
 export function drawChart(pen, w, h, spec, scale = 1) {
@@ -186,12 +210,20 @@ export function drawChart(pen, w, h, spec, scale = 1) {
   const legendItems = spec.series.filter((s) => s.legend !== false);
   const legendW = Math.min(w * 0.38, Math.max(0, ...legendItems.map((s) => measure(s.label, fs))) + 34 * scale);
   const titleH = spec.title ? fs * 1.9 : pad;
-  const x0 = pad + fs * 4.6, x1 = w - legendW - pad, y0 = titleH + pad * 0.5, y1 = h - fs * 3.4;
+  const captionLines = spec.caption ? wrap(spec.caption, fs * 0.95, w - 2 * pad) : [];
+  const captionH = captionLines.length * fs * 1.3;
+  const x0 = pad + fs * 4.6, x1 = w - legendW - pad, y0 = titleH + pad * 0.5, y1 = h - fs * 3.4 - captionH;
+  captionLines.forEach((line, i) => pen.text(pad, h - captionH + fs * (0.9 + 1.3 * i) - pad * 0.3, line, { size: fs * 0.95, color: '#5d676b' }));
   const L = spec.log ? Math.log10 : (v) => v;
   const [lx0, lx1, ly0, ly1] = [L(xmin), L(xmax), L(ymin), L(ymax)];
   const sx = (x) => x0 + ((L(x) - lx0) / (lx1 - lx0)) * (x1 - x0);
   const sy = (y) => y1 - ((L(y) - ly0) / (ly1 - ly0)) * (y1 - y0);
-  if (spec.title) pen.text(pad, pad + fs, spec.title, { size: fs * 1.25, weight: 600 });
+  if (spec.title) {
+    // A long title shrinks a little, then is cut, rather than run off the chart.
+    let size = fs * 1.25;
+    while (size > fs && measure(spec.title, size, 600) > w - 2 * pad) size *= 0.95;
+    pen.text(pad, pad + fs, fit(spec.title, size, w - 2 * pad, 600), { size, weight: 600 });
+  }
   // Grid and ticks.
   const xt = spec.log ? logTicks(xmin, xmax) : linearTicks(xmin, xmax, Math.max(2, (x1 - x0) / (70 * scale)));
   const yt = spec.log ? logTicks(ymin, ymax) : linearTicks(ymin, ymax, Math.max(2, (y1 - y0) / (45 * scale)));
@@ -230,7 +262,7 @@ export function drawChart(pen, w, h, spec, scale = 1) {
   for (const s of legendItems) {
     const lx = x1 + pad;
     pen.line([[lx, ly], [lx + 20 * scale, ly]], { color: s.color, width: (s.width || 2) * scale, dash: s.dash ? s.dash.map((d) => d * scale) : null });
-    pen.text(lx + 26 * scale, ly, s.label, { size: fs, baseline: 'middle' });
+    pen.text(lx + 26 * scale, ly, fit(s.label, fs, legendW - 30 * scale), { size: fs, baseline: 'middle' });
     ly += fs * 1.5;
   }
   const xs = spec.series.length ? spec.series[0].x : [];

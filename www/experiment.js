@@ -97,9 +97,10 @@ export class ExperimentView {
     $('export-json').addEventListener('click', () => download(`${this.fileBase()}-results.json`, this.results.text, 'application/json'));
     $('export-csv').addEventListener('click', () => download(`${this.fileBase()}-results.csv`, this.results.csv, 'text/csv'));
     $('export-cells').addEventListener('click', () => download(`${this.fileBase()}-regret-by-cell.csv`, this.results.cellsCsv, 'text/csv'));
+    $('export-summary').addEventListener('click', () => download(`${this.fileBase()}-summary.csv`, this.results.summaryCsv, 'text/csv'));
     $('heat-view').addEventListener('change', () => this.drawHeat());
     $('save-results').addEventListener('click', () => { hooks.saveResults(this.results.experiment, this.results.text); this.resultsKept = true; });
-    for (const id of ['export-json', 'export-csv', 'export-cells']) $(id).addEventListener('click', () => { this.resultsKept = true; });
+    for (const id of ['export-json', 'export-csv', 'export-cells', 'export-summary']) $(id).addEventListener('click', () => { this.resultsKept = true; });
     $('present').addEventListener('click', () => this.present());
     $('present-close').addEventListener('click', () => this.closePresent());
     document.addEventListener('keydown', (e) => { if (e.key === 'Escape' && !$('presenter').hidden) this.closePresent(); });
@@ -109,6 +110,16 @@ export class ExperimentView {
     canvas.addEventListener('mousemove', (e) => this.hover(e));
     canvas.addEventListener('mouseleave', () => { $('chart-tip').hidden = true; });
     this.setSweepChoices(null);
+  }
+
+  /** The core's definition of a number shown (src/catalogue.rs, GLOSSARY). */
+  meaning(key) { return this.catalogue.glossary.find((t) => t.key === key)?.meaning || ''; }
+
+  /** The glossary under the results: every number the page shows, defined once in the core. */
+  renderGlossary() {
+    const dl = $('glossary-list');
+    if (dl.children.length) return;
+    for (const t of this.catalogue.glossary) dl.append(el('dt', t.name), el('dd', t.meaning));
   }
 
   fileBase() { return safeName(this.results?.data?.name || this.results?.data?.model_name || this.hooks.model().name); }
@@ -439,7 +450,7 @@ export class ExperimentView {
         this.showProblems(r, file.rows);
       } else {
         const secs = (performance.now() - t0) / 1000;
-        this.setResults({ text: r.json, csv: r.csv, cellsCsv: r.cellsCsv, experiment: file.text });
+        this.setResults({ text: r.json, csv: r.csv, cellsCsv: r.cellsCsv, summaryCsv: r.summaryCsv, experiment: file.text });
         /** Whether these results are saved somewhere (library or a file): only then may opening another model clear them unasked. */
         this.resultsKept = false;
         $('exp-status').textContent = `Done in ${secs.toFixed(1)} s on ${job.workers} worker${job.workers === 1 ? '' : 's'}.`;
@@ -488,6 +499,7 @@ export class ExperimentView {
       failed.append(el('p', `Your learner "${f.label}" failed in seed ${f.seed_index}, episode ${grouped(f.episode)}: ${f.message}. It is left out of these results; the other learners' results stand.`));
     }
     $('export-csv').disabled = !this.results.csv;
+    $('export-summary').disabled = !this.results.summaryCsv;
     const decomposed = !sweep && data.learners.some((l) => l.regret_by_cell?.length);
     $('export-cells').disabled = !decomposed || !this.results.cellsCsv;
     for (const o of $('heat-view').options) if (o.value !== 'visits') o.disabled = !decomposed || (o.value === 'regret-diff' && data.learners.length < 2);
@@ -501,6 +513,7 @@ export class ExperimentView {
     this.draw();
     this.drawTable();
     this.drawHeat();
+    this.renderGlossary();
   }
 
   /**
@@ -572,6 +585,10 @@ export class ExperimentView {
         series.push({ label: `${l.label}: bonus < H from K ≈ ${grouped(mark)}`, color, x: [mark, mark], y: [bottom, top], dash: [1, 3], width: 1.5 });
       }
     });
+    if (!episode && $('show-bounds').checked && d.learners.some((l) => l.bound && l.bound.applies !== false)) {
+      // One legend entry says what every dashed line in a learner's colour is.
+      series.push({ label: 'dashed: published bound (learner\u2019s colour)', color: '#5d676b', x: [], y: [], dash: [7, 4], width: 1.2 });
+    }
     if (!episode && $('show-lower').checked) {
       series.push({ label: 'lower-bound shape √(SAH³K)', color: '#5d676b', x: d.learners[0].checkpoints, y: d.lower_bound.values, dash: [2, 3], width: 1.5 });
     }
@@ -605,7 +622,7 @@ export class ExperimentView {
     const i = nearestIndex(this.layout, px, py);
     if (i < 0) { tip.hidden = true; return; }
     const sweep = $('chart-view').value === 'sweep';
-    const lines = [`${sweep ? this.results.data.parameter : 'k'} = ${sweep ? this.layout.xs[i] : grouped(this.layout.xs[i])}`];
+    const lines = [`${sweep ? this.results.data.parameter : 'k'} = ${sweep ? Number(this.layout.xs[i].toPrecision(4)) : grouped(this.layout.xs[i])}`];
     for (const s of this.layout.series) {
       lines.push(`${s.label}: ${short(s.y[i])}${s.lo && s.hi ? ` [${short(s.lo[i])}, ${short(s.hi[i])}]` : ''}`);
     }
@@ -631,8 +648,10 @@ export class ExperimentView {
       }
     } else {
       const eps = d.learners[0].episodes_to_eps;
-      head.append(el('th', 'learner'), el('th', 'regret at K'), el('th', '95% interval'), el('th', 'slope'), el('th', 'burn-in [95% bootstrap]'), el('th', 'model updates'),
-        ...eps.map((e) => el('th', `ε = ${short(e.epsilon)}: first ε-optimal episode (PAC order ${short(e.pac_order)}, Zhang et al. 2024) · share ε-optimal · settled within ε after`)));
+      // Each header says what its number is, from the core's glossary.
+      const hint = (text, ...keys) => el('th', text, { title: keys.map((k) => this.meaning(k)).join(' ') });
+      head.append(el('th', 'learner'), hint('regret at K', 'regret'), hint('95% interval', 'interval'), hint('slope', 'slope'), hint('burn-in [95% bootstrap]', 'burn_in'), hint('model updates', 'model_updates'),
+        ...eps.map((e) => hint(`ε = ${short(e.epsilon)}: first ε-optimal episode (PAC order ${short(e.pac_order)}, Zhang et al. 2024) · share ε-optimal · settled within ε after`, 'first_optimal', 'optimal_share', 'settled')));
       for (const l of d.learners) {
         const last = l.regret_mean.length - 1;
         const updates = l.model_updates.reduce((a, b) => a + b, 0) / l.model_updates.length;
@@ -725,14 +744,14 @@ export class ExperimentView {
   exportPng() {
     const c = document.createElement('canvas');
     const [w, h] = [1280, 720];
-    drawChart(new CanvasPen(c, w, h), w, h, this.spec(), 1.25);
+    drawChart(new CanvasPen(c, w, h), w, h, { ...this.spec(), caption: this.caption() }, 1.25);
     c.toBlob((b) => download(`${this.fileBase()}-chart.png`, b, 'image/png'), 'image/png');
   }
 
   svgText() {
     const [w, h] = [1280, 720];
     const pen = new SvgPen(w, h);
-    drawChart(pen, w, h, this.spec(), 1.25);
+    drawChart(pen, w, h, { ...this.spec(), caption: this.caption() }, 1.25);
     return pen.toString();
   }
 

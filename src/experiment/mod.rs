@@ -507,31 +507,49 @@ impl Output {
             Output::Sweep(r) => r.to_csv(),
         }
     }
+    /// The summary table, a row per learner (for a sweep, of each point,
+    /// with the swept value in front).
+    pub fn summary_csv(&self) -> String {
+        match self {
+            Output::Single(r) => r.summary_csv(),
+            Output::Sweep(r) => prefixed_csv(
+                &r.parameter,
+                &r.values,
+                r.points.iter().map(Results::summary_csv),
+            ),
+        }
+    }
+
     /// Where regret was paid, by (learner, h, s, a); for a sweep, each
     /// point's rows with the swept value in front.
     pub fn cells_csv(&self) -> String {
         match self {
             Output::Single(r) => r.cells_csv(),
-            Output::Sweep(r) => {
-                let mut o = format!("{},", r.parameter);
-                let mut first = true;
-                for (p, v) in r.points.iter().zip(&r.values) {
-                    for (i, line) in p.cells_csv().lines().enumerate() {
-                        if i == 0 {
-                            if first {
-                                o.push_str(line);
-                                o.push('\n');
-                                first = false;
-                            }
-                            continue;
-                        }
-                        o.push_str(&format!("{v},{line}\n"));
-                    }
-                }
-                o
-            }
+            Output::Sweep(r) => prefixed_csv(
+                &r.parameter,
+                &r.values,
+                r.points.iter().map(Results::cells_csv),
+            ),
         }
     }
+}
+
+/// One CSV from one table per sweep point: the header once, with the swept
+/// parameter in front, and each point's rows with its value.
+fn prefixed_csv(parameter: &str, values: &[f64], tables: impl Iterator<Item = String>) -> String {
+    let mut o = String::new();
+    for (i, (t, v)) in tables.zip(values).enumerate() {
+        for (j, line) in t.lines().enumerate() {
+            if j == 0 {
+                if i == 0 {
+                    o.push_str(&format!("{parameter},{line}\n"));
+                }
+                continue;
+            }
+            o.push_str(&format!("{v},{line}\n"));
+        }
+    }
+    o
 }
 
 /// Summarises the records of every point (records\[p\] for points\[p\]).

@@ -515,6 +515,53 @@ impl Results {
         serde_json::to_string_pretty(self).expect("results hold no non-finite numbers") + "\n"
     }
 
+    /// The summary table, one row per learner: regret at K with its
+    /// interval, slope, burn-in with its interval, mean model updates, and
+    /// per ε target the median first ε-optimal episode (empty where not all
+    /// seeds reached one) and the mean share of ε-optimal episodes.
+    pub fn summary_csv(&self) -> String {
+        let mut o = String::from(
+            "learner,algorithm,regret_at_k,regret_lo,regret_hi,slope,burn_in,burn_in_lo,burn_in_hi,model_updates",
+        );
+        let eps: Vec<f64> = self.learners.first().map_or(Vec::new(), |l| {
+            l.episodes_to_eps.iter().map(|e| e.epsilon).collect()
+        });
+        for e in &eps {
+            o.push_str(&format!(",first_optimal_eps_{e},optimal_share_eps_{e}"));
+        }
+        o.push('\n');
+        let opt = |x: Option<u64>| x.map_or(String::new(), |x| x.to_string());
+        for l in &self.learners {
+            let k = l.regret_mean.len() - 1;
+            let (blo, bhi) = l.burn_in_interval.unwrap_or((None, None));
+            let updates =
+                l.model_updates.iter().sum::<u64>() as f64 / l.model_updates.len().max(1) as f64;
+            o.push_str(&format!(
+                "{},{},{},{},{},{},{},{},{},{updates}",
+                csv_field(&l.label),
+                l.algorithm,
+                l.regret_mean[k],
+                l.regret_lo[k],
+                l.regret_hi[k],
+                l.slope.map_or(String::new(), |s| s.to_string()),
+                opt(l.burn_in),
+                opt(blo),
+                opt(bhi),
+            ));
+            for e in &l.episodes_to_eps {
+                let mut firsts: Vec<u64> = e.first_optimal.iter().filter_map(|x| *x).collect();
+                firsts.sort_unstable();
+                let median = (firsts.len() == e.first_optimal.len() && !firsts.is_empty())
+                    .then(|| firsts[firsts.len() / 2]);
+                let share =
+                    e.optimal_share.iter().sum::<f64>() / e.optimal_share.len().max(1) as f64;
+                o.push_str(&format!(",{},{share}", opt(median)));
+            }
+            o.push('\n');
+        }
+        o
+    }
+
     /// Where each learner's regret was paid, one row per (learner, h, s, a)
     /// with h 1-based as shown to people: mean regret over seeds and its
     /// share of the learner's regret at K.

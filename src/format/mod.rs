@@ -11,6 +11,17 @@ pub use problems::{Problem, Problems};
 /// The `format` of a JSON document, when it is an object whose `format` is
 /// a string; None for anything else (the model reader then reports what is
 /// wrong with it).
+/// Whether `text` is one of the CSV tables Burnin writes (they start with
+/// `learner,algorithm,`): a reader can then say so instead of reporting a
+/// JSON syntax error.
+pub fn is_burnin_csv(text: &str) -> bool {
+    text.trim_start_matches('\u{feff}')
+        .starts_with("learner,algorithm,")
+}
+
+/// What to tell someone who opened one of Burnin's CSV tables.
+pub const CSV_NOT_OPENED: &str = "this is one of the CSV tables Burnin writes for other tools (curves, summary or regret by cell); Burnin opens JSON files: a model, an experiment, or results (\"Results JSON\", burnin-results or burnin-sweep)";
+
 pub fn identify(text: &str) -> Option<String> {
     #[derive(serde::Deserialize)]
     struct Header {

@@ -357,6 +357,37 @@ await check('the time left is estimated from each learner\'s own measured cost, 
   await page.waitForFunction(() => /^Cancelled/.test(document.getElementById('exp-status').textContent));
 });
 
+await check('the numbers are explained where they are shown, from the core\'s glossary; exports carry their caption; legends name the bound lines', async (page) => {
+  await openPage(page);
+  assert((await page.getAttribute('#optimal-value-term', 'title')).startsWith('V*₁(ρ)'), 'the optimal value is defined in place');
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '300');
+  await runAndWait(page);
+  const hints = await page.locator('#results-table thead th').evaluateAll((ths) => ths.map((t) => [t.textContent, t.title]));
+  for (const name of ['regret at K', 'slope', 'burn-in [95% bootstrap]', 'model updates']) {
+    const h = hints.find(([t]) => t === name);
+    assert(h && h[1].length > 20, `"${name}" has a definition: ${JSON.stringify(h)}`);
+  }
+  await page.click('#glossary summary');
+  const terms = await page.locator('#glossary-list dt').allTextContents();
+  assert(['optimal value', 'burn-in', 'slope', 'published bound', 'lower-bound shape'].every((t) => terms.includes(t)), `glossary: ${terms}`);
+  // The SVG export holds the caption that explains the line styles, and the
+  // legend names the dashed bound lines.
+  await page.check('#show-bounds');
+  const svg = (await downloadText(page, '#export-svg')).text;
+  assert(svg.includes('Shaded: 95% Student-t intervals'), 'the caption is in the exported picture');
+  assert(svg.includes('dashed: published bound'), 'the legend names the bound lines');
+  // The summary table as CSV, a row per learner, from the core.
+  const summary = (await downloadText(page, '#export-summary')).text.trim().split('\n');
+  assert(summary[0].startsWith('learner,algorithm,regret_at_k,regret_lo,regret_hi,slope,burn_in'), summary[0]);
+  assertEqual(summary.length - 1, await page.locator('#results-table tbody tr').count(), 'a row per learner');
+  // A CSV opened in the page is named for what it is, and nothing changes.
+  const csv = (await downloadText(page, '#export-csv')).text;
+  await upload(page, 'results.csv', csv);
+  await page.waitForFunction(() => /CSV tables Burnin writes/.test(document.getElementById('problems').textContent), null, { timeout: 5000 });
+  assert(await page.isVisible('#results'), 'the results stay');
+});
+
 await check('a long run cancels within a quarter second', async (page) => {
   await openPage(page);
   await page.click('#tab-experiment');

@@ -801,7 +801,9 @@ fn results_table(r: &burnin::experiment::Results) -> String {
     }
     let _ = writeln!(
         o,
-        "\nslope: least squares of ln regret on ln k over the last decade; burn-in: the first episode (on the grid 10^(j/16)) from which the log-log slope over every later quarter decade of the mean curve stays ≤ 0.6, with a bootstrap interval over seeds."
+        "\nslope: {}\nburn-in: {}",
+        burnin::catalogue::meaning("slope"),
+        burnin::catalogue::meaning("burn_in")
     );
     for l in &r.learners {
         if let Some(k) = l.bound.as_ref().and_then(|b| b.bonus_below_h) {
