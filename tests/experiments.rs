@@ -177,6 +177,56 @@ fn a_sweep_expands_into_one_experiment_per_value() {
     );
     // Learners without the parameter are untouched.
     assert_eq!(p[1].learners[0], e.learners[0]);
+    // A swept learner's default label no longer names its old value.
+    assert_eq!(e.learners[1].label, "eps-greedy ε=0.2");
+    assert_eq!(p[1].learners[1].label, "eps-greedy (ε swept)");
+}
+
+/// A learner-parameter sweep applies to the learners the file names, and
+/// relabelled learners stay distinct (#19).
+#[test]
+fn a_sweep_applies_to_the_learners_it_names() {
+    let mut v = sweep_experiment(
+        json!({"parameter": "bonus_scale", "values": [0.1, 1.0], "learners": ["mvp ×0.01"]}),
+    );
+    v["learners"] = json!([{"algorithm": "mvp", "bonus_scale": 0.01}, {"algorithm": "mvp", "bonus_scale": 0.5},
+                           {"algorithm": "ucbvi-hoeffding", "bonus_scale": 0.2, "label": "mine"}]);
+    let e = parse_experiment(&v.to_string(), None).unwrap();
+    let p = e.points();
+    assert_eq!(p[1].learners[0].builtin().unwrap().param, 1.0);
+    assert_eq!(p[1].learners[0].label, "mvp (bonus scale swept)");
+    assert_eq!(p[1].learners[1], e.learners[1], "not named: untouched");
+    assert_eq!(p[1].learners[2], e.learners[2], "not named: untouched");
+    // Without a list every learner that takes it is swept; a typed label is
+    // kept; two default labels that would read alike are numbered.
+    v["sweep"] = json!({"parameter": "bonus_scale", "values": [0.1, 1.0]});
+    let e = parse_experiment(&v.to_string(), None).unwrap();
+    let labels: Vec<String> = e.points()[0]
+        .learners
+        .iter()
+        .map(|l| l.label.clone())
+        .collect();
+    assert_eq!(
+        labels,
+        [
+            "mvp (bonus scale swept)",
+            "mvp (bonus scale swept) #2",
+            "mine"
+        ]
+    );
+    assert_eq!(e.points()[0].learners[2].builtin().unwrap().param, 0.1);
+    // Names that are not learners, or learners that do not take it, are refused.
+    v["learners"][2] = json!({"algorithm": "uniform"});
+    v["sweep"] =
+        json!({"parameter": "bonus_scale", "values": [0.1], "learners": ["nobody", "uniform"]});
+    let p = parse_experiment(&v.to_string(), None).unwrap_err().lines();
+    assert_eq!(
+        p,
+        [
+            "sweep.learners[0]: no learner is labelled \"nobody\"",
+            "sweep.learners[1]: \"uniform\" takes no bonus_scale"
+        ]
+    );
 }
 
 #[test]

@@ -337,7 +337,11 @@ export class ExperimentView {
         o = { algorithm: l.algorithm };
         if (p) o[p.key] = l.value;
       }
-      if (l.label.trim()) o.label = l.label.trim();
+      // A label the row came with (not typed here) that names a value the
+      // sweep replaces is left out: the core labels the swept learner.
+      const swept = s.sweep.parameter && !l.guest && this.algorithms.get(l.algorithm)?.param?.key === s.sweep.parameter;
+      const typed = tr.querySelector('input[type=text]').dataset.typed === 'true';
+      if (l.label.trim() && (typed || !swept)) o.label = l.label.trim();
       learners.push(o);
       rows.push(tr);
     });

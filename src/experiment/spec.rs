@@ -167,6 +167,9 @@ fn sweep_keys(generator: Option<&GeneratorSpec>) -> String {
 pub struct Sweep {
     pub parameter: SweepParameter,
     pub values: Vec<f64>,
+    /// For a learner parameter: the labels of the learners it applies to
+    /// (None: every learner that takes it).
+    pub learners: Option<Vec<String>>,
 }
 
 /// Most values in a sweep.
@@ -272,7 +275,7 @@ impl Experiment {
             sweep: self
                 .sweep
                 .as_ref()
-                .map(|s| serde_json::json!({"parameter": s.parameter.key(), "values": s.values})),
+                .map(|s| serde_json::json!({"parameter": s.parameter.key(), "values": s.values, "learners": s.learners})),
             generator: self.generator.as_ref().map(GeneratorSpec::to_json),
             model: crate::write_model(&self.model),
         }
@@ -770,9 +773,40 @@ fn convert(
     };
     if e.sweep.is_some() {
         let sweep = sweep?;
+        if let Some(chosen) = &sweep.learners {
+            let SweepParameter::Learner(p) = sweep.parameter else {
+                r.problems.push(
+                    "sweep.learners",
+                    "only a learner parameter's sweep is applied to chosen learners",
+                );
+                return None;
+            };
+            for (i, label) in chosen.iter().enumerate() {
+                match exp.learners.iter().find(|l| &l.label == label) {
+                    None => r.problems.push(
+                        format!("sweep.learners[{i}]"),
+                        format!("no learner is labelled {label:?}"),
+                    ),
+                    Some(l)
+                        if l.builtin()
+                            .and_then(|a| a.with_param(p.key, p.default))
+                            .is_none() =>
+                    {
+                        r.problems.push(
+                            format!("sweep.learners[{i}]"),
+                            format!("{label:?} takes no {}", p.key),
+                        )
+                    }
+                    Some(_) => {}
+                }
+            }
+            if !r.problems.is_empty() {
+                return None;
+            }
+        }
         // Every point must be runnable before anything runs.
         for (i, &x) in sweep.values.iter().enumerate() {
-            if let Err(p) = exp.point(sweep.parameter, x) {
+            if let Err(p) = exp.point(&sweep, x) {
                 r.problems.nest(&format!("sweep.values[{i}]"), &p);
             }
         }
@@ -798,13 +832,36 @@ fn sweep_of(
         return None;
     };
     for k in map.keys() {
-        if k != "parameter" && k != "values" {
+        if k != "parameter" && k != "values" && k != "learners" {
             r.problems.push(
                 format!("sweep.{k}"),
-                "unknown field; known fields here are parameter, values",
+                "unknown field; known fields here are parameter, values, learners",
             );
         }
     }
+    let learners = match map.get("learners") {
+        None => None,
+        Some(Value::Array(xs)) if !xs.is_empty() && xs.len() <= MAX_LEARNERS => {
+            let mut out = Vec::with_capacity(xs.len());
+            for (i, x) in xs.iter().enumerate() {
+                match x.as_str() {
+                    Some(l) => out.push(l.to_owned()),
+                    None => r.problems.push(
+                        format!("sweep.learners[{i}]"),
+                        format!("expected a learner's label, found {x}"),
+                    ),
+                }
+            }
+            Some(out)
+        }
+        Some(_) => {
+            r.problems.push(
+                "sweep.learners",
+                format!("expected a list of 1 to {MAX_LEARNERS} learners' labels"),
+            );
+            return None;
+        }
+    };
     let Some(Value::String(key)) = map.get("parameter") else {
         r.problems.push(
             "sweep.parameter",
@@ -835,7 +892,11 @@ fn sweep_of(
             return None;
         }
     };
-    Some(Sweep { parameter, values })
+    Some(Sweep {
+        parameter,
+        values,
+        learners,
+    })
 }
 
 /// Resolves a sweep's `parameter`: `delta`, a learner parameter, a numeric
@@ -895,8 +956,10 @@ fn sweep_parameter(
 }
 
 impl Experiment {
-    /// The experiment with the sweep parameter set to `x` (no sweep of its own).
-    pub fn point(&self, parameter: SweepParameter, x: f64) -> Result<Experiment, Problems> {
+    /// The experiment with the sweep's parameter set to `x` (no sweep of
+    /// its own).
+    pub fn point(&self, sweep: &Sweep, x: f64) -> Result<Experiment, Problems> {
+        let parameter = sweep.parameter;
         let mut e = Experiment {
             sweep: None,
             ..self.clone()
@@ -927,10 +990,31 @@ impl Experiment {
                     return bad(msg);
                 }
                 for l in &mut e.learners {
+                    let chosen = sweep.learners.as_ref().is_none_or(|c| c.contains(&l.label));
+                    if !chosen {
+                        continue;
+                    }
                     if let Source::Builtin(alg) = &mut l.source
                         && let Some(a) = alg.with_param(p.key, x)
                     {
+                        // A default label names the value it was given,
+                        // which the sweep replaces: it says so instead.
+                        if l.label == alg.default_label() {
+                            l.label = format!("{} ({} swept)", alg.key(), p.name);
+                        }
                         *alg = a;
+                    }
+                }
+                // Two learners relabelled alike are told apart by number.
+                for i in 1..e.learners.len() {
+                    let mut n = 1;
+                    let base = e.learners[i].label.clone();
+                    while e.learners[..i]
+                        .iter()
+                        .any(|l| l.label == e.learners[i].label)
+                    {
+                        n += 1;
+                        e.learners[i].label = format!("{base} #{n}");
                     }
                 }
             }
@@ -952,7 +1036,7 @@ impl Experiment {
                 .values
                 .iter()
                 .map(|&x| {
-                    self.point(s.parameter, x)
+                    self.point(s, x)
                         .expect("every point was checked when the experiment was read")
                 })
                 .collect(),

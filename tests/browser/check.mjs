@@ -571,6 +571,9 @@ await check('a sweep draws regret at K against the swept parameter', async (page
   await runAndWait(page);
   assertEqual(await page.locator('#chart-view option').first().textContent(), 'regret at K against bonus_scale', 'sweep view');
   assertEqual(await page.locator('#results-table thead th').allTextContents().then((t) => t.slice(1).join('|')), 'bonus_scale = 0.001|bonus_scale = 0.01|bonus_scale = 0.1', 'sweep table');
+  // The swept learners' labels no longer name the value they came with.
+  const swept = await page.locator('#results-table tbody th').allTextContents();
+  assertEqual(swept.join('|'), 'mvp (bonus scale swept)|mvp (bonus scale swept) #2', 'labels follow the sweep');
   await page.screenshot({ path: join(out, 'sweep.png'), fullPage: true });
   await page.fill('#sweep-values', '0.1, -2');
   await page.click('#run-exp');
