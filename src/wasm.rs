@@ -405,6 +405,7 @@ pub fn read_document(text: &str) -> JsValue {
                 set(&obj, "csv", out.to_csv());
                 set(&obj, "cellsCsv", out.cells_csv());
                 set(&obj, "summaryCsv", out.summary_csv());
+                set(&obj, "seedsCsv", out.seeds_csv());
             }
             Err(p) => return problems_value(&p),
         },
@@ -466,6 +467,7 @@ pub fn merge_shards(shards: Vec<String>) -> JsValue {
             set(&obj, "csv", out.to_csv());
             set(&obj, "cellsCsv", out.cells_csv());
             set(&obj, "summaryCsv", out.summary_csv());
+            set(&obj, "seedsCsv", out.seeds_csv());
             obj.into()
         }
         Err(p) => problems_value(&p),

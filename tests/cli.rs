@@ -416,6 +416,33 @@ fn run_prints_a_table_and_writes_csv() {
     );
     let first = lines.next().unwrap();
     assert!(first.starts_with("\"coin, flips\",uniform,1,"), "{first}");
+    // Every seed's curve: the uniform learner's regret is the same exact
+    // amount every episode, so each seed's row at K is K times episode 1's.
+    let seeds = d.0.join("seeds.csv");
+    let r = burnin(&["run", "--seeds-csv", p(&seeds), p(&f)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let text = std::fs::read_to_string(&seeds).unwrap();
+    let rows: Vec<Vec<&str>> = text
+        .lines()
+        .skip(1)
+        .map(|l| l.rsplitn(5, ',').collect())
+        .collect();
+    assert_eq!(
+        text.lines().next().unwrap(),
+        "learner,algorithm,seed_index,run_seed,episode,regret"
+    );
+    let per_seed = rows.len() / 3;
+    assert_eq!(
+        rows.len(),
+        3 * per_seed,
+        "three seeds, the same checkpoints"
+    );
+    let (r1, rk): (f64, f64) = (
+        rows[0][0].parse().unwrap(),
+        rows[per_seed - 1][0].parse().unwrap(),
+    );
+    assert_eq!(rows[per_seed - 1][1], "50");
+    assert!((rk - 50.0 * r1).abs() <= 1e-9 * rk, "{r1} {rk}");
 }
 
 #[test]

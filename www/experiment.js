@@ -98,9 +98,10 @@ export class ExperimentView {
     $('export-csv').addEventListener('click', () => download(`${this.fileBase()}-results.csv`, this.results.csv, 'text/csv'));
     $('export-cells').addEventListener('click', () => download(`${this.fileBase()}-regret-by-cell.csv`, this.results.cellsCsv, 'text/csv'));
     $('export-summary').addEventListener('click', () => download(`${this.fileBase()}-summary.csv`, this.results.summaryCsv, 'text/csv'));
+    $('export-seeds').addEventListener('click', () => download(`${this.fileBase()}-per-seed.csv`, this.results.seedsCsv, 'text/csv'));
     $('heat-view').addEventListener('change', () => this.drawHeat());
     $('save-results').addEventListener('click', () => { hooks.saveResults(this.results.experiment, this.results.text); this.resultsKept = true; });
-    for (const id of ['export-json', 'export-csv', 'export-cells', 'export-summary']) $(id).addEventListener('click', () => { this.resultsKept = true; });
+    for (const id of ['export-json', 'export-csv', 'export-cells', 'export-summary', 'export-seeds']) $(id).addEventListener('click', () => { this.resultsKept = true; });
     $('present').addEventListener('click', () => this.present());
     $('present-close').addEventListener('click', () => this.closePresent());
     document.addEventListener('keydown', (e) => { if (e.key === 'Escape' && !$('presenter').hidden) this.closePresent(); });
@@ -454,7 +455,7 @@ export class ExperimentView {
         this.showProblems(r, file.rows);
       } else {
         const secs = (performance.now() - t0) / 1000;
-        this.setResults({ text: r.json, csv: r.csv, cellsCsv: r.cellsCsv, summaryCsv: r.summaryCsv, experiment: file.text });
+        this.setResults({ text: r.json, csv: r.csv, cellsCsv: r.cellsCsv, summaryCsv: r.summaryCsv, seedsCsv: r.seedsCsv, experiment: file.text });
         /** Whether these results are saved somewhere (library or a file): only then may opening another model clear them unasked. */
         this.resultsKept = false;
         $('exp-status').textContent = `Done in ${secs.toFixed(1)} s on ${job.workers} worker${job.workers === 1 ? '' : 's'}.`;
@@ -504,6 +505,7 @@ export class ExperimentView {
     }
     $('export-csv').disabled = !this.results.csv;
     $('export-summary').disabled = !this.results.summaryCsv;
+    $('export-seeds').disabled = !this.results.seedsCsv;
     const decomposed = !sweep && data.learners.some((l) => l.regret_by_cell?.length);
     $('export-cells').disabled = !decomposed || !this.results.cellsCsv;
     for (const o of $('heat-view').options) if (o.value !== 'visits') o.disabled = !decomposed || (o.value === 'regret-diff' && data.learners.length < 2);
@@ -581,6 +583,16 @@ export class ExperimentView {
         const applies = l.bound.applies !== false;
         series.push({ label: applies ? `${l.label}: published bound` : `${l.label}: bound, does not apply (bonus scaled)`, color, x: l.checkpoints, y: l.bound.values, dash: applies ? [7, 4] : [2, 7], width: 1.2, legend: !applies });
       }
+      // Burn-in: a short tick on the curve where its slope settles.
+      if (!episode && l.burn_in !== null && l.burn_in !== undefined) {
+        const k = l.checkpoints;
+        let j = 0;
+        for (let i = 1; i < k.length; i++) if (Math.abs(k[i] - l.burn_in) < Math.abs(k[j] - l.burn_in)) j = i;
+        const y = l.regret_mean[j];
+        const top = Math.max(...l.regret_mean);
+        const [lo, hi] = log ? [y / 1.35, y * 1.35] : [y - 0.04 * top, y + 0.04 * top];
+        series.push({ label: `${l.label}: burn-in`, color, x: [l.burn_in, l.burn_in], y: [lo, hi], width: 3, legend: false });
+      }
       // Where MVP's bonus falls below H whatever the data (even visits): a vertical mark.
       const mark = l.bound?.bonus_below_h;
       if (!episode && mark && mark <= l.checkpoints[l.checkpoints.length - 1]) {
@@ -589,6 +601,9 @@ export class ExperimentView {
         series.push({ label: `${l.label}: bonus < H from K ≈ ${grouped(mark)}`, color, x: [mark, mark], y: [bottom, top], dash: [1, 3], width: 1.5 });
       }
     });
+    if (!episode && d.learners.some((l) => l.burn_in !== null && l.burn_in !== undefined)) {
+      series.push({ label: 'thick tick: burn-in (the slope settles)', color: '#5d676b', x: [], y: [], width: 3 });
+    }
     if (!episode && $('show-bounds').checked && d.learners.some((l) => l.bound && l.bound.applies !== false)) {
       // One legend entry says what every dashed line in a learner's colour is.
       series.push({ label: 'dashed: published bound (learner\u2019s colour)', color: '#5d676b', x: [], y: [], dash: [7, 4], width: 1.2 });
@@ -627,7 +642,8 @@ export class ExperimentView {
     if (i < 0) { tip.hidden = true; return; }
     const sweep = $('chart-view').value === 'sweep';
     const lines = [`${sweep ? this.results.data.parameter : 'k'} = ${sweep ? Number(this.layout.xs[i].toPrecision(4)) : grouped(this.layout.xs[i])}`];
-    for (const s of this.layout.series) {
+    // Curves only: markers (burn-in ticks, bonus marks, legend-only entries) have no value at k.
+    for (const s of this.layout.series.filter((x) => x.x.length === this.layout.xs.length)) {
       lines.push(`${s.label}: ${short(s.y[i])}${s.lo && s.hi ? ` [${short(s.lo[i])}, ${short(s.hi[i])}]` : ''}`);
     }
     tip.textContent = lines.join('\n');

@@ -165,7 +165,7 @@ async function openText(text, label) {
   }
   if (doc.kind === 'results') {
     try {
-      experiment.setResults({ text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, experiment: null });
+      experiment.setResults({ text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, experiment: null });
       showTab('experiment');
       notice(`Showing results from ${label}.`);
     } catch (err) {
@@ -289,7 +289,7 @@ async function openEntry(id) {
       if (doc.ok && doc.kind === 'experiment') experiment.applySetup(setupFromSummary(doc.experiment));
     }
     const results = e.results ? await readDocument(e.results) : null;
-    if (results?.ok && results.kind === 'results') { experiment.setResults({ text: results.json, csv: results.csv, cellsCsv: results.cellsCsv, summaryCsv: results.summaryCsv, experiment: e.experiment }); showTab('experiment'); } else showTab('solution');
+    if (results?.ok && results.kind === 'results') { experiment.setResults({ text: results.json, csv: results.csv, cellsCsv: results.cellsCsv, summaryCsv: results.summaryCsv, seedsCsv: results.seedsCsv, experiment: e.experiment }); showTab('experiment'); } else showTab('solution');
     saveWork();
   }
 }
@@ -477,7 +477,7 @@ async function start() {
       if (saved.results) {
         // The CSVs are the core's to write: read the saved results again.
         const doc = await readDocument(saved.results.text);
-        experiment.setResults(doc.ok && doc.kind === 'results' ? { ...saved.results, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv } : saved.results);
+        experiment.setResults(doc.ok && doc.kind === 'results' ? { ...saved.results, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv } : saved.results);
       }
     }
     if (shown !== false) return;

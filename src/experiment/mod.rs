@@ -18,10 +18,10 @@ mod spec;
 pub use shard::{SHARD_FORMAT, SHARD_VERSION, ShardFile, merge};
 
 pub use results::{
-    BOOTSTRAP_RESAMPLES, Cell, Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS, RESULTS_FORMAT,
-    RESULTS_VERSION, Results, SETTLED_SLOPE, SLOPE_WINDOW_DECADES, SWEEP_FORMAT, SweepLearner,
-    SweepResults, burn_in, burn_in_interval, csv_field, parse_results, summarise, tail_slope,
-    verdict,
+    BOOTSTRAP_RESAMPLES, Cell, Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS,
+    MAX_SEED_CURVE_VALUES, RESULTS_FORMAT, RESULTS_VERSION, Results, SETTLED_SLOPE,
+    SLOPE_WINDOW_DECADES, SWEEP_FORMAT, SweepLearner, SweepResults, burn_in, burn_in_interval,
+    csv_field, parse_results, summarise, tail_slope, verdict,
 };
 pub use spec::{
     DEFAULT_SEEDS, EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary,
@@ -507,6 +507,19 @@ impl Output {
             Output::Sweep(r) => r.to_csv(),
         }
     }
+    /// Every seed's regret curve (for a sweep, each point's, with the swept
+    /// value in front).
+    pub fn seeds_csv(&self) -> String {
+        match self {
+            Output::Single(r) => r.seeds_csv(),
+            Output::Sweep(r) => prefixed_csv(
+                &r.parameter,
+                &r.values,
+                r.points.iter().map(Results::seeds_csv),
+            ),
+        }
+    }
+
     /// The summary table, a row per learner (for a sweep, of each point,
     /// with the swept value in front).
     pub fn summary_csv(&self) -> String {

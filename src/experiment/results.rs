@@ -81,6 +81,10 @@ impl LearnerResult {
     }
 }
 
+/// Most per-seed curve values a learner's results carry (seeds ×
+/// checkpoints): 100 000, so a results file stays a few megabytes.
+pub const MAX_SEED_CURVE_VALUES: usize = 100_000;
+
 /// One learner's summary.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct LearnerResult {
@@ -101,6 +105,11 @@ pub struct LearnerResult {
     /// Mean cumulative realised return.
     pub return_mean: Vec<f64>,
     pub final_regret: Vec<f64>,
+    /// Each seed's cumulative regret at every checkpoint, `[seed][checkpoint]`
+    /// (empty when seeds × checkpoints exceeds [`MAX_SEED_CURVE_VALUES`], and
+    /// in files written before it was added).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub regret_by_seed: Vec<Vec<f64>>,
     pub model_updates: Vec<u64>,
     pub run_seeds: Vec<u64>,
     /// Least-squares slope of ln(mean regret) on ln k over the last decade
@@ -479,6 +488,11 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
                 episode_regret_mean: ep,
                 return_mean: ret,
                 final_regret: runs.iter().map(|r| *r.regret.last().unwrap()).collect(),
+                regret_by_seed: if runs.len() * ks.len() <= MAX_SEED_CURVE_VALUES {
+                    runs.iter().map(|r| r.regret.clone()).collect()
+                } else {
+                    Vec::new()
+                },
                 model_updates: runs.iter().map(|r| r.model_updates).collect(),
                 run_seeds: runs.iter().map(|r| r.seed).collect(),
                 episodes_to_eps,
@@ -513,6 +527,25 @@ impl Results {
     /// The results as JSON (format v1).
     pub fn to_json(&self) -> String {
         serde_json::to_string_pretty(self).expect("results hold no non-finite numbers") + "\n"
+    }
+
+    /// Every seed's curve, one row per (learner, seed, checkpoint):
+    /// cumulative regret of that run.
+    pub fn seeds_csv(&self) -> String {
+        let mut o = String::from("learner,algorithm,seed_index,run_seed,episode,regret\n");
+        for l in &self.learners {
+            for (j, curve) in l.regret_by_seed.iter().enumerate() {
+                for (k, x) in l.checkpoints.iter().zip(curve) {
+                    o.push_str(&format!(
+                        "{},{},{j},{},{k},{x}\n",
+                        csv_field(&l.label),
+                        l.algorithm,
+                        l.run_seeds[j]
+                    ));
+                }
+            }
+        }
+        o
     }
 
     /// The summary table, one row per learner: regret at K with its

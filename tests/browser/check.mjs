@@ -377,10 +377,15 @@ await check('the numbers are explained where they are shown, from the core\'s gl
   const svg = (await downloadText(page, '#export-svg')).text;
   assert(svg.includes('Shaded: 95% Student-t intervals'), 'the caption is in the exported picture');
   assert(svg.includes('dashed: published bound'), 'the legend names the bound lines');
+  assert(svg.includes('thick tick: burn-in'), 'the legend names the burn-in ticks');
   // The summary table as CSV, a row per learner, from the core.
   const summary = (await downloadText(page, '#export-summary')).text.trim().split('\n');
   assert(summary[0].startsWith('learner,algorithm,regret_at_k,regret_lo,regret_hi,slope,burn_in'), summary[0]);
   assertEqual(summary.length - 1, await page.locator('#results-table tbody tr').count(), 'a row per learner');
+  const r = await resultsJson(page);
+  const seeds = (await downloadText(page, '#export-seeds')).text.trim().split('\n');
+  assertEqual(seeds[0], 'learner,algorithm,seed_index,run_seed,episode,regret', 'per-seed header');
+  assertEqual(seeds.length - 1, r.learners.reduce((n, l) => n + l.run_seeds.length * l.checkpoints.length, 0), 'a row per (learner, seed, checkpoint)');
   // A CSV opened in the page is named for what it is, and nothing changes.
   const csv = (await downloadText(page, '#export-csv')).text;
   await upload(page, 'results.csv', csv);

@@ -56,6 +56,9 @@ enum Command {
         /// state, action), as CSV to this file.
         #[arg(long, value_name = "FILE")]
         cells_csv: Option<PathBuf>,
+        /// Also write every seed's regret curve as CSV to this file.
+        #[arg(long, value_name = "FILE")]
+        seeds_csv: Option<PathBuf>,
         /// Runs in parallel (default: the machine's cores); results do not depend on it.
         #[arg(long, value_name = "N")]
         threads: Option<usize>,
@@ -96,6 +99,9 @@ enum Command {
         /// Also write where the regret was paid as CSV to this file.
         #[arg(long, value_name = "FILE")]
         cells_csv: Option<PathBuf>,
+        /// Also write every seed's regret curve as CSV to this file.
+        #[arg(long, value_name = "FILE")]
+        seeds_csv: Option<PathBuf>,
     },
     /// Rewrite a model file in the canonical layout (fields in order, one
     /// transition row per line) on standard output.
@@ -229,6 +235,7 @@ fn main() -> ExitCode {
             json,
             csv,
             cells_csv,
+            seeds_csv,
             threads,
             shard,
             learners,
@@ -239,6 +246,7 @@ fn main() -> ExitCode {
                 json,
                 csv: csv.as_deref(),
                 cells_csv: cells_csv.as_deref(),
+                seeds_csv: seeds_csv.as_deref(),
                 threads,
                 shard: shard.as_deref(),
                 learners: &learners,
@@ -250,7 +258,16 @@ fn main() -> ExitCode {
             json,
             csv,
             cells_csv,
-        } => merge(&files, json, csv.as_deref(), cells_csv.as_deref()),
+            seeds_csv,
+        } => merge(
+            &files,
+            json,
+            &Tables {
+                csv: csv.as_deref(),
+                cells: cells_csv.as_deref(),
+                seeds: seeds_csv.as_deref(),
+            },
+        ),
         Command::Bench {
             quick,
             only,
@@ -578,7 +595,15 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     for (_, p, r) in records {
         by_point[p].push(r);
     }
-    finish_output(&assemble(&exp, &points, by_point), json, csv, o.cells_csv)
+    finish_output(
+        &assemble(&exp, &points, by_point),
+        json,
+        &Tables {
+            csv,
+            cells: o.cells_csv,
+            seeds: o.seeds_csv,
+        },
+    )
 }
 
 /// `burnin run`'s options besides the file.
@@ -586,22 +611,35 @@ struct RunOptions<'a> {
     json: bool,
     csv: Option<&'a Path>,
     cells_csv: Option<&'a Path>,
+    seeds_csv: Option<&'a Path>,
     threads: Option<usize>,
     shard: Option<&'a str>,
     learners: &'a [String],
     learner_timeout: f64,
 }
 
+/// The CSV tables `run` and `merge` may write besides their output.
+struct Tables<'a> {
+    csv: Option<&'a Path>,
+    cells: Option<&'a Path>,
+    seeds: Option<&'a Path>,
+}
+
 fn finish_output(
     out: &burnin::experiment::Output,
     json: bool,
-    csv: Option<&Path>,
-    cells_csv: Option<&Path>,
+    tables: &Tables,
 ) -> Result<(), Failure> {
     use burnin::experiment::Output;
-    for (path, text) in [(csv, out.to_csv()), (cells_csv, out.cells_csv())] {
+    type Writer = fn(&Output) -> String;
+    let writers: [(Option<&Path>, Writer); 3] = [
+        (tables.csv, Output::to_csv),
+        (tables.cells, Output::cells_csv),
+        (tables.seeds, Output::seeds_csv),
+    ];
+    for (path, write) in writers {
         if let Some(p) = path {
-            std::fs::write(p, text)
+            std::fs::write(p, write(out))
                 .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display())))?;
         }
     }
@@ -614,12 +652,7 @@ fn finish_output(
     })
 }
 
-fn merge(
-    files: &[PathBuf],
-    json: bool,
-    csv: Option<&Path>,
-    cells_csv: Option<&Path>,
-) -> Result<(), Failure> {
+fn merge(files: &[PathBuf], json: bool, tables: &Tables) -> Result<(), Failure> {
     let mut shards = Vec::with_capacity(files.len());
     for f in files {
         let text = read_text(f)?;
@@ -630,7 +663,7 @@ fn merge(
     }
     let name = |i: usize| files[i].display().to_string();
     let out = burnin::experiment::merge(&shards, &name).map_err(invalid)?;
-    finish_output(&out, json, csv, cells_csv)
+    finish_output(&out, json, tables)
 }
 
 /// Width of a table's learner column: its longest label, at least "learner".
