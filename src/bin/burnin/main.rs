@@ -49,16 +49,8 @@ enum Command {
         /// Print the results as JSON (burnin-results v1) instead of a table.
         #[arg(long)]
         json: bool,
-        /// Also write the curves as CSV to this file.
-        #[arg(long, value_name = "FILE")]
-        csv: Option<PathBuf>,
-        /// Also write where the regret was paid, one row per (learner, step,
-        /// state, action), as CSV to this file.
-        #[arg(long, value_name = "FILE")]
-        cells_csv: Option<PathBuf>,
-        /// Also write every seed's regret curve as CSV to this file.
-        #[arg(long, value_name = "FILE")]
-        seeds_csv: Option<PathBuf>,
+        #[command(flatten)]
+        tables: TableArgs,
         /// Runs in parallel (default: the machine's cores); results do not depend on it.
         #[arg(long, value_name = "N")]
         threads: Option<usize>,
@@ -93,15 +85,8 @@ enum Command {
         /// Print the results as JSON instead of a table.
         #[arg(long)]
         json: bool,
-        /// Also write the curves as CSV to this file.
-        #[arg(long, value_name = "FILE")]
-        csv: Option<PathBuf>,
-        /// Also write where the regret was paid as CSV to this file.
-        #[arg(long, value_name = "FILE")]
-        cells_csv: Option<PathBuf>,
-        /// Also write every seed's regret curve as CSV to this file.
-        #[arg(long, value_name = "FILE")]
-        seeds_csv: Option<PathBuf>,
+        #[command(flatten)]
+        tables: TableArgs,
     },
     /// Rewrite a model file in the canonical layout (fields in order, one
     /// transition row per line) on standard output.
@@ -123,6 +108,31 @@ enum Command {
         #[arg(long, short, global = true)]
         output: Option<PathBuf>,
     },
+}
+
+/// The CSV tables `run` and `merge` can write besides their output.
+#[derive(clap::Args)]
+struct TableArgs {
+    /// Also write the curves as CSV to this file.
+    #[arg(long, value_name = "FILE")]
+    csv: Option<PathBuf>,
+    /// Also write where the regret was paid, one row per (learner, step,
+    /// state, action), as CSV to this file.
+    #[arg(long, value_name = "FILE")]
+    cells_csv: Option<PathBuf>,
+    /// Also write every seed's regret curve as CSV to this file.
+    #[arg(long, value_name = "FILE")]
+    seeds_csv: Option<PathBuf>,
+}
+
+impl TableArgs {
+    fn tables(&self) -> Tables<'_> {
+        Tables {
+            csv: self.csv.as_deref(),
+            cells: self.cells_csv.as_deref(),
+            seeds: self.seeds_csv.as_deref(),
+        }
+    }
 }
 
 /// `burnin generate KIND --param …`: one subcommand per generator of the
@@ -233,9 +243,7 @@ fn main() -> ExitCode {
         Command::Run {
             file,
             json,
-            csv,
-            cells_csv,
-            seeds_csv,
+            tables,
             threads,
             shard,
             learners,
@@ -244,9 +252,7 @@ fn main() -> ExitCode {
             &file,
             &RunOptions {
                 json,
-                csv: csv.as_deref(),
-                cells_csv: cells_csv.as_deref(),
-                seeds_csv: seeds_csv.as_deref(),
+                tables: tables.tables(),
                 threads,
                 shard: shard.as_deref(),
                 learners: &learners,
@@ -256,18 +262,8 @@ fn main() -> ExitCode {
         Command::Merge {
             files,
             json,
-            csv,
-            cells_csv,
-            seeds_csv,
-        } => merge(
-            &files,
-            json,
-            &Tables {
-                csv: csv.as_deref(),
-                cells: cells_csv.as_deref(),
-                seeds: seeds_csv.as_deref(),
-            },
-        ),
+            tables,
+        } => merge(&files, json, &tables.tables()),
         Command::Bench {
             quick,
             only,
@@ -479,7 +475,7 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     use std::sync::atomic::{AtomicBool, AtomicU64, AtomicUsize, Ordering};
     use std::sync::{Arc, Mutex};
 
-    let (json, csv, threads) = (o.json, o.csv, o.threads);
+    let (json, threads) = (o.json, o.threads);
     let shard = o.shard.map(parse_shard).transpose()?;
     if !(o.learner_timeout > 0.0 && o.learner_timeout <= 86_400.0) {
         return Err(Failure::Io(format!(
@@ -595,23 +591,13 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     for (_, p, r) in records {
         by_point[p].push(r);
     }
-    finish_output(
-        &assemble(&exp, &points, by_point),
-        json,
-        &Tables {
-            csv,
-            cells: o.cells_csv,
-            seeds: o.seeds_csv,
-        },
-    )
+    finish_output(&assemble(&exp, &points, by_point), json, &o.tables)
 }
 
 /// `burnin run`'s options besides the file.
 struct RunOptions<'a> {
     json: bool,
-    csv: Option<&'a Path>,
-    cells_csv: Option<&'a Path>,
-    seeds_csv: Option<&'a Path>,
+    tables: Tables<'a>,
     threads: Option<usize>,
     shard: Option<&'a str>,
     learners: &'a [String],
