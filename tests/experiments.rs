@@ -197,6 +197,14 @@ fn a_sweep_applies_to_the_learners_it_names() {
     assert_eq!(p[1].learners[0].label, "mvp (bonus scale swept)");
     assert_eq!(p[1].learners[1], e.learners[1], "not named: untouched");
     assert_eq!(p[1].learners[2], e.learners[2], "not named: untouched");
+    // The same by index (what the page writes).
+    v["sweep"]["learners"] = json!([0]);
+    assert_eq!(parse_experiment(&v.to_string(), None).unwrap().points(), p);
+    v["sweep"]["learners"] = json!([7]);
+    assert_eq!(
+        parse_experiment(&v.to_string(), None).unwrap_err().lines(),
+        ["sweep.learners[0]: there is no learner 7 (learners are 0 … 2)"]
+    );
     // Without a list every learner that takes it is swept; a typed label is
     // kept; two default labels that would read alike are numbered.
     v["sweep"] = json!({"parameter": "bonus_scale", "values": [0.1, 1.0]});

@@ -83,6 +83,7 @@ export class ExperimentView {
     $('exp-form').addEventListener('submit', (e) => { e.preventDefault(); this.run(); });
     $('exp-form').addEventListener('input', () => { hooks.changed(); this.recheckSoon(); });
     $('exp-form').addEventListener('change', () => this.recheckSoon());
+    $('sweep-param').addEventListener('change', () => this.syncSweepPicks());
     $('cancel-exp').addEventListener('click', () => {
       if (!this.running) return;
       this.cancelAt = performance.now();
@@ -188,8 +189,18 @@ export class ExperimentView {
     const paramCell = td(paramName);
     paramCell.append(param);
     paramCell.classList.add('param-cell');
-    tr.append(td(use), td(alg), paramCell, td(label), td(remove));
+    // Whether a sweep over this row's parameter applies to it (shown only
+    // when the sweep varies a parameter the row's algorithm takes).
+    const pick = el('label', null, { class: 'sweep-pick' });
+    const picked = el('input', null, { type: 'checkbox', class: 'swept' });
+    picked.checked = l.swept !== false;
+    pick.append(picked, ' swept');
+    const labelCell = td(label);
+    labelCell.append(pick);
+    alg.addEventListener('change', () => this.syncSweepPicks());
+    tr.append(td(use), td(alg), paramCell, labelCell, td(remove));
     this.rows.append(tr);
+    this.syncSweepPicks();
   }
 
   /** Fills an algorithm menu: the catalogue's algorithms, then the user's learners; selects `value`. */
@@ -292,6 +303,15 @@ export class ExperimentView {
     dialog.showModal();
   }
 
+  /** Shows each row's "swept" choice where the sweep varies a parameter its algorithm takes. */
+  syncSweepPicks() {
+    const key = $('sweep-param').value;
+    for (const tr of this.rows.children) {
+      const alg = tr.querySelector('select').value;
+      tr.querySelector('.sweep-pick').hidden = !key || this.algorithms.get(alg)?.param?.key !== key;
+    }
+  }
+
   /** The form as a plain object (autosave, share links). */
   setup() {
     return {
@@ -301,7 +321,7 @@ export class ExperimentView {
       learners: [...this.rows.children].map((tr) => {
         const [use, alg, param, label] = tr.querySelectorAll('input, select');
         if (alg.value.startsWith('guest:')) return { use: use.checked, guest: alg.value.slice(6), value: null, label: label.value };
-        return { use: use.checked, algorithm: alg.value, value: param.disabled ? null : Number(param.value), label: label.value };
+        return { use: use.checked, algorithm: alg.value, value: param.disabled ? null : Number(param.value), label: label.value, swept: tr.querySelector('.swept').checked };
       }),
       sweep: { parameter: $('sweep-param').value, values: $('sweep-values').value },
     };
@@ -320,6 +340,7 @@ export class ExperimentView {
     }
     $('sweep-param').value = d.sweep?.parameter || '';
     $('sweep-values').value = d.sweep?.values || '';
+    this.syncSweepPicks();
   }
 
   /** The experiment file for the current model and form, and the learners' rows. */
@@ -340,7 +361,7 @@ export class ExperimentView {
       }
       // A label the row came with (not typed here) that names a value the
       // sweep replaces is left out: the core labels the swept learner.
-      const swept = s.sweep.parameter && !l.guest && this.algorithms.get(l.algorithm)?.param?.key === s.sweep.parameter;
+      const swept = s.sweep.parameter && !l.guest && l.swept !== false && this.algorithms.get(l.algorithm)?.param?.key === s.sweep.parameter;
       const typed = tr.querySelector('input[type=text]').dataset.typed === 'true';
       if (l.label.trim() && (typed || !swept)) o.label = l.label.trim();
       learners.push(o);
@@ -350,6 +371,12 @@ export class ExperimentView {
     if (s.decompose) exp.decompose = true;
     if (s.sweep.parameter) {
       exp.sweep = { parameter: s.sweep.parameter, values: s.sweep.values.split(/[,\s]+/).filter(Boolean).map(Number) };
+      // Learners the sweep could apply to, and those the user left it on for.
+      const takes = (l) => !l.guest && this.algorithms.get(l.algorithm)?.param?.key === s.sweep.parameter;
+      const used = s.learners.filter((l) => l.use);
+      const able = used.map((l, i) => (takes(l) ? i : -1)).filter((i) => i >= 0);
+      const chosen = able.filter((i) => used[i].swept !== false);
+      if (chosen.length && chosen.length < able.length) exp.sweep.learners = chosen;
     }
     const byGenerator = s.sweep.parameter && m.generator && !this.catalogue.sweep_keys.includes(s.sweep.parameter);
     if (byGenerator) return { text: JSON.stringify({ ...exp, generator: m.generator }), rows };

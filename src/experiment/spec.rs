@@ -772,7 +772,28 @@ fn convert(
         learners: specs,
     };
     if e.sweep.is_some() {
-        let sweep = sweep?;
+        let mut sweep = sweep?;
+        // Indices become labels (a label may itself start with '#').
+        if let Some(chosen) = &mut sweep.learners {
+            let raw = raw_sweep_learners(e.sweep.as_ref());
+            for (i, c) in chosen.iter_mut().enumerate() {
+                if let Some(k) = raw.get(i).and_then(serde_json::Value::as_u64) {
+                    match exp.learners.get(k as usize) {
+                        Some(l) => *c = l.label.clone(),
+                        None => r.problems.push(
+                            format!("sweep.learners[{i}]"),
+                            format!(
+                                "there is no learner {k} (learners are 0 … {})",
+                                exp.learners.len() - 1
+                            ),
+                        ),
+                    }
+                }
+            }
+            if !r.problems.is_empty() {
+                return None;
+            }
+        }
         if let Some(chosen) = &sweep.learners {
             let SweepParameter::Learner(p) = sweep.parameter else {
                 r.problems.push(
@@ -844,11 +865,16 @@ fn sweep_of(
         Some(Value::Array(xs)) if !xs.is_empty() && xs.len() <= MAX_LEARNERS => {
             let mut out = Vec::with_capacity(xs.len());
             for (i, x) in xs.iter().enumerate() {
-                match x.as_str() {
-                    Some(l) => out.push(l.to_owned()),
-                    None => r.problems.push(
+                match (x.as_str(), x.as_u64()) {
+                    (Some(l), _) => out.push(l.to_owned()),
+                    // An index into "learners", kept as "#i" until the
+                    // learners are read.
+                    (_, Some(k)) => out.push(format!("#{k}")),
+                    _ => r.problems.push(
                         format!("sweep.learners[{i}]"),
-                        format!("expected a learner's label, found {x}"),
+                        format!(
+                            "expected a learner's label or its index in \"learners\", found {x}"
+                        ),
                     ),
                 }
             }
@@ -897,6 +923,15 @@ fn sweep_of(
         values,
         learners,
     })
+}
+
+/// The raw `sweep.learners` list, for resolving indices.
+fn raw_sweep_learners(sweep: Option<&serde_json::Value>) -> Vec<serde_json::Value> {
+    sweep
+        .and_then(|v| v.get("learners"))
+        .and_then(|v| v.as_array())
+        .cloned()
+        .unwrap_or_default()
 }
 
 /// Resolves a sweep's `parameter`: `delta`, a learner parameter, a numeric

@@ -570,7 +570,7 @@ await check('a sweep draws regret at K against the swept parameter', async (page
   await page.fill('#exp-seeds', '2');
   // Keep two learners.
   const rows = page.locator('#learner-rows tr');
-  for (let i = 2; i < await rows.count(); i++) await rows.nth(i).locator('input[type=checkbox]').uncheck();
+  for (let i = 2; i < await rows.count(); i++) await rows.nth(i).locator('input[type=checkbox]:not(.swept)').uncheck();
   await page.selectOption('#sweep-param', 'bonus_scale');
   await page.fill('#sweep-values', '0.001, 0.01, 0.1');
   await runAndWait(page);
@@ -579,6 +579,14 @@ await check('a sweep draws regret at K against the swept parameter', async (page
   // The swept learners' labels no longer name the value they came with.
   const swept = await page.locator('#results-table tbody th').allTextContents();
   assertEqual(swept.join('|'), 'mvp (bonus scale swept)|mvp (bonus scale swept) #2', 'labels follow the sweep');
+  // A sweep applies to the learners the user leaves it on for.
+  await page.locator('#learner-rows tr:nth-child(1) .swept').uncheck();
+  await runAndWait(page);
+  const picked = await page.locator('#results-table tbody th').allTextContents();
+  assertEqual(picked.join('|'), 'MVP, theory constants|mvp (bonus scale swept)', 'only the second is swept');
+  const r = await resultsJson(page);
+  assertEqual(r.points[0].learners[0].label, 'MVP, theory constants', 'the first keeps its own value');
+  assert(r.points.every((pt) => pt.learners[0].final_regret[0] === r.points[0].learners[0].final_regret[0]), 'and the same numbers at every point');
   await page.screenshot({ path: join(out, 'sweep.png'), fullPage: true });
   await page.fill('#sweep-values', '0.1, -2');
   await page.click('#run-exp');
@@ -797,7 +805,7 @@ await check('the generator form and the sweep list come from the core\'s catalog
   await page.fill('#exp-episodes', '200');
   await page.fill('#exp-seeds', '2');
   const rows = page.locator('#learner-rows tr');
-  for (let i = 1; i < await rows.count(); i++) await rows.nth(i).locator('input[type=checkbox]').uncheck();
+  for (let i = 1; i < await rows.count(); i++) await rows.nth(i).locator('input[type=checkbox]:not(.swept)').uncheck();
   await page.selectOption('#sweep-param', 'slip');
   await page.fill('#sweep-values', '0, 0.3');
   await runAndWait(page);
@@ -812,7 +820,7 @@ await check('one seed shows no interval and says so; the default set-up runs eig
   await page.fill('#exp-episodes', '100');
   await page.fill('#exp-seeds', '1');
   const rows = page.locator('#learner-rows tr');
-  for (let i = 1; i < await rows.count(); i++) await rows.nth(i).locator('input[type=checkbox]').uncheck();
+  for (let i = 1; i < await rows.count(); i++) await rows.nth(i).locator('input[type=checkbox]:not(.swept)').uncheck();
   await runAndWait(page);
   const cells = await page.locator('#results-table tbody tr').first().locator('td').allTextContents();
   assertEqual(cells[1], 'n/a (one seed)', 'interval cell');
@@ -829,7 +837,7 @@ await check('two learners are compared by a paired interval with a one-line verd
   const rows = page.locator('#learner-rows tr');
   // Keep ε-greedy and uniform.
   const algs = await rows.evaluateAll((trs) => trs.map((tr) => tr.querySelector('select').value));
-  for (let i = 0; i < algs.length; i++) if (!['eps-greedy', 'uniform'].includes(algs[i])) await rows.nth(i).locator('input[type=checkbox]').uncheck();
+  for (let i = 0; i < algs.length; i++) if (!['eps-greedy', 'uniform'].includes(algs[i])) await rows.nth(i).locator('input[type=checkbox]:not(.swept)').uncheck();
   await runAndWait(page);
   const results = JSON.parse((await downloadText(page, '#export-json')).text);
   assertEqual(results.comparisons.length, 1, 'one pair');
