@@ -658,3 +658,63 @@ fn run_prints_a_paired_verdict_per_pair() {
         r.stdout
     );
 }
+
+/// Output safety (#11): a table that cannot be written does not lose the
+/// results; a table path that is the experiment file is refused before
+/// anything runs; control characters in labels never reach the terminal.
+#[test]
+fn outputs_fail_safely() {
+    let d = Scratch::new("output-safety");
+    let f = experiment_file(
+        &d,
+        r#"[{"algorithm": "uniform", "label": "\u001b[31mred"}]"#,
+        20,
+    );
+    // A directory cannot be written as a file: the table still goes out.
+    let r = burnin(&["run", "--csv", p(&d.0), p(&f)]);
+    assert_eq!(r.code, 2, "{}", r.stderr);
+    assert!(
+        r.stdout.contains("regret at K"),
+        "the results are printed: {}",
+        r.stdout
+    );
+    assert!(
+        r.stderr.contains("cannot write") && r.stderr.contains("the results were printed"),
+        "{}",
+        r.stderr
+    );
+    // Escapes, not terminal control sequences.
+    assert!(!r.stdout.contains('\u{1b}'), "no raw escape character");
+    assert!(r.stdout.contains("\\u{1b}[31mred"), "{}", r.stdout);
+    // The experiment file as a table path: refused, the file untouched.
+    let before = std::fs::read_to_string(&f).unwrap();
+    let r = burnin(&["run", "--seeds-csv", p(&f), p(&f)]);
+    assert_eq!(r.code, 2);
+    assert!(
+        r.stderr.contains("--seeds-csv") && r.stderr.contains("is an input file"),
+        "{}",
+        r.stderr
+    );
+    assert!(r.stdout.is_empty());
+    assert_eq!(std::fs::read_to_string(&f).unwrap(), before);
+}
+
+/// A model_path is read under the same size limit as any file (#11): a
+/// device that never ends is refused, not read until memory runs out.
+#[cfg(target_os = "linux")]
+#[test]
+fn model_path_reads_are_bounded() {
+    let d = Scratch::new("model-path-limit");
+    let f = d.file(
+        "e.json",
+        r#"{"format": "burnin-experiment", "version": 1, "model_path": "/dev/zero", "episodes": 10, "learners": [{"algorithm": "uniform"}]}"#,
+    );
+    let r = burnin(&["run", p(&f)]);
+    assert_eq!(r.code, 1, "{}", r.stderr);
+    assert!(
+        r.stderr
+            .contains("model_path: /dev/zero: file is over the limit of"),
+        "{}",
+        r.stderr
+    );
+}

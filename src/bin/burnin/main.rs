@@ -476,6 +476,7 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     use std::sync::{Arc, Mutex};
 
     let (json, threads) = (o.json, o.threads);
+    check_table_paths(&o.tables, &[path])?;
     let shard = o.shard.map(parse_shard).transpose()?;
     if !(o.learner_timeout > 0.0 && o.learner_timeout <= 86_400.0) {
         return Err(Failure::Io(format!(
@@ -492,10 +493,12 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
     let model_text = Mutex::new(None::<String>);
     let loader = |rel: &str| -> Result<String, String> {
-        let p = base.join(rel);
-        let bytes = std::fs::read(&p).map_err(|e| format!("cannot read {}: {e}", p.display()))?;
-        let t =
-            String::from_utf8(bytes).map_err(|_| format!("{} is not UTF-8 text", p.display()))?;
+        // The same size limit as any file given on the command line, applied
+        // while reading (a device file or a huge file is not read to the end).
+        let t = read_text(&base.join(rel)).map_err(|f| match f {
+            Failure::Io(m) | Failure::Guest(m) => m,
+            Failure::Invalid(lines) => lines.join("; "),
+        })?;
         *model_text.lock().expect("not poisoned") = Some(t.clone());
         Ok(t)
     };
@@ -617,28 +620,83 @@ fn finish_output(
     tables: &Tables,
 ) -> Result<(), Failure> {
     use burnin::experiment::Output;
+    // The results go out first: a table that cannot be written must not
+    // lose what was computed.
+    if json {
+        emit(&out.to_json())?;
+    } else {
+        emit(&terminal_safe(&match out {
+            Output::Single(r) => results_table(r),
+            Output::Sweep(r) => sweep_table(r),
+        }))?;
+    }
     type Writer = fn(&Output) -> String;
     let writers: [(Option<&Path>, Writer); 3] = [
         (tables.csv, Output::to_csv),
         (tables.cells, Output::cells_csv),
         (tables.seeds, Output::seeds_csv),
     ];
+    let mut failed = Vec::new();
     for (path, write) in writers {
-        if let Some(p) = path {
-            std::fs::write(p, write(out))
-                .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display())))?;
+        if let Some(p) = path
+            && let Err(e) = std::fs::write(p, write(out))
+        {
+            failed.push(format!("cannot write {}: {e}", p.display()));
         }
     }
-    if json {
-        return emit(&out.to_json());
+    if failed.is_empty() {
+        Ok(())
+    } else {
+        Err(Failure::Io(format!(
+            "{} (the results were printed on standard output)",
+            failed.join("; ")
+        )))
     }
-    emit(&match out {
-        Output::Single(r) => results_table(r),
-        Output::Sweep(r) => sweep_table(r),
-    })
+}
+
+/// A table for a terminal: control characters (from labels and names in
+/// files) are shown as escapes, never sent to the terminal.
+fn terminal_safe(text: &str) -> String {
+    text.chars()
+        .map(|c| {
+            if c.is_control() && c != '\n' {
+                format!("\\u{{{:x}}}", c as u32)
+            } else {
+                c.to_string()
+            }
+        })
+        .collect()
+}
+
+/// Refuses a table path that names one of the input files (it would be
+/// overwritten with a CSV), before anything runs.
+fn check_table_paths(tables: &Tables, inputs: &[&Path]) -> Result<(), Failure> {
+    for (flag, path) in [
+        ("--csv", tables.csv),
+        ("--cells-csv", tables.cells),
+        ("--seeds-csv", tables.seeds),
+    ] {
+        let Some(p) = path else { continue };
+        let Ok(out) = std::fs::canonicalize(p) else {
+            continue;
+        };
+        for input in inputs {
+            if std::fs::canonicalize(input).is_ok_and(|i| i == out) {
+                return Err(Failure::Io(format!(
+                    "{flag} {}: that is an input file, which the table would overwrite; choose another path",
+                    p.display()
+                )));
+            }
+        }
+    }
+    Ok(())
 }
 
 fn merge(files: &[PathBuf], json: bool, tables: &Tables) -> Result<(), Failure> {
+    check_table_paths(
+        tables,
+        &files.iter().map(PathBuf::as_path).collect::<Vec<_>>(),
+    )?;
     let mut shards = Vec::with_capacity(files.len());
     for f in files {
         let text = read_text(f)?;
