@@ -358,6 +358,14 @@ pub fn generate_model(spec: &str) -> JsValue {
             ));
         }
     };
+    let repeated = crate::format::repeated_keys(spec, "generator");
+    if !repeated.is_empty() {
+        let mut p = Problems::default();
+        for at in repeated {
+            p.push(at, "field given more than once");
+        }
+        return problems_value(&p);
+    }
     match crate::generate::GeneratorSpec::from_json(&value, "generator")
         .and_then(|g| g.generate("generator"))
     {

@@ -590,3 +590,29 @@ fn burn_in_has_a_bootstrap_interval_over_seeds() {
     );
     assert_eq!(burn_in_interval(&ks, &refs, 7), Some((Some(lo), Some(hi))));
 }
+
+/// Repeated keys inside the generator and the sweep are refused, as at the
+/// top level (#11): the JSON value type would keep the last one silently.
+#[test]
+fn repeated_keys_in_nested_objects_are_refused() {
+    let text = r#"{"format": "burnin-experiment", "version": 1,
+        "generator": {"kind": "random", "states": 4, "states": 40, "actions": 2, "successors": 2, "horizon": 4, "seed": 3},
+        "episodes": 30, "sweep": {"parameter": "delta", "values": [0.1], "values": [0.2]},
+        "learners": [{"algorithm": "uniform"}]}"#;
+    let p = parse_experiment(text, None).unwrap_err().lines();
+    assert!(
+        p.contains(&"generator.states: field given more than once".to_string()),
+        "{p:?}"
+    );
+    assert!(
+        p.contains(&"sweep.values: field given more than once".to_string()),
+        "{p:?}"
+    );
+    assert_eq!(
+        burnin::format::repeated_keys(
+            r#"{"a": [{"b": 1, "b": 2}], "c": {"d": {"e": 0, "e": 1}}}"#,
+            "x"
+        ),
+        ["x.a[0].b", "x.c.d.e"]
+    );
+}

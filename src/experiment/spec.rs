@@ -548,6 +548,14 @@ pub fn parse_experiment(text: &str, load: Option<ModelLoader>) -> Result<Experim
     let raw: Lax<RawExperiment> =
         serde_json::from_str(text).map_err(|e| Problems::single("", syntax_problem(&e)))?;
     let mut problems = Problems::default();
+    // The generator and the sweep are read whole as values, which keep the
+    // last of a repeated key silently: their repeated keys are refused here
+    // (every other object has a lenient reader that reports them itself).
+    for at in crate::format::repeated_keys(text, "") {
+        if at.starts_with("generator.") || at.starts_with("sweep.") {
+            problems.push(at, "field given more than once");
+        }
+    }
     let exp = convert(
         raw,
         &mut Reader {

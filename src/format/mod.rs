@@ -22,6 +22,87 @@ pub fn is_burnin_csv(text: &str) -> bool {
 /// What to tell someone who opened one of Burnin's CSV tables.
 pub const CSV_NOT_OPENED: &str = "this is one of the CSV tables Burnin writes for other tools (curves, summary or regret by cell); Burnin opens JSON files: a model, an experiment, or results (\"Results JSON\", burnin-results or burnin-sweep)";
 
+/// The JSON paths (under `path`) of every key given more than once in any
+/// object of the JSON text `raw`, at any depth: serde's value type keeps the
+/// last of them silently, so objects read as values (a generator, a sweep)
+/// are scanned with this first.
+pub fn repeated_keys(raw: &str, path: &str) -> Vec<String> {
+    use serde::de::{DeserializeSeed, Deserializer, MapAccess, SeqAccess, Visitor};
+    struct Scan<'a> {
+        path: String,
+        out: &'a mut Vec<String>,
+    }
+    impl<'de> DeserializeSeed<'de> for Scan<'_> {
+        type Value = ();
+        fn deserialize<D: Deserializer<'de>>(self, d: D) -> Result<(), D::Error> {
+            d.deserialize_any(self)
+        }
+    }
+    impl<'de> Visitor<'de> for Scan<'_> {
+        type Value = ();
+        fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+            f.write_str("any JSON value")
+        }
+        fn visit_bool<E>(self, _: bool) -> Result<(), E> {
+            Ok(())
+        }
+        fn visit_i64<E>(self, _: i64) -> Result<(), E> {
+            Ok(())
+        }
+        fn visit_u64<E>(self, _: u64) -> Result<(), E> {
+            Ok(())
+        }
+        fn visit_f64<E>(self, _: f64) -> Result<(), E> {
+            Ok(())
+        }
+        fn visit_str<E>(self, _: &str) -> Result<(), E> {
+            Ok(())
+        }
+        fn visit_unit<E>(self) -> Result<(), E> {
+            Ok(())
+        }
+        fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<(), A::Error> {
+            let mut i = 0;
+            while seq
+                .next_element_seed(Scan {
+                    path: format!("{}[{i}]", self.path),
+                    out: self.out,
+                })?
+                .is_some()
+            {
+                i += 1;
+            }
+            Ok(())
+        }
+        fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<(), A::Error> {
+            let mut seen = std::collections::HashSet::new();
+            while let Some(k) = map.next_key::<String>()? {
+                let at = if self.path.is_empty() {
+                    k.clone()
+                } else {
+                    format!("{}.{k}", self.path)
+                };
+                if !seen.insert(k) {
+                    self.out.push(at.clone());
+                }
+                map.next_value_seed(Scan {
+                    path: at,
+                    out: self.out,
+                })?;
+            }
+            Ok(())
+        }
+    }
+    let mut out = Vec::new();
+    let mut de = serde_json::Deserializer::from_str(raw);
+    let _ = Scan {
+        path: path.to_owned(),
+        out: &mut out,
+    }
+    .deserialize(&mut de);
+    out
+}
+
 pub fn identify(text: &str) -> Option<String> {
     #[derive(serde::Deserialize)]
     struct Header {
