@@ -616,3 +616,22 @@ fn repeated_keys_in_nested_objects_are_refused() {
         ["x.a[0].b", "x.c.d.e"]
     );
 }
+
+/// A default label made from an extreme parameter value fits the label
+/// limit (#11: the limit used to blame a "label" the file never had).
+#[test]
+fn default_labels_of_extreme_values_fit() {
+    let text = r#"{"format": "burnin-experiment", "version": 1,
+        "generator": {"kind": "random", "states": 3, "actions": 2, "successors": 2, "horizon": 3, "seed": 1},
+        "episodes": 5, "learners": [{"algorithm": "mvp", "bonus_scale": 1e300}, {"algorithm": "eps-greedy", "epsilon": 0.000000000123456789}, {"algorithm": "ucbvi-hoeffding", "bonus_scale": 0.05}]}"#;
+    let e = parse_experiment(text, None).unwrap();
+    let labels: Vec<&str> = e.learners.iter().map(|l| l.label.as_str()).collect();
+    assert_eq!(
+        labels,
+        [
+            "mvp ×1e300",
+            "eps-greedy ε=1.23456789e-10",
+            "ucbvi-hoeffding ×0.05"
+        ]
+    );
+}

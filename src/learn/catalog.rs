@@ -284,7 +284,16 @@ impl Algorithm {
         let info = self.info();
         match info.param {
             Some(p) if p.label_always || self.param != p.default => {
-                format!("{}{}{}", info.key, p.label, self.param)
+                // Display writes 1e300 with all its 301 digits: extreme
+                // values are written with an exponent, so a default label
+                // always fits the label limit.
+                let plain = self.param.to_string();
+                let value = if plain.len() > 12 {
+                    format!("{:e}", self.param)
+                } else {
+                    plain
+                };
+                format!("{}{}{value}", info.key, p.label)
             }
             _ => info.key.to_string(),
         }
