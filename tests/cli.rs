@@ -4,28 +4,9 @@ mod common;
 
 use serde_json::json;
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output, Stdio};
+use std::process::Command;
 
-use common::Scratch;
-
-struct Run {
-    code: i32,
-    stdout: String,
-    stderr: String,
-}
-
-fn burnin(args: &[&str]) -> Run {
-    let out: Output = Command::new(env!("CARGO_BIN_EXE_burnin"))
-        .args(args)
-        .stdin(Stdio::null())
-        .output()
-        .expect("the binary runs");
-    Run {
-        code: out.status.code().expect("exited, not killed by a signal"),
-        stdout: String::from_utf8(out.stdout).unwrap(),
-        stderr: String::from_utf8(out.stderr).unwrap(),
-    }
-}
+use common::{Scratch, burnin};
 
 fn p(path: &Path) -> &str {
     path.to_str().unwrap()

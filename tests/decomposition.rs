@@ -256,17 +256,14 @@ fn the_cli_shows_where_regret_is_paid() {
         .to_string(),
     );
     let csv = d.0.join("cells.csv");
-    let out = std::process::Command::new(env!("CARGO_BIN_EXE_burnin"))
-        .args([
-            "run",
-            e.to_str().unwrap(),
-            "--cells-csv",
-            csv.to_str().unwrap(),
-        ])
-        .output()
-        .unwrap();
-    assert!(out.status.success());
-    let table = String::from_utf8(out.stdout).unwrap();
+    let out = common::burnin(&[
+        "run",
+        e.to_str().unwrap(),
+        "--cells-csv",
+        csv.to_str().unwrap(),
+    ]);
+    assert_eq!(out.code, 0, "{}", out.stderr);
+    let table = out.stdout;
     assert!(table.contains("where the regret was paid"), "{table}");
     assert!(
         table.contains("uniform  h=1 \"desk\" \"slack\" 100.0%"),

@@ -5,7 +5,6 @@
 //! library only).
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Stdio};
 use std::sync::Arc;
 
 use serde_json::{Value, json};
@@ -41,7 +40,7 @@ const UNIFORM_EPISODE_REGRET: f64 = 0.75;
 
 mod common;
 
-use common::Scratch;
+use common::{Scratch, burnin};
 
 /// A scratch folder holding the two-doors model as `two-doors.json`.
 fn scratch(tag: &str) -> Scratch {
@@ -58,26 +57,6 @@ fn write_experiment(d: &Scratch, name: &str, v: Value) -> PathBuf {
 fn experiment(model: &str, episodes: u64, seeds: u64, learners: Value) -> Value {
     json!({"format": "burnin-experiment", "version": 1, "model_path": model,
            "episodes": episodes, "seeds": seeds, "seed": 3, "learners": learners})
-}
-
-struct Out {
-    code: i32,
-    stdout: String,
-    stderr: String,
-}
-
-fn burnin(args: &[&str]) -> Out {
-    let out = Command::new(env!("CARGO_BIN_EXE_burnin"))
-        .args(args)
-        .current_dir(root())
-        .stdin(Stdio::null())
-        .output()
-        .expect("the binary runs");
-    Out {
-        code: out.status.code().expect("exited"),
-        stdout: String::from_utf8(out.stdout).unwrap(),
-        stderr: String::from_utf8(out.stderr).unwrap(),
-    }
 }
 
 fn results(args: &[&str]) -> Value {

@@ -379,10 +379,12 @@ export class ExperimentView {
       if (chosen.length && chosen.length < able.length) exp.sweep.learners = chosen;
     }
     const byGenerator = s.sweep.parameter && m.generator && !this.catalogue.sweep_keys.includes(s.sweep.parameter);
-    if (byGenerator) return { text: JSON.stringify({ ...exp, generator: m.generator }), rows };
+    // `head`: the experiment without its model, for reading the set-up back
+    // without parsing a model of up to the file limit on this thread.
+    if (byGenerator) return { text: JSON.stringify({ ...exp, generator: m.generator }), rows, head: exp };
     // The model file's text goes in as it is (the core reads it), unparsed.
     const head = JSON.stringify(exp);
-    return { text: `${head.slice(0, -1)},"model":${m.text}}`, rows };
+    return { text: `${head.slice(0, -1)},"model":${m.text}}`, rows, head: exp };
   }
 
   showProblems(result, rows) {
@@ -408,7 +410,7 @@ export class ExperimentView {
   /** Problems for the learners of `file` that name a learner of yours not loaded here. */
   guestProblems(file) {
     const kept = new Set(store.keptGuests().map((k) => k.name));
-    return JSON.parse(file.text).learners.flatMap((l, i) => (l.guest && !this.guests.has(l.guest) ? [{
+    return file.head.learners.flatMap((l, i) => (l.guest && !this.guests.has(l.guest) ? [{
       path: `learners[${i}].guest`,
       message: `your learner "${l.guest}" is not loaded: ${kept.has(l.guest) ? 'use the copy kept in this browser (Your learners, below the table) or ' : ''}add its file with "Add your learner…" (an experiment, a library entry or a link names a learner, never carries its code)`,
     }] : []));
@@ -440,7 +442,7 @@ export class ExperimentView {
     $('exp-problems').hidden = true;
     let file;
     try { file = this.experimentFile(); } catch (err) { this.showProblems({ problems: [{ path: '', message: err.message }], unlisted: 0 }, []); return; }
-    const named = [...new Set(JSON.parse(file.text).learners.map((l) => l.guest).filter(Boolean))];
+    const named = [...new Set(file.head.learners.map((l) => l.guest).filter(Boolean))];
     const missing = this.guestProblems(file);
     if (missing.length) {
       this.showProblems({ problems: missing, unlisted: 0 }, file.rows);
@@ -457,7 +459,7 @@ export class ExperimentView {
     $('exp-status').textContent = 'Starting…';
     let live = true;
     // Episodes each learner runs in all (every sweep point), for the estimate.
-    const spec = JSON.parse(file.text);
+    const spec = file.head;
     const points = spec.sweep ? spec.sweep.values.length : 1;
     const totals = spec.learners.map(() => spec.episodes * spec.seeds * points);
     const job = runExperiment(file.text, (done, total, measured) => {

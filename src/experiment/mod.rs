@@ -507,42 +507,27 @@ impl Output {
             Output::Sweep(r) => r.to_csv(),
         }
     }
-    /// Every seed's regret curve (for a sweep, each point's, with the swept
-    /// value in front).
+    /// Every seed's regret curve (`Results::seeds_csv`).
     pub fn seeds_csv(&self) -> String {
-        match self {
-            Output::Single(r) => r.seeds_csv(),
-            Output::Sweep(r) => prefixed_csv(
-                &r.parameter,
-                &r.values,
-                r.points.iter().map(Results::seeds_csv),
-            ),
-        }
+        self.per_point(Results::seeds_csv)
     }
 
-    /// The summary table, a row per learner (for a sweep, of each point,
-    /// with the swept value in front).
+    /// The summary table, a row per learner (`Results::summary_csv`).
     pub fn summary_csv(&self) -> String {
-        match self {
-            Output::Single(r) => r.summary_csv(),
-            Output::Sweep(r) => prefixed_csv(
-                &r.parameter,
-                &r.values,
-                r.points.iter().map(Results::summary_csv),
-            ),
-        }
+        self.per_point(Results::summary_csv)
     }
 
-    /// Where regret was paid, by (learner, h, s, a); for a sweep, each
-    /// point's rows with the swept value in front.
+    /// Where regret was paid, by (learner, h, s, a) (`Results::cells_csv`).
     pub fn cells_csv(&self) -> String {
+        self.per_point(Results::cells_csv)
+    }
+
+    /// A table of one point's results; for a sweep, every point's rows with
+    /// the swept value in front.
+    fn per_point(&self, table: fn(&Results) -> String) -> String {
         match self {
-            Output::Single(r) => r.cells_csv(),
-            Output::Sweep(r) => prefixed_csv(
-                &r.parameter,
-                &r.values,
-                r.points.iter().map(Results::cells_csv),
-            ),
+            Output::Single(r) => table(r),
+            Output::Sweep(r) => prefixed_csv(&r.parameter, &r.values, r.points.iter().map(table)),
         }
     }
 }

@@ -107,3 +107,26 @@ impl Drop for Scratch {
         let _ = std::fs::remove_dir_all(&self.0);
     }
 }
+
+/// What a run of the `burnin` binary gave.
+pub struct Run {
+    pub code: i32,
+    pub stdout: String,
+    pub stderr: String,
+}
+
+/// Runs the `burnin` binary with `args` in the repository's folder, with an
+/// empty standard input.
+pub fn burnin(args: &[&str]) -> Run {
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_burnin"))
+        .args(args)
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .stdin(std::process::Stdio::null())
+        .output()
+        .expect("the binary runs");
+    Run {
+        code: out.status.code().expect("exited, not killed by a signal"),
+        stdout: String::from_utf8(out.stdout).unwrap(),
+        stderr: String::from_utf8(out.stderr).unwrap(),
+    }
+}

@@ -390,20 +390,8 @@ fn solution_table(m: &Mdp, sol: &burnin::solve::Solution) -> String {
     if m.discount() < 1.0 {
         let _ = writeln!(o, "discount       {}", m.discount());
     }
-    let sw = m
-        .states()
-        .iter()
-        .map(|s| s.chars().count())
-        .max()
-        .unwrap_or(5)
-        .max(5);
-    let aw = m
-        .actions()
-        .iter()
-        .map(|s| s.chars().count())
-        .max()
-        .unwrap_or(6)
-        .max(10);
+    let sw = column_width(m.states().iter().map(String::as_str), 5);
+    let aw = column_width(m.actions().iter().map(String::as_str), 10);
     let _ = write!(
         o,
         "\n{:>4}  {:<sw$}  {:>10}  {:<aw$}",
@@ -710,9 +698,18 @@ fn merge(files: &[PathBuf], json: bool, tables: &Tables) -> Result<(), Failure> 
     finish_output(&out, json, tables)
 }
 
+/// Width of a table's column: its longest entry, at least `at_least`.
+fn column_width<'a>(entries: impl Iterator<Item = &'a str>, at_least: usize) -> usize {
+    entries
+        .map(|l| l.chars().count())
+        .max()
+        .unwrap_or(0)
+        .max(at_least)
+}
+
 /// Width of a table's learner column: its longest label, at least "learner".
 fn label_width<'a>(labels: impl Iterator<Item = &'a str>) -> usize {
-    labels.map(|l| l.chars().count()).max().unwrap_or(0).max(7)
+    column_width(labels, "learner".len())
 }
 
 fn sweep_table(r: &burnin::experiment::SweepResults) -> String {
