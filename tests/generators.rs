@@ -235,3 +235,59 @@ fn bandit_is_one_state_one_step_worth_its_best_mean() {
     assert_eq!(drawn.n_actions(), 5);
     round_trips(&drawn);
 }
+
+/// Every generator computes its model's sizes and checks them against the
+/// model limits before building (docs/formats.md, "Limits"): at the top of
+/// each whole parameter's range, alone and all at once, it gives a model
+/// within the limits or an error naming one of its parameters — never a
+/// panic, never gigabytes first. (Before this check, a 300×300 drift grid
+/// with H = 10 000 panicked and a lower-bound tree with H = 10 000 asked for
+/// 14 GB.)
+#[test]
+fn every_generator_checks_its_sizes_before_building() {
+    use burnin::generate::{GENERATORS, GeneratorSpec, ParamKind, Values};
+    use burnin::model::limits::{MAX_CELLS, MAX_ENTRIES};
+    for info in GENERATORS {
+        let base = GeneratorSpec {
+            values: Values::defaults(info),
+            seed: 3,
+        };
+        let wholes: Vec<_> = info
+            .params
+            .iter()
+            .filter(|p| p.kind == ParamKind::Whole)
+            .collect();
+        let mut all = base.clone();
+        let mut cases = Vec::new();
+        for p in &wholes {
+            cases.push((p.name.to_string(), base.with(p.name, p.max).unwrap()));
+            all = all.with(p.name, p.max).unwrap();
+        }
+        cases.push(("every whole parameter".to_string(), all));
+        for (what, spec) in cases {
+            match spec.build() {
+                Ok(m) => {
+                    let (h, s, a) = (m.horizon(), m.n_states(), m.n_actions());
+                    assert!(h * s * a <= MAX_CELLS, "{} at max {what}", info.kind);
+                    assert!(m.entries() <= MAX_ENTRIES, "{} at max {what}", info.kind);
+                }
+                Err(e) => assert!(
+                    info.params.iter().any(|p| p.name == e.param),
+                    "{} at max {what}: {e} names no parameter of {}",
+                    info.kind,
+                    info.kind
+                ),
+            }
+        }
+    }
+    // The parameter at fault is the one that drives the size.
+    let grid = DriftGrid {
+        width: 300,
+        height: 300,
+        horizon: 10_000,
+        ..DriftGrid::default()
+    };
+    let e = grid.generate().unwrap_err();
+    assert_eq!(e.param, "horizon");
+    assert!(e.message.contains("10000·90000·4"), "{e}");
+}

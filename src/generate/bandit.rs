@@ -70,20 +70,23 @@ impl Bandit {
             self.means.clone()
         };
         let k = means.len();
-        Ok(finish(MdpParts {
-            name: format!("Bernoulli bandit, {k} arms"),
-            notes: Some("A multi-armed bandit: one state, one step.".into()),
-            horizon: 1,
-            discount: None,
-            states: vec!["pull".into()],
-            actions: labels("arm ", k),
-            start: vec![1.0],
-            stationary: true,
-            steps: vec![StepParts {
-                transitions: vec![vec![(0, 1.0)]; k],
-                rewards: means.into_iter().map(Reward::Bernoulli).collect(),
-            }],
-            layout: None,
-        }))
+        finish(
+            MdpParts {
+                name: format!("Bernoulli bandit, {k} arms"),
+                notes: Some("A multi-armed bandit: one state, one step.".into()),
+                horizon: 1,
+                discount: None,
+                states: vec!["pull".into()],
+                actions: labels("arm ", k),
+                start: vec![1.0],
+                stationary: true,
+                steps: vec![StepParts {
+                    transitions: vec![vec![(0, 1.0)]; k],
+                    rewards: means.into_iter().map(Reward::Bernoulli).collect(),
+                }],
+                layout: None,
+            },
+            "arms",
+        )
     }
 }

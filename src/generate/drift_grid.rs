@@ -1,7 +1,7 @@
 //! The drift grid: a rectangle of cells with slip and one paying goal cell.
 
 use super::catalog::{GenParam, Values};
-use super::{ParamError, add, bad, finish, need_range, point_start};
+use super::{ParamError, Sizes, add, bad, finish, need_range, point_start};
 use crate::model::limits::MAX_HORIZON;
 use crate::model::{Mdp, MdpParts, Reward, StepParts};
 
@@ -106,6 +106,14 @@ impl DriftGrid {
         GOAL_REWARD.check(self.goal_reward)?;
         let (w, hgt) = (self.width, self.height);
         let n = w * hgt;
+        Sizes {
+            states: n as u128,
+            actions: 4,
+            horizon: self.horizon as u128,
+            tables: 1,
+            per_row: 3,
+        }
+        .check("horizon")?;
         let gx = self.goal_column.unwrap_or(w.saturating_sub(2));
         let gy = self.goal_row.unwrap_or(hgt - 1);
         need_range("goal_column", gx, 0, w - 1)?;
@@ -150,23 +158,26 @@ impl DriftGrid {
                 rewards.push(Reward::Fixed(0.0));
             }
         }
-        Ok(finish(MdpParts {
-            name: format!("Drift grid {}×{} H={}", w, hgt, self.horizon),
-            notes: Some(format!(
-                "Moves drift sideways with probability {}; the goal cell ({gx},{gy}) pays for every step spent there.",
-                self.slip
-            )),
-            horizon: self.horizon,
-            discount: None,
-            states: (0..n).map(|s| format!("({},{})", s % w, s / w)).collect(),
-            actions: vec!["north".into(), "east".into(), "south".into(), "west".into()],
-            start: point_start(n, 0),
-            stationary: true,
-            steps: vec![StepParts {
-                transitions,
-                rewards,
-            }],
-            layout: Some((0..n).map(|s| [(s % w) as f64, (s / w) as f64]).collect()),
-        }))
+        finish(
+            MdpParts {
+                name: format!("Drift grid {}×{} H={}", w, hgt, self.horizon),
+                notes: Some(format!(
+                    "Moves drift sideways with probability {}; the goal cell ({gx},{gy}) pays for every step spent there.",
+                    self.slip
+                )),
+                horizon: self.horizon,
+                discount: None,
+                states: (0..n).map(|s| format!("({},{})", s % w, s / w)).collect(),
+                actions: vec!["north".into(), "east".into(), "south".into(), "west".into()],
+                start: point_start(n, 0),
+                stationary: true,
+                steps: vec![StepParts {
+                    transitions,
+                    rewards,
+                }],
+                layout: Some((0..n).map(|s| [(s % w) as f64, (s / w) as f64]).collect()),
+            },
+            "horizon",
+        )
     }
 }

@@ -4,7 +4,7 @@ use rand::Rng;
 use rand_chacha::ChaCha8Rng;
 
 use super::catalog::{GenParam, Values};
-use super::{ParamError, bad, finish, labels, need_range, point_start, rng};
+use super::{ParamError, Sizes, finish, labels, need_range, point_start, rng};
 use crate::model::limits::{MAX_ACTIONS, MAX_HORIZON, MAX_STATES};
 use crate::model::{Mdp, MdpParts, Reward, StepParts};
 
@@ -112,7 +112,6 @@ fn spacings(rng: &mut ChaCha8Rng, k: usize) -> Vec<f64> {
 
 impl Garnet {
     pub fn generate(&self, seed: u64) -> Result<Mdp, ParamError> {
-        use crate::model::limits::{MAX_CELLS, MAX_ENTRIES};
         STATES.check(self.states as f64)?;
         ACTIONS.check(self.actions as f64)?;
         HORIZON.check(self.horizon as f64)?;
@@ -120,24 +119,15 @@ impl Garnet {
         let tables = if self.time_dependent { self.horizon } else { 1 };
         let cells = self.states * self.actions;
         let (s, a, h, b) = (self.states, self.actions, self.horizon, self.successors);
-        if cells as u128 * h as u128 > MAX_CELLS as u128 {
-            return Err(bad(
-                "states",
-                format!(
-                    "S·A·H = {s}·{a}·{h} = {} is over the limit of {MAX_CELLS} (step, state, action) cells",
-                    cells as u128 * h as u128
-                ),
-            ));
-        }
-        if cells as u128 * tables as u128 * b as u128 > MAX_ENTRIES as u128 {
-            return Err(bad(
-                "successors",
-                format!(
-                    "{} transition entries is over the limit of {MAX_ENTRIES}",
-                    cells as u128 * tables as u128 * b as u128
-                ),
-            ));
-        }
+        let sizes = |per_row: usize| Sizes {
+            states: s as u128,
+            actions: a as u128,
+            horizon: h as u128,
+            tables: tables as u128,
+            per_row: per_row as u128,
+        };
+        sizes(1).check("states")?;
+        sizes(b).check("successors")?;
         let mut rng = rng(seed);
         let steps = (0..tables)
             .map(|_| {
@@ -160,27 +150,30 @@ impl Garnet {
                 }
             })
             .collect();
-        Ok(finish(MdpParts {
-            name: format!(
-                "Random sparse S={} A={} b={} H={}",
-                self.states, self.actions, self.successors, self.horizon
-            ),
-            notes: Some(format!(
-                "Garnet-style random model (Archibald, McKinnon & Thomas 1995), seed {seed}{}.",
-                if self.time_dependent {
-                    ", a fresh table per step"
-                } else {
-                    ""
-                }
-            )),
-            horizon: self.horizon,
-            discount: None,
-            states: labels("s", self.states),
-            actions: labels("a", self.actions),
-            start: point_start(self.states, 0),
-            stationary: !self.time_dependent,
-            steps,
-            layout: None,
-        }))
+        finish(
+            MdpParts {
+                name: format!(
+                    "Random sparse S={} A={} b={} H={}",
+                    self.states, self.actions, self.successors, self.horizon
+                ),
+                notes: Some(format!(
+                    "Garnet-style random model (Archibald, McKinnon & Thomas 1995), seed {seed}{}.",
+                    if self.time_dependent {
+                        ", a fresh table per step"
+                    } else {
+                        ""
+                    }
+                )),
+                horizon: self.horizon,
+                discount: None,
+                states: labels("s", self.states),
+                actions: labels("a", self.actions),
+                start: point_start(self.states, 0),
+                stationary: !self.time_dependent,
+                steps,
+                layout: None,
+            },
+            "states",
+        )
     }
 }

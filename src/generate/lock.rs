@@ -1,7 +1,7 @@
 //! A combination lock.
 
 use super::catalog::{GenParam, Values};
-use super::{ParamError, finish, index, labels, point_start, rng};
+use super::{ParamError, Sizes, finish, index, labels, point_start, rng};
 use crate::model::{Mdp, MdpParts, Reward, StepParts};
 
 static HORIZON: GenParam = GenParam::whole(
@@ -60,6 +60,19 @@ impl Lock {
         HORIZON.check(self.horizon as f64)?;
         ACTIONS.check(self.actions as f64)?;
         let (h, a) = (self.horizon, self.actions);
+        let (states, tables) = if self.time_dependent {
+            (2, h)
+        } else {
+            (h + 1, 1)
+        };
+        Sizes {
+            states: states as u128,
+            actions: a as u128,
+            horizon: h as u128,
+            tables: tables as u128,
+            per_row: 1,
+        }
+        .check("horizon")?;
         let mut rng = rng(seed);
         let code: Vec<usize> = (0..h).map(|_| index(&mut rng, a)).collect();
         let pay = |right: bool, last: bool| Reward::Fixed(if right && last { 1.0 } else { 0.0 });
@@ -119,19 +132,22 @@ impl Lock {
         } else {
             Some(vec![[0.0, 1.0], [0.0, 0.0]])
         };
-        Ok(finish(MdpParts {
-            name: format!("Combination lock H={h} A={a}"),
-            notes: Some(format!(
-                "One right action per step (seed {seed}); a wrong one jams the lock for good."
-            )),
-            horizon: h,
-            discount: None,
-            states,
-            actions: labels("key ", a),
-            start: point_start(n, 0),
-            stationary,
-            steps,
-            layout,
-        }))
+        finish(
+            MdpParts {
+                name: format!("Combination lock H={h} A={a}"),
+                notes: Some(format!(
+                    "One right action per step (seed {seed}); a wrong one jams the lock for good."
+                )),
+                horizon: h,
+                discount: None,
+                states,
+                actions: labels("key ", a),
+                start: point_start(n, 0),
+                stationary,
+                steps,
+                layout,
+            },
+            "horizon",
+        )
     }
 }

@@ -1,7 +1,7 @@
 //! The hard instances of the minimax lower bound.
 
 use super::catalog::{GenParam, Values};
-use super::{ParamError, bad, finish, index, labels, need_range, point_start, rng};
+use super::{ParamError, Sizes, bad, finish, index, labels, need_range, point_start, rng};
 use crate::model::limits::MAX_HORIZON;
 use crate::model::{Mdp, MdpParts, Reward, StepParts};
 
@@ -174,6 +174,14 @@ impl LowerBound {
         let bad_s = good + 1;
         let n = bad_s + 1;
         let h = self.horizon;
+        Sizes {
+            states: n as u128,
+            actions: a as u128,
+            horizon: h as u128,
+            tables: h as u128,
+            per_row: 2,
+        }
+        .check("horizon")?;
         // The latest arrival in the good state is at step last_leaf_step + 1.
         let reward_from = last_leaf_step + 1;
         let steps = (0..h)
@@ -225,21 +233,24 @@ impl LowerBound {
         }
         states.push("good".into());
         states.push("bad".into());
-        Ok(finish(MdpParts {
-            name: format!("Lower-bound instance A={a} depth={} H={h}", self.depth),
-            notes: Some(format!(
-                "Hard instance after Domingues et al. (ALT 2021); perturbed step {} leaf {l_star} action {a_star}, ε = {}.",
-                h_star + 1,
-                self.epsilon
-            )),
-            horizon: h,
-            discount: None,
-            states,
-            actions: labels("a", a),
-            start: point_start(n, 0),
-            stationary: false,
-            steps,
-            layout: None,
-        }))
+        finish(
+            MdpParts {
+                name: format!("Lower-bound instance A={a} depth={} H={h}", self.depth),
+                notes: Some(format!(
+                    "Hard instance after Domingues et al. (ALT 2021); perturbed step {} leaf {l_star} action {a_star}, ε = {}.",
+                    h_star + 1,
+                    self.epsilon
+                )),
+                horizon: h,
+                discount: None,
+                states,
+                actions: labels("a", a),
+                start: point_start(n, 0),
+                stationary: false,
+                steps,
+                layout: None,
+            },
+            "horizon",
+        )
     }
 }

@@ -63,8 +63,64 @@ fn need_range(param: &'static str, v: usize, lo: usize, hi: usize) -> Result<(),
     }
 }
 
-fn finish(parts: MdpParts) -> Mdp {
-    Mdp::from_parts(parts).expect("generators build valid models")
+/// The sizes of the model a generator is about to build, checked against the
+/// model limits ([`crate::model::limits`]) before anything proportional to
+/// them is allocated. `tables` is 1 for a time-homogeneous model and H
+/// otherwise; `per_row` bounds the next states of one (state, action) row.
+/// A size over a limit is blamed on `blame`, the parameter that drives it.
+struct Sizes {
+    states: u128,
+    actions: u128,
+    horizon: u128,
+    tables: u128,
+    per_row: u128,
+}
+
+impl Sizes {
+    fn check(&self, blame: &'static str) -> Result<(), ParamError> {
+        use crate::model::limits::{MAX_ACTIONS, MAX_CELLS, MAX_ENTRIES, MAX_HORIZON, MAX_STATES};
+        let (s, a, h) = (self.states, self.actions, self.horizon);
+        let over = |what: String| Err(bad(blame, what));
+        if s > MAX_STATES as u128 {
+            return over(format!(
+                "the model would have {s} states, over the limit of {MAX_STATES}"
+            ));
+        }
+        if a > MAX_ACTIONS as u128 {
+            return over(format!(
+                "the model would have {a} actions, over the limit of {MAX_ACTIONS}"
+            ));
+        }
+        if h > MAX_HORIZON as u128 {
+            return over(format!(
+                "the horizon would be {h}, over the limit of {MAX_HORIZON}"
+            ));
+        }
+        let cells = h * s * a;
+        if cells > MAX_CELLS as u128 {
+            return over(format!(
+                "H·S·A = {h}·{s}·{a} = {cells} is over the limit of {MAX_CELLS} (step, state, action) cells"
+            ));
+        }
+        let entries = self.tables * s * a * self.per_row;
+        if entries > MAX_ENTRIES as u128 {
+            return over(format!(
+                "up to {entries} transition entries is over the limit of {MAX_ENTRIES}"
+            ));
+        }
+        Ok(())
+    }
+}
+
+/// The model from checked parts. A generator checks its [`Sizes`] first, so
+/// this fails only on a generator's bug; it is reported, never a panic.
+fn finish(parts: MdpParts, blame: &'static str) -> Result<Mdp, ParamError> {
+    Mdp::from_parts(parts).map_err(|p| {
+        bad(
+            blame,
+            format!("the generated model is invalid (a bug in the generator): {p}"),
+        )
+    })
 }
 
 fn rng(seed: u64) -> ChaCha8Rng {

@@ -1,7 +1,7 @@
 //! A river-swim-style chain.
 
 use super::catalog::{GenParam, Values};
-use super::{ParamError, add, bad, finish, point_start};
+use super::{ParamError, Sizes, add, bad, finish, point_start};
 use crate::model::limits::MAX_HORIZON;
 use crate::model::{Mdp, MdpParts, Reward, StepParts};
 
@@ -106,6 +106,14 @@ impl RiverSwim {
         SMALL_REWARD.check(self.small_reward)?;
         BIG_REWARD.check(self.big_reward)?;
         let n = self.states;
+        Sizes {
+            states: n as u128,
+            actions: 2,
+            horizon: self.horizon as u128,
+            tables: 1,
+            per_row: 3,
+        }
+        .check("horizon")?;
         let mut transitions = Vec::with_capacity(2 * n);
         let mut rewards = Vec::with_capacity(2 * n);
         for s in 0..n {
@@ -122,7 +130,8 @@ impl RiverSwim {
                 0.0
             }));
         }
-        Ok(finish(MdpParts {
+        finish(
+            MdpParts {
             name: format!("River chain S={} H={}", n, self.horizon),
             notes: Some(
                 "River-swim-style chain (after Strehl & Littman 2008): a small sure reward at the left bank, a large one upstream.".into(),
@@ -138,6 +147,8 @@ impl RiverSwim {
                 rewards,
             }],
             layout: Some((0..n).map(|i| [i as f64, 0.0]).collect()),
-        }))
+            },
+            "horizon",
+        )
     }
 }
