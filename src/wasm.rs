@@ -154,6 +154,7 @@ impl ExperimentRun {
             self.count,
             self.text.clone(),
             None,
+            self.batch.points(),
             self.batch.records(),
         );
         f.faults = self.batch.faults().to_vec();

@@ -533,7 +533,7 @@ fn merged_shards_equal_a_single_run() {
         &burnin(&[
             "run",
             "--shard",
-            "2/4",
+            "2/3",
             p(&experiment_file(&d, r#"[{"algorithm": "uniform"}]"#, 10)),
         ])
         .stdout,
@@ -548,7 +548,8 @@ fn merged_shards_equal_a_single_run() {
 
 /// The bad-input corpus (tests/bad-inputs, written by make_corpus.py with the
 /// expected lines by hand): every file exits 1 with exactly its expected
-/// problem lines — `validate` for models, `run` for experiments.
+/// problem lines — `validate` for models, `run` for experiments, `merge`
+/// for shards (tests/merge.rs edits real shards for the rest of class 1).
 #[test]
 fn every_bad_input_in_the_corpus_gets_its_message() {
     let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bad-inputs");
@@ -567,10 +568,13 @@ fn every_bad_input_in_the_corpus_gets_its_message() {
         let name = f.file_name().unwrap().to_str().unwrap();
         let cmd = if name.starts_with("experiment-") {
             "run"
+        } else if name.starts_with("shard-") {
+            "merge"
         } else {
             "validate"
         };
-        let r = burnin(&[cmd, p(f)]);
+        // Relative to the working folder, as messages that name the file show it.
+        let r = burnin(&[cmd, &format!("tests/bad-inputs/{name}")]);
         let want = std::fs::read_to_string(f.with_extension("expected")).unwrap();
         assert_eq!(r.code, 1, "{name}: exit code");
         assert_eq!(r.stderr, want, "{name}");

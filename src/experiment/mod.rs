@@ -11,11 +11,13 @@
 //! steps a run a few episodes at a time, for a worker that must stay
 //! responsive.
 
+mod draws;
 mod results;
 mod shard;
 mod spec;
 
-pub use shard::{SHARD_FORMAT, SHARD_VERSION, ShardFile, merge};
+pub use draws::draw_stream;
+pub use shard::{MAX_SHARDS, SHARD_FORMAT, SHARD_VERSION, ShardFile, merge, text_digest};
 
 pub use results::{
     BOOTSTRAP_RESAMPLES, Cell, Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS,
@@ -636,6 +638,18 @@ pub fn all_jobs(points: &[Arc<Point>]) -> Vec<(usize, usize)> {
         .collect()
 }
 
+/// The number of run (point, learner, seed index) in [`all_jobs`]' order, or
+/// None when no such run exists.
+pub fn job_number(points: &[Arc<Point>], point: usize, learner: usize, seed: u64) -> Option<usize> {
+    let p = points.get(point)?;
+    let seeds = p.exp.seeds;
+    if learner >= p.exp.learners.len() || seed >= seeds {
+        return None;
+    }
+    let before: usize = points[..point].iter().map(|c| c.runs()).sum();
+    Some(before + learner * seeds as usize + seed as usize)
+}
+
 /// The jobs of shard `index` (0-based) of `count`: every count-th job.
 pub fn shard_jobs(points: &[Arc<Point>], index: usize, count: usize) -> Vec<(usize, usize)> {
     all_jobs(points)
@@ -796,6 +810,11 @@ impl RunQueue {
             })
             .find(|(l, _)| !self.faults.iter().any(|f| f.learner == *l))
             .map(|(l, s)| (l, s, 0))
+    }
+
+    /// The experiment's points (one per sweep value).
+    pub fn points(&self) -> &[Arc<Point>] {
+        &self.points
     }
 
     /// The finished runs as (point, record) pairs, for a shard file.

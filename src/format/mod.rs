@@ -3,6 +3,7 @@
 //! and repeated keys reported ([`lax_object!`]), and the header check every
 //! file starts with.
 
+pub mod digest;
 pub mod lax;
 pub mod problems;
 
@@ -175,6 +176,10 @@ pub fn check_header(
             "burnin-model" => " (this is a model file)".to_string(),
             "burnin-experiment" => " (this is an experiment file)".to_string(),
             "burnin-results" => " (this is a results file)".to_string(),
+            "burnin-shard" => {
+                " (this is a shard of an experiment's runs: merge the shards with `burnin merge`)"
+                    .to_string()
+            }
             _ => String::new(),
         };
         r.problems

@@ -515,6 +515,14 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     // A sweep is one experiment per value; all their runs share one pool.
     let points = Point::all(&exp, Some(&guests));
     let (index, count) = shard.map_or((0, 1), |(i, n)| (i - 1, n));
+    let total: usize = points.iter().map(|c| c.runs()).sum();
+    let most = total.min(burnin::experiment::MAX_SHARDS);
+    if count > most {
+        return Err(Failure::Io(format!(
+            "--shard {}/{count}: the experiment's {total} runs can be split into 1 to {most} shards",
+            index + 1
+        )));
+    }
     let jobs = shard_jobs(&points, index, count);
     let threads = threads
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
@@ -574,6 +582,7 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
             n,
             text,
             model_text.into_inner().expect("not poisoned"),
+            &points,
             records.into_iter().map(|(_, p, r)| (p, r)).collect(),
         );
         return emit(&file.to_json());
