@@ -350,7 +350,7 @@ impl crate::learn::Guest for JsGuest {
 /// (`{"kind": …, "seed": …, …}`), or the problems.
 #[wasm_bindgen(js_name = generateModel)]
 pub fn generate_model(spec: &str) -> JsValue {
-    let value: serde_json::Value = match serde_json::from_str(spec) {
+    let value: crate::format::Bounded = match serde_json::from_str(spec) {
         Ok(v) => v,
         Err(e) => {
             return problems_value(&Problems::single(
@@ -359,15 +359,12 @@ pub fn generate_model(spec: &str) -> JsValue {
             ));
         }
     };
-    let repeated = crate::format::repeated_keys(spec, "generator");
-    if !repeated.is_empty() {
+    if !value.problems.is_empty() {
         let mut p = Problems::default();
-        for at in repeated {
-            p.push(at, "field given more than once");
-        }
+        p.nest("generator", &value.problems);
         return problems_value(&p);
     }
-    match crate::generate::GeneratorSpec::from_json(&value, "generator")
+    match crate::generate::GeneratorSpec::from_json(&value.value, "generator")
         .and_then(|g| g.generate("generator"))
     {
         Ok(m) => JsValue::from_str(&crate::write_model(&m)),

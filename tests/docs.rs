@@ -207,3 +207,59 @@ fn formats_lists_the_algorithms_of_the_catalogue() {
         }
     }
 }
+
+/// docs/formats.md's table of limits gives each constant's value as the
+/// code has it, and names every limit constant of the core.
+#[test]
+fn formats_lists_every_limit_with_its_value() {
+    use burnin::experiment as e;
+    use burnin::model::limits as m;
+    let md = read("docs/formats.md");
+    let rows = table(&md, "| what | limit | constant |");
+    let consts: [(&str, u64); 24] = [
+        ("MAX_FILE_BYTES", m::MAX_FILE_BYTES as u64),
+        ("MAX_STATES", m::MAX_STATES as u64),
+        ("MAX_ACTIONS", m::MAX_ACTIONS as u64),
+        ("MAX_HORIZON", m::MAX_HORIZON as u64),
+        ("MAX_CELLS", m::MAX_CELLS as u64),
+        ("MAX_ENTRIES", m::MAX_ENTRIES as u64),
+        ("MAX_LABEL_CHARS", m::MAX_LABEL_CHARS as u64),
+        ("MAX_NAME_CHARS", m::MAX_NAME_CHARS as u64),
+        ("MAX_NOTES_CHARS", m::MAX_NOTES_CHARS as u64),
+        ("MAX_PATH_CHARS", e::MAX_PATH_CHARS as u64),
+        ("MAX_LEARNERS", e::MAX_LEARNERS as u64),
+        ("MAX_GUEST_NAME", e::MAX_GUEST_NAME as u64),
+        ("MAX_EPS_TARGETS", e::MAX_EPS_TARGETS as u64),
+        ("MAX_EPISODES", e::MAX_EPISODES),
+        ("MAX_SEEDS", e::MAX_SEEDS),
+        ("MAX_CHECKPOINTS", e::MAX_CHECKPOINTS),
+        ("MAX_SEED", e::MAX_SEED),
+        ("MAX_SWEEP_VALUES", e::MAX_SWEEP_VALUES as u64),
+        ("BOUNDED_ITEMS", burnin::format::BOUNDED_ITEMS as u64),
+        ("MAX_SHARDS", e::MAX_SHARDS as u64),
+        ("MAX_BATCH", burnin::learn::MAX_BATCH),
+        ("MAX_SEED_CURVE_VALUES", e::MAX_SEED_CURVE_VALUES as u64),
+        ("MAX_REPORTED_PROBLEMS", m::MAX_REPORTED_PROBLEMS as u64),
+        (
+            "MAX_PROBLEM_CHARS",
+            burnin::format::problems::MAX_PROBLEM_CHARS as u64,
+        ),
+    ];
+    for (name, value) in consts {
+        let row = rows
+            .iter()
+            .find(|r| r.get(2) == Some(&format!("`{name}`").as_str()))
+            .unwrap_or_else(|| panic!("formats.md's limits table has no row for {name}"));
+        let shown: String = row[1]
+            .chars()
+            .take_while(|c| c.is_ascii_digit() || *c == ' ')
+            .filter(char::is_ascii_digit)
+            .collect();
+        assert_eq!(shown, value.to_string(), "{name}: {}", row[1]);
+    }
+    assert_eq!(
+        rows.len(),
+        consts.len() + 1,
+        "one row per constant, and the JSON depth"
+    );
+}

@@ -608,12 +608,36 @@ fn repeated_keys_in_nested_objects_are_refused() {
         p.contains(&"sweep.values: field given more than once".to_string()),
         "{p:?}"
     );
+    let b: burnin::format::Bounded =
+        serde_json::from_str(r#"{"a": [{"b": 1, "b": 2}], "c": {"d": {"e": 0, "e": 1}}}"#).unwrap();
     assert_eq!(
-        burnin::format::repeated_keys(
-            r#"{"a": [{"b": 1, "b": 2}], "c": {"d": {"e": 0, "e": 1}}}"#,
-            "x"
-        ),
-        ["x.a[0].b", "x.c.d.e"]
+        b.problems.lines(),
+        [
+            "a[0].b: field given more than once",
+            "c.d.e: field given more than once"
+        ]
+    );
+}
+
+/// Every list and string of a generator or a sweep is bounded as it is
+/// read (#11, class 3): 1 000 items, 1 000 characters; past that nothing
+/// is stored, and the message names the path and the count.
+#[test]
+fn lists_and_strings_in_a_generator_or_sweep_are_bounded() {
+    let means = vec![0.5; 5000];
+    let text = json!({"format": "burnin-experiment", "version": 1,
+        "generator": {"kind": "bandit", "means": means, "note": "x".repeat(2000)},
+        "episodes": 30, "sweep": {"parameter": "delta", "values": vec![0.1; 1001]},
+        "learners": [{"algorithm": "uniform"}]})
+    .to_string();
+    let p = parse_experiment(&text, None).unwrap_err().lines();
+    assert_eq!(
+        p,
+        [
+            "generator.means: 5000 items is over the limit of 1000",
+            "generator.note: 2000 characters is over the limit of 1000",
+            "sweep.values: 1001 items is over the limit of 1000",
+        ]
     );
 }
 
@@ -634,4 +658,68 @@ fn default_labels_of_extreme_values_fit() {
             "ucbvi-hoeffding ×0.05"
         ]
     );
+}
+
+/// Every list in a results or sweep file, one value short: the reader
+/// refuses it with the path of the list (or, for the lists whose length is
+/// free, reads it), and never panics, whichever writer runs on what it read
+/// (#11: a results file is opened in the page; before this check a short
+/// `regret_hi`, `episode_regret_mean` or `bound.values` was read and then
+/// panicked in the CSV writers).
+#[test]
+fn results_with_any_list_cut_short_are_refused_or_read_never_a_panic() {
+    use burnin::experiment::{RunQueue, parse_results};
+    fn output_text(e: Value) -> String {
+        let exp = parse_experiment(&e.to_string(), None).unwrap();
+        let mut q = RunQueue::new(exp);
+        while !q.advance(u64::MAX) {}
+        q.output().to_json()
+    }
+    // Every array in `v`, as a JSON pointer.
+    fn arrays(v: &Value, at: String, out: &mut Vec<String>) {
+        match v {
+            Value::Array(xs) => {
+                if !xs.is_empty() {
+                    out.push(at.clone());
+                }
+                for (i, x) in xs.iter().enumerate().take(3) {
+                    arrays(x, format!("{at}/{i}"), out);
+                }
+            }
+            Value::Object(m) => {
+                for (k, x) in m {
+                    arrays(x, format!("{at}/{k}"), out);
+                }
+            }
+            _ => {}
+        }
+    }
+    let mut single = base();
+    single["decompose"] = json!(true);
+    single["episodes"] = json!(200);
+    let sweep = sweep_experiment(json!({"parameter": "bonus_scale", "values": [0.01, 0.1]}));
+    // Lists whose length a reader does not know in advance.
+    let free = ["/comparisons", "/failed", "/learners"];
+    for text in [output_text(single), output_text(sweep)] {
+        let full: Value = serde_json::from_str(&text).unwrap();
+        parse_results(&text).expect("the untouched results read");
+        let mut paths = Vec::new();
+        arrays(&full, String::new(), &mut paths);
+        assert!(paths.len() > 40, "{} lists", paths.len());
+        for at in paths {
+            let mut v = full.clone();
+            v.pointer_mut(&at).unwrap().as_array_mut().unwrap().pop();
+            match parse_results(&v.to_string()) {
+                Err(p) => assert!(!p.is_empty(), "{at}"),
+                Ok(out) => {
+                    assert!(
+                        free.iter().any(|f| at.ends_with(f)),
+                        "{at} cut short was read"
+                    );
+                    let _ = (out.to_json(), out.to_csv(), out.cells_csv());
+                    let _ = (out.summary_csv(), out.seeds_csv());
+                }
+            }
+        }
+    }
 }

@@ -27,8 +27,10 @@ pub use results::{
 };
 pub use spec::{
     DEFAULT_SEEDS, EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary,
-    LearnerSpec, LearnerSummary, MAX_GUEST_NAME, ModelLoader, Source, Sweep, SweepParameter,
-    check_learnable, experiment_sweep_keys, parse_experiment, valid_guest_name,
+    LearnerSpec, LearnerSummary, MAX_CHECKPOINTS, MAX_EPISODES, MAX_EPS_TARGETS, MAX_GUEST_NAME,
+    MAX_LEARNERS, MAX_PATH_CHARS, MAX_SEED, MAX_SEEDS, MAX_SWEEP_VALUES, ModelLoader, Source,
+    Sweep, SweepParameter, check_learnable, experiment_sweep_keys, parse_experiment,
+    valid_guest_name,
 };
 
 use std::sync::Arc;

@@ -751,9 +751,14 @@ impl SweepResults {
 /// structure.
 pub fn parse_results(text: &str) -> Result<super::Output, Problems> {
     let format = crate::format::identify(text);
-    let version = serde_json::from_str::<serde_json::Value>(text)
+    // Only the version is read here (the rest is skipped, not stored).
+    #[derive(Deserialize)]
+    struct Header {
+        version: Option<f64>,
+    }
+    let version = serde_json::from_str::<Header>(text)
         .ok()
-        .and_then(|v| v.get("version").and_then(serde_json::Value::as_f64));
+        .and_then(|h| h.version);
     let want = |f: &str| format.as_deref() == Some(f);
     if !want(RESULTS_FORMAT) && !want(SWEEP_FORMAT) {
         return Err(Problems::single(
@@ -790,7 +795,226 @@ pub fn parse_results(text: &str) -> Result<super::Output, Problems> {
             "these results hold no learner curves",
         ));
     }
+    let mut p = Problems::default();
+    match &out {
+        super::Output::Single(r) => check_results(r, "", &mut p),
+        super::Output::Sweep(s) => check_sweep(s, &mut p),
+    }
+    p.into_result()?;
     Ok(out)
+}
+
+/// Checks the sizes and shapes of results read from a file, so that no
+/// writer or chart indexes past a list and nothing grows past the limits
+/// of the files Burnin writes (docs/formats.md, "Results").
+fn check_results(r: &Results, at: &str, problems: &mut Problems) {
+    use super::spec::{MAX_CHECKPOINTS, MAX_EPISODES, MAX_EPS_TARGETS, MAX_LEARNERS, MAX_SEEDS};
+    use crate::model::limits::{
+        MAX_ACTIONS, MAX_CELLS, MAX_HORIZON, MAX_LABEL_CHARS, MAX_NAME_CHARS, MAX_STATES,
+    };
+    let p = std::cell::RefCell::new(problems);
+    let path = |tail: &str| {
+        if at.is_empty() {
+            tail.to_owned()
+        } else {
+            format!("{at}.{tail}")
+        }
+    };
+    let len = |tail: &str, found: usize, want: usize| {
+        if found != want {
+            p.borrow_mut()
+                .push(path(tail), format!("expected {want} values, found {found}"));
+        }
+    };
+    let (h, s, a, k) = (r.horizon, r.states, r.actions, r.episodes);
+    if r.learners.len() > MAX_LEARNERS {
+        p.borrow_mut().push(
+            path("learners"),
+            format!("more than {MAX_LEARNERS} learners"),
+        );
+        return;
+    }
+    let sizes_ok = (1..=MAX_STATES).contains(&s)
+        && (1..=MAX_ACTIONS).contains(&a)
+        && (1..=MAX_HORIZON).contains(&h)
+        && h * s * a <= MAX_CELLS
+        && (1..=MAX_EPISODES).contains(&k)
+        && (1..=MAX_SEEDS).contains(&r.seeds);
+    if !sizes_ok {
+        p.borrow_mut().push(
+            path("states"),
+            format!(
+                "S = {s}, A = {a}, H = {h}, K = {k} and {} seeds are not within the limits of an experiment",
+                r.seeds
+            ),
+        );
+        return;
+    }
+    let n = r.seeds as usize;
+    let mut texts: Vec<(String, &str, usize)> = vec![
+        (path("name"), r.name.as_str(), MAX_NAME_CHARS),
+        (path("model_name"), r.model_name.as_str(), MAX_NAME_CHARS),
+    ];
+    for (i, x) in r.state_labels.iter().enumerate() {
+        texts.push((path(&format!("state_labels[{i}]")), x, MAX_LABEL_CHARS));
+    }
+    for (i, x) in r.action_labels.iter().enumerate() {
+        texts.push((path(&format!("action_labels[{i}]")), x, MAX_LABEL_CHARS));
+    }
+    if !r.state_labels.is_empty() {
+        len("state_labels", r.state_labels.len(), s);
+    }
+    if !r.action_labels.is_empty() {
+        len("action_labels", r.action_labels.len(), a);
+    }
+    let c0 = r.learners.first().map_or(0, |l| l.checkpoints.len());
+    let e0 = r.learners.first().map_or(0, |l| l.episodes_to_eps.len());
+    len("lower_bound.values", r.lower_bound.values.len(), c0);
+    if e0 > MAX_EPS_TARGETS {
+        len("learners[0].episodes_to_eps", e0, MAX_EPS_TARGETS);
+    }
+    for (i, l) in r.learners.iter().enumerate() {
+        let lp = |f: &str| format!("learners[{i}].{f}");
+        texts.push((path(&lp("label")), l.label.as_str(), MAX_LABEL_CHARS));
+        let c = l.checkpoints.len();
+        if c > MAX_CHECKPOINTS as usize + 1
+            || l.checkpoints.windows(2).any(|w| w[0] >= w[1])
+            || l.checkpoints.last() != Some(&k)
+        {
+            p.borrow_mut().push(
+                path(&lp("checkpoints")),
+                format!(
+                    "expected at most {} increasing episodes ending at K = {k}",
+                    MAX_CHECKPOINTS + 1
+                ),
+            );
+            continue;
+        }
+        len(&lp("checkpoints"), c, c0);
+        for (f, v) in [
+            ("regret_mean", &l.regret_mean),
+            ("regret_lo", &l.regret_lo),
+            ("regret_hi", &l.regret_hi),
+            ("episode_regret_mean", &l.episode_regret_mean),
+            ("return_mean", &l.return_mean),
+        ] {
+            len(&lp(f), v.len(), c);
+        }
+        len(&lp("final_regret"), l.final_regret.len(), n);
+        len(&lp("model_updates"), l.model_updates.len(), n);
+        len(&lp("run_seeds"), l.run_seeds.len(), n);
+        if !l.regret_by_seed.is_empty() {
+            len(&lp("regret_by_seed"), l.regret_by_seed.len(), n);
+            for (j, xs) in l.regret_by_seed.iter().enumerate() {
+                len(&lp(&format!("regret_by_seed[{j}]")), xs.len(), c);
+            }
+        }
+        if let Some(b) = &l.bound {
+            len(&lp("bound.values"), b.values.len(), c);
+        }
+        len(&lp("episodes_to_eps"), l.episodes_to_eps.len(), e0);
+        for (j, e) in l.episodes_to_eps.iter().take(MAX_EPS_TARGETS).enumerate() {
+            let ep = |f: &str| lp(&format!("episodes_to_eps[{j}].{f}"));
+            len(&ep("episodes"), e.episodes.len(), n);
+            if !e.first_optimal.is_empty() {
+                len(&ep("first_optimal"), e.first_optimal.len(), n);
+            }
+            if !e.optimal_share.is_empty() {
+                len(&ep("optimal_share"), e.optimal_share.len(), n);
+            }
+        }
+        let grids: [(&str, &Vec<Vec<f64>>, bool); 2] = [
+            ("visits", &l.visits, true),
+            ("regret_by_step_state", &l.regret_by_step_state, false),
+        ];
+        for (f, g, required) in grids {
+            if g.is_empty() && !required {
+                continue;
+            }
+            len(&lp(f), g.len(), h);
+            for (t, row) in g.iter().enumerate().take(h) {
+                len(&lp(&format!("{f}[{t}]")), row.len(), s);
+            }
+        }
+        if !l.regret_by_state.is_empty() {
+            len(&lp("regret_by_state"), l.regret_by_state.len(), s);
+        }
+        if !l.regret_by_cell.is_empty() {
+            len(&lp("regret_by_cell"), l.regret_by_cell.len(), h);
+            for (t, rows) in l.regret_by_cell.iter().enumerate().take(h) {
+                len(&lp(&format!("regret_by_cell[{t}]")), rows.len(), s);
+                for (x, row) in rows.iter().enumerate().take(s) {
+                    len(&lp(&format!("regret_by_cell[{t}][{x}]")), row.len(), a);
+                }
+            }
+        }
+    }
+    if r.comparisons.len() > MAX_LEARNERS * MAX_LEARNERS {
+        p.borrow_mut().push(
+            path("comparisons"),
+            "more comparisons than pairs of learners",
+        );
+        return;
+    }
+    for (i, cmp) in r.comparisons.iter().enumerate() {
+        let cp = |f: &str| path(&format!("comparisons[{i}].{f}"));
+        for (f, v) in [
+            ("difference_mean", &cmp.difference_mean),
+            ("difference_lo", &cmp.difference_lo),
+            ("difference_hi", &cmp.difference_hi),
+        ] {
+            len(&cp(f), v.len(), c0);
+        }
+        for (f, label) in [("a", &cmp.a), ("b", &cmp.b)] {
+            if !r.learners.iter().any(|l| &l.label == label) {
+                p.borrow_mut()
+                    .push(cp(f), "names no learner of these results");
+            }
+        }
+    }
+    for (tp, text, max) in texts {
+        if text.chars().count() > max {
+            p.borrow_mut()
+                .push(tp, format!("longer than {max} characters"));
+        }
+    }
+}
+
+/// [`check_results`] for a sweep: its points, and its learners' columns,
+/// one value per point.
+fn check_sweep(r: &SweepResults, p: &mut Problems) {
+    use super::spec::{MAX_LEARNERS, MAX_SWEEP_VALUES};
+    let v = r.values.len();
+    if v == 0 || v > MAX_SWEEP_VALUES || r.points.len() != v {
+        p.push(
+            "values",
+            format!("expected 1 to {MAX_SWEEP_VALUES} values, one per point of `points`"),
+        );
+        return;
+    }
+    if r.learners.len() > MAX_LEARNERS {
+        p.push("learners", format!("more than {MAX_LEARNERS} learners"));
+        return;
+    }
+    for (i, l) in r.learners.iter().enumerate() {
+        for (f, n) in [
+            ("regret_mean", l.regret_mean.len()),
+            ("regret_lo", l.regret_lo.len()),
+            ("regret_hi", l.regret_hi.len()),
+            ("slope", l.slope.len()),
+            ("burn_in", l.burn_in.len()),
+        ] {
+            if n != v {
+                p.push(
+                    format!("learners[{i}].{f}"),
+                    format!("expected {v} values, found {n}"),
+                );
+            }
+        }
+    }
+    for (i, pt) in r.points.iter().enumerate() {
+        check_results(pt, &format!("points[{i}]"), p);
+    }
 }
 
 /// A CSV field, quoted when it must be (RFC 4180).

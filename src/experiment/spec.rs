@@ -2,12 +2,14 @@
 
 use serde_json::value::RawValue;
 
-use crate::format::lax::{Lax, Reader, syntax_problem};
+use crate::format::lax::{Lax, List, Reader, syntax_problem};
 use crate::format::{check_header, lax_object};
 use crate::generate::{GENERATORS, GenParam, GeneratorInfo, GeneratorSpec};
 use crate::learn::{self, Algorithm, AlgorithmKind, ParamInfo, Setting};
 use crate::model::json::parse_model;
+use crate::model::limits::MAX_NAME_CHARS;
 use crate::model::{Mdp, Problems};
+use serde_json::Value;
 
 pub const EXPERIMENT_FORMAT: &str = "burnin-experiment";
 pub const EXPERIMENT_VERSION: u64 = 1;
@@ -21,6 +23,10 @@ pub const DEFAULT_SEEDS: u64 = 8;
 pub const MAX_SEEDS: u64 = 10_000;
 /// Most learners per experiment.
 pub const MAX_LEARNERS: usize = 64;
+/// Most ε targets of an experiment.
+pub const MAX_EPS_TARGETS: usize = 16;
+/// Longest `model_path`, in characters.
+pub const MAX_PATH_CHARS: usize = 4096;
 /// Most checkpoints per curve.
 pub const MAX_CHECKPOINTS: u64 = 2_000;
 /// Largest seed (seeds travel as JSON numbers, exact up to 2^53).
@@ -300,16 +306,16 @@ lax_object! {
         name: Lax<String>,
         model: Box<RawValue>,
         model_path: Lax<String>,
-        generator: serde_json::Value,
+        generator: crate::format::Bounded,
         episodes: Lax<f64>,
         seeds: Lax<f64>,
         seed: Lax<f64>,
         delta: Lax<f64>,
         checkpoints: Lax<f64>,
         decompose: Lax<bool>,
-        eps_targets: Lax<Vec<Lax<f64>>>,
-        learners: Lax<Vec<Lax<RawLearner>>>,
-        sweep: serde_json::Value,
+        eps_targets: Lax<List<Lax<f64>, MAX_EPS_TARGETS>>,
+        learners: Lax<List<Lax<RawLearner>, MAX_LEARNERS>>,
+        sweep: crate::format::Bounded,
     }
 }
 
@@ -548,14 +554,6 @@ pub fn parse_experiment(text: &str, load: Option<ModelLoader>) -> Result<Experim
     let raw: Lax<RawExperiment> =
         serde_json::from_str(text).map_err(|e| Problems::single("", syntax_problem(&e)))?;
     let mut problems = Problems::default();
-    // The generator and the sweep are read whole as values, which keep the
-    // last of a repeated key silently: their repeated keys are refused here
-    // (every other object has a lenient reader that reports them itself).
-    for at in crate::format::repeated_keys(text, "") {
-        if at.starts_with("generator.") || at.starts_with("sweep.") {
-            problems.push(at, "field given more than once");
-        }
-    }
     let exp = convert(
         raw,
         &mut Reader {
@@ -609,7 +607,7 @@ fn model_of(
         (Some(raw), None) => (raw.get().to_owned(), "model".to_owned()),
         (Some(_), Some(_)) => unreachable!("counted above"),
         (None, Some(p)) => {
-            let p = r.take("model_path", p, "a file path")?;
+            let p = r.text("model_path", p, MAX_PATH_CHARS)?;
             let Some(load) = load else {
                 r.problems.push(
                     "model_path",
@@ -656,11 +654,27 @@ fn convert(
         return None;
     }
     e.fields.finish("", RawExperiment::FIELDS, r.problems);
+    // The generator and the sweep are read whole, within bounds; a key
+    // given twice or a list over its bound stops the read of either.
+    let mut whole = |at: &str, b: Option<crate::format::Bounded>| -> Result<Option<Value>, ()> {
+        match b {
+            None => Ok(None),
+            Some(b) if b.problems.is_empty() => Ok(Some(b.value)),
+            Some(b) => {
+                r.problems.nest(at, &b.problems);
+                Err(())
+            }
+        }
+    };
+    let (generator_value, sweep_value) = (whole("generator", e.generator), whole("sweep", e.sweep));
+    let (Ok(generator_value), Ok(sweep_value)) = (generator_value, sweep_value) else {
+        return None;
+    };
     let name = match e.name {
-        Some(n) => r.take("name", n, "a string"),
+        Some(n) => r.text("name", n, MAX_NAME_CHARS),
         None => Some(String::new()),
     };
-    let generator = match &e.generator {
+    let generator = match &generator_value {
         None => None,
         Some(v) => match GeneratorSpec::from_json(v, "generator") {
             Ok(g) => Some(g),
@@ -671,8 +685,7 @@ fn convert(
         },
     };
     let model = model_of(r, e.model, e.model_path, generator.as_ref(), load);
-    let sweep = e
-        .sweep
+    let sweep = sweep_value
         .as_ref()
         .and_then(|v| sweep_of(r, v, generator.as_ref()));
     let episodes = whole_in(r, "episodes", e.episodes, None, 1, MAX_EPISODES);
@@ -701,7 +714,7 @@ fn convert(
     let eps_targets = match e.eps_targets {
         None => Some(None),
         Some(v) => r
-            .take("eps_targets", v, "an array of numbers > 0")
+            .list("eps_targets", v, "an array of numbers > 0", "targets")
             .map(|list| {
                 let mut out = Vec::with_capacity(list.len());
                 for (i, x) in list.into_iter().enumerate() {
@@ -719,16 +732,17 @@ fn convert(
             }),
     };
     let learners = r.require("learners", e.learners, "an array of learners")?;
-    if learners.is_empty() || learners.len() > MAX_LEARNERS {
+    if learners.len == 0 || learners.len > MAX_LEARNERS {
         r.problems.push(
             "learners",
             format!(
                 "expected 1 to {MAX_LEARNERS} learners, found {}",
-                learners.len()
+                learners.len
             ),
         );
         return None;
     }
+    let learners = learners.items;
     let mut specs: Vec<LearnerSpec> = Vec::new();
     for (i, l) in learners.into_iter().enumerate() {
         let path = format!("learners[{i}]");
@@ -779,11 +793,11 @@ fn convert(
         decompose: decompose?,
         learners: specs,
     };
-    if e.sweep.is_some() {
+    if sweep_value.is_some() {
         let mut sweep = sweep?;
         // Indices become labels (a label may itself start with '#').
         if let Some(chosen) = &mut sweep.learners {
-            let raw = raw_sweep_learners(e.sweep.as_ref());
+            let raw = raw_sweep_learners(sweep_value.as_ref());
             for (i, c) in chosen.iter_mut().enumerate() {
                 if let Some(k) = raw.get(i).and_then(serde_json::Value::as_u64) {
                     match exp.learners.get(k as usize) {

@@ -91,6 +91,35 @@ impl<T: for<'a> Deserialize<'a>> Accept for Vec<T> {
     }
 }
 
+/// A list of at most `MAX` items: the items past `MAX` are skipped as they
+/// are read (never stored), and `len` says how many the file held, so a
+/// list far over its limit costs no memory. [`Reader::list`] reports it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct List<T, const MAX: usize> {
+    pub items: Vec<T>,
+    pub len: usize,
+}
+
+impl<T: for<'a> Deserialize<'a>, const MAX: usize> Accept for List<T, MAX> {
+    fn seq<'de, A: SeqAccess<'de>>(mut seq: A) -> Result<Option<Self>, A::Error> {
+        let mut items = Vec::with_capacity(seq.size_hint().unwrap_or(0).min(4096));
+        while items.len() < MAX {
+            match seq.next_element::<T>()? {
+                Some(x) => items.push(x),
+                None => {
+                    let len = items.len();
+                    return Ok(Some(List { items, len }));
+                }
+            }
+        }
+        let mut len = items.len();
+        while seq.next_element::<IgnoredAny>()?.is_some() {
+            len += 1;
+        }
+        Ok(Some(List { items, len }))
+    }
+}
+
 struct LaxVisitor<T>(PhantomData<T>);
 
 impl<'de, T: Accept> Visitor<'de> for LaxVisitor<T> {
@@ -151,6 +180,50 @@ impl Reader<'_> {
                 None
             }
         }
+    }
+
+    /// A list's items, or a problem at `path`: not a list ("expected …"), or
+    /// more than `MAX` items ("N WHAT is over the limit of MAX").
+    pub fn list<T, const MAX: usize>(
+        &mut self,
+        path: &str,
+        v: Lax<List<T, MAX>>,
+        expected: &str,
+        what: &str,
+    ) -> Option<Vec<T>> {
+        let l = self.take(path, v, expected)?;
+        if l.len > MAX {
+            self.problems
+                .push(path, format!("{} {what} is over the limit of {MAX}", l.len));
+            return None;
+        }
+        Some(l.items)
+    }
+
+    /// [`Reader::list`] for a required field.
+    pub fn require_list<T, const MAX: usize>(
+        &mut self,
+        path: &str,
+        v: Option<Lax<List<T, MAX>>>,
+        expected: &str,
+        what: &str,
+    ) -> Option<Vec<T>> {
+        match v {
+            Some(v) => self.list(path, v, expected, what),
+            None => self.require(path, None::<Lax<Vec<T>>>, expected),
+        }
+    }
+
+    /// A string of at most `max` characters, or a problem at `path`.
+    pub fn text(&mut self, path: &str, v: Lax<String>, max: usize) -> Option<String> {
+        let s = self.take(path, v, "a string")?;
+        let n = s.chars().count();
+        if n > max {
+            self.problems
+                .push(path, format!("{n} characters is over the limit of {max}"));
+            return None;
+        }
+        Some(s)
     }
 
     /// A required field: missing is a problem too.

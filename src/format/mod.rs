@@ -9,9 +9,6 @@ pub mod problems;
 
 pub use problems::{Problem, Problems};
 
-/// The `format` of a JSON document, when it is an object whose `format` is
-/// a string; None for anything else (the model reader then reports what is
-/// wrong with it).
 /// Whether `text` is one of the CSV tables Burnin writes (they start with
 /// `learner,algorithm,`): a reader can then say so instead of reporting a
 /// JSON syntax error.
@@ -23,87 +20,139 @@ pub fn is_burnin_csv(text: &str) -> bool {
 /// What to tell someone who opened one of Burnin's CSV tables.
 pub const CSV_NOT_OPENED: &str = "this is one of the CSV tables Burnin writes for other tools (curves, summary or regret by cell); Burnin opens JSON files: a model, an experiment, or results (\"Results JSON\", burnin-results or burnin-sweep)";
 
-/// The JSON paths (under `path`) of every key given more than once in any
-/// object of the JSON text `raw`, at any depth: serde's value type keeps the
-/// last of them silently, so objects read as values (a generator, a sweep)
-/// are scanned with this first.
-pub fn repeated_keys(raw: &str, path: &str) -> Vec<String> {
-    use serde::de::{DeserializeSeed, Deserializer, MapAccess, SeqAccess, Visitor};
-    struct Scan<'a> {
-        path: String,
-        out: &'a mut Vec<String>,
-    }
-    impl<'de> DeserializeSeed<'de> for Scan<'_> {
-        type Value = ();
-        fn deserialize<D: Deserializer<'de>>(self, d: D) -> Result<(), D::Error> {
-            d.deserialize_any(self)
-        }
-    }
-    impl<'de> Visitor<'de> for Scan<'_> {
-        type Value = ();
-        fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
-            f.write_str("any JSON value")
-        }
-        fn visit_bool<E>(self, _: bool) -> Result<(), E> {
-            Ok(())
-        }
-        fn visit_i64<E>(self, _: i64) -> Result<(), E> {
-            Ok(())
-        }
-        fn visit_u64<E>(self, _: u64) -> Result<(), E> {
-            Ok(())
-        }
-        fn visit_f64<E>(self, _: f64) -> Result<(), E> {
-            Ok(())
-        }
-        fn visit_str<E>(self, _: &str) -> Result<(), E> {
-            Ok(())
-        }
-        fn visit_unit<E>(self) -> Result<(), E> {
-            Ok(())
-        }
-        fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<(), A::Error> {
-            let mut i = 0;
-            while seq
-                .next_element_seed(Scan {
-                    path: format!("{}[{i}]", self.path),
-                    out: self.out,
-                })?
-                .is_some()
-            {
-                i += 1;
-            }
-            Ok(())
-        }
-        fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<(), A::Error> {
-            let mut seen = std::collections::HashSet::new();
-            while let Some(k) = map.next_key::<String>()? {
-                let at = if self.path.is_empty() {
-                    k.clone()
-                } else {
-                    format!("{}.{k}", self.path)
-                };
-                if !seen.insert(k) {
-                    self.out.push(at.clone());
-                }
-                map.next_value_seed(Scan {
-                    path: at,
-                    out: self.out,
-                })?;
-            }
-            Ok(())
-        }
-    }
-    let mut out = Vec::new();
-    let mut de = serde_json::Deserializer::from_str(raw);
-    let _ = Scan {
-        path: path.to_owned(),
-        out: &mut out,
-    }
-    .deserialize(&mut de);
-    out
+/// Most items of a list, characters of a string and keys of an object in a
+/// value read whole ([`Bounded`]): far above what a generator or a sweep
+/// needs (a bandit's 1 000 means, 100 sweep values, 64 learners).
+pub const BOUNDED_ITEMS: usize = 1_000;
+
+/// A small JSON value read whole (a generator, a sweep), within bounds:
+/// lists and objects of at most [`BOUNDED_ITEMS`] items and strings of at
+/// most as many characters, the rest skipped as it is read (never stored).
+/// Keys given twice (which serde's value type would keep the last of
+/// silently), and everything over a bound, are noted in `problems` with
+/// their paths relative to the value.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Bounded {
+    pub value: serde_json::Value,
+    pub problems: Problems,
 }
 
+impl<'de> serde::Deserialize<'de> for Bounded {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        use serde::de::{DeserializeSeed, IgnoredAny, MapAccess, SeqAccess, Visitor};
+        use serde_json::Value;
+        struct Read<'a> {
+            path: String,
+            problems: &'a mut Problems,
+        }
+        impl Read<'_> {
+            fn at(&mut self, tail: &str) -> Read<'_> {
+                let path = match (self.path.is_empty(), tail.starts_with('[')) {
+                    (true, _) | (false, true) => format!("{}{tail}", self.path),
+                    (false, false) => format!("{}.{tail}", self.path),
+                };
+                Read {
+                    path,
+                    problems: self.problems,
+                }
+            }
+            fn over(&mut self, n: usize, what: &str) {
+                self.problems.push(
+                    self.path.clone(),
+                    format!("{n} {what} is over the limit of {BOUNDED_ITEMS}"),
+                );
+            }
+        }
+        impl<'de> DeserializeSeed<'de> for Read<'_> {
+            type Value = Value;
+            fn deserialize<D: serde::Deserializer<'de>>(self, d: D) -> Result<Value, D::Error> {
+                d.deserialize_any(self)
+            }
+        }
+        impl<'de> Visitor<'de> for Read<'_> {
+            type Value = Value;
+            fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+                f.write_str("any JSON value")
+            }
+            fn visit_bool<E>(self, v: bool) -> Result<Value, E> {
+                Ok(Value::Bool(v))
+            }
+            fn visit_i64<E>(self, v: i64) -> Result<Value, E> {
+                Ok(Value::from(v))
+            }
+            fn visit_u64<E>(self, v: u64) -> Result<Value, E> {
+                Ok(Value::from(v))
+            }
+            fn visit_f64<E>(self, v: f64) -> Result<Value, E> {
+                Ok(Value::from(v))
+            }
+            fn visit_str<E>(mut self, v: &str) -> Result<Value, E> {
+                let n = v.chars().count();
+                if n > BOUNDED_ITEMS {
+                    self.over(n, "characters");
+                    return Ok(Value::Null);
+                }
+                Ok(Value::String(v.to_owned()))
+            }
+            fn visit_unit<E>(self) -> Result<Value, E> {
+                Ok(Value::Null)
+            }
+            fn visit_none<E>(self) -> Result<Value, E> {
+                Ok(Value::Null)
+            }
+            fn visit_seq<A: SeqAccess<'de>>(mut self, mut seq: A) -> Result<Value, A::Error> {
+                let mut out = Vec::new();
+                while out.len() < BOUNDED_ITEMS {
+                    let i = out.len();
+                    match seq.next_element_seed(self.at(&format!("[{i}]")))? {
+                        Some(v) => out.push(v),
+                        None => return Ok(Value::Array(out)),
+                    }
+                }
+                let mut n = out.len();
+                while seq.next_element::<IgnoredAny>()?.is_some() {
+                    n += 1;
+                }
+                if n > BOUNDED_ITEMS {
+                    self.over(n, "items");
+                }
+                Ok(Value::Array(out))
+            }
+            fn visit_map<A: MapAccess<'de>>(mut self, mut map: A) -> Result<Value, A::Error> {
+                let mut out = serde_json::Map::new();
+                let mut n = 0;
+                while let Some(k) = map.next_key::<String>()? {
+                    n += 1;
+                    if n > BOUNDED_ITEMS || k.chars().count() > BOUNDED_ITEMS {
+                        map.next_value::<IgnoredAny>()?;
+                        continue;
+                    }
+                    if out.contains_key(&k) {
+                        let at = self.at(&k).path;
+                        self.problems.push(at, "field given more than once");
+                    }
+                    let v = map.next_value_seed(self.at(&k))?;
+                    out.insert(k, v);
+                }
+                if n > BOUNDED_ITEMS {
+                    self.over(n, "keys");
+                }
+                Ok(Value::Object(out))
+            }
+        }
+        let mut problems = Problems::default();
+        let value = Read {
+            path: String::new(),
+            problems: &mut problems,
+        }
+        .deserialize(d)?;
+        Ok(Bounded { value, problems })
+    }
+}
+
+/// The `format` of a JSON document, when it is an object whose `format` is
+/// a string; None for anything else (the model reader then reports what is
+/// wrong with it).
 pub fn identify(text: &str) -> Option<String> {
     #[derive(serde::Deserialize)]
     struct Header {

@@ -32,13 +32,26 @@ pub struct Problems {
     unlisted: usize,
 }
 
+/// Longest path or message of a problem, in characters.
+pub const MAX_PROBLEM_CHARS: usize = 1_000;
+
+fn cut(mut s: String) -> String {
+    if let Some((i, _)) = s.char_indices().nth(MAX_PROBLEM_CHARS) {
+        s.truncate(i);
+        s.push('…');
+    }
+    s
+}
+
 impl Problems {
-    /// Records a problem at `path`.
+    /// Records a problem at `path`. A message or path longer than
+    /// [`MAX_PROBLEM_CHARS`] (one quoting a huge value from a file) is cut
+    /// there and ends with "…".
     pub fn push(&mut self, path: impl Into<String>, message: impl Into<String>) {
         if self.list.len() < MAX_REPORTED_PROBLEMS {
             self.list.push(Problem {
-                path: path.into(),
-                message: message.into(),
+                path: cut(path.into()),
+                message: cut(message.into()),
             });
         } else {
             self.unlisted += 1;

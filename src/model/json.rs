@@ -11,9 +11,9 @@
 
 use serde::de::{MapAccess, SeqAccess};
 
-use super::limits::MAX_FILE_BYTES;
+use super::limits::{MAX_ACTIONS, MAX_FILE_BYTES, MAX_HORIZON, MAX_STATES};
 use super::{Mdp, MdpParts, Problems, Reward, StepParts};
-use crate::format::lax::{Accept, Lax, Reader, syntax_problem};
+use crate::format::lax::{Accept, Lax, List, Reader, syntax_problem};
 use crate::format::{check_header, lax_object};
 
 /// The `format` value of a model file.
@@ -29,21 +29,28 @@ lax_object! {
         notes: Lax<String>,
         horizon: Lax<f64>,
         discount: Lax<f64>,
-        states: Lax<Vec<Lax<String>>>,
-        actions: Lax<Vec<Lax<String>>>,
-        start: Lax<Vec<Lax<f64>>>,
+        states: Lax<List<Lax<String>, MAX_STATES>>,
+        actions: Lax<List<Lax<String>, MAX_ACTIONS>>,
+        start: Lax<List<Lax<f64>, MAX_STATES>>,
         stationary: Lax<bool>,
-        steps: Lax<Vec<Lax<RawStep>>>,
+        steps: Lax<List<Lax<RawStep>, MAX_HORIZON>>,
         layout: Lax<RawLayout>,
     }
 }
 
-/// An array of arrays, each level read leniently.
-type Table<T> = Lax<Vec<Lax<Vec<T>>>>;
+/// An S×A array of arrays, each level read leniently (and never stored
+/// past the limits of S and A).
+type Table<T> = Lax<List<Lax<List<T, MAX_ACTIONS>>, MAX_STATES>>;
+
+/// One transition row's entries (at most one per next state).
+type Entries = Lax<List<Lax<RawEntry>, MAX_STATES>>;
+
+/// A reward's parameters: a pair, with room to say how many more were given.
+type Pair = Lax<List<Lax<f64>, 2>>;
 
 lax_object! {
     struct RawStep {
-        transitions: Table<Lax<Vec<Lax<RawEntry>>>>,
+        transitions: Table<Entries>,
         rewards: Table<Lax<RawReward>>,
     }
 }
@@ -80,7 +87,7 @@ enum RawReward {
     Fixed(f64),
     Dist {
         key: String,
-        value: Lax<Vec<Lax<f64>>>,
+        value: Pair,
         scalar: Option<Lax<f64>>,
         extra_keys: usize,
     },
@@ -97,9 +104,15 @@ impl Accept for RawReward {
         };
         // `bernoulli` takes a number; `uniform` and `beta` take a pair.
         let (value, scalar) = if key == "bernoulli" {
-            (Lax::Ok(Vec::new()), Some(map.next_value::<Lax<f64>>()?))
+            (
+                Lax::Ok(List {
+                    items: Vec::new(),
+                    len: 0,
+                }),
+                Some(map.next_value::<Lax<f64>>()?),
+            )
         } else {
-            (map.next_value::<Lax<Vec<Lax<f64>>>>()?, None)
+            (map.next_value::<Pair>()?, None)
         };
         let mut extra_keys = 0;
         while map
@@ -119,7 +132,7 @@ impl Accept for RawReward {
 
 lax_object! {
     struct RawLayout {
-        positions: Table<Lax<f64>>,
+        positions: Lax<List<Lax<List<Lax<f64>, 2>>, MAX_STATES>>,
     }
 }
 
@@ -157,8 +170,12 @@ pub fn parse_model_parts(text: &str) -> Result<MdpParts, Problems> {
     }
 }
 
-fn labels(r: &mut Reader, path: &str, v: Option<Lax<Vec<Lax<String>>>>) -> Option<Vec<String>> {
-    let list = r.require(path, v, "an array of strings")?;
+fn labels<const MAX: usize>(
+    r: &mut Reader,
+    path: &str,
+    v: Option<Lax<List<Lax<String>, MAX>>>,
+) -> Option<Vec<String>> {
+    let list = r.require_list(path, v, "an array of strings", "labels")?;
     let mut out = Vec::with_capacity(list.len());
     let mut ok = true;
     for (i, x) in list.into_iter().enumerate() {
@@ -200,13 +217,18 @@ fn convert(raw: Lax<RawModel>, r: &mut Reader) -> Option<MdpParts> {
     let states = labels(r, "states", m.states);
     let actions = labels(r, "actions", m.actions);
     let start = r
-        .require("start", m.start, "an array of probabilities")
+        .require_list(
+            "start",
+            m.start,
+            "an array of probabilities",
+            "probabilities",
+        )
         .and_then(|l| numbers(r, "start", l));
     let stationary = m
         .stationary
         .and_then(|s| r.take("stationary", s, "true or false"));
     let layout = m.layout.and_then(|l| layout(r, l));
-    let steps = r.require("steps", m.steps, "an array of step tables");
+    let steps = r.require_list("steps", m.steps, "an array of step tables", "step tables");
 
     // Sizes first: nothing proportional to S, A or H is allocated beyond
     // what the file itself holds until they are known to be within limits.
@@ -263,21 +285,17 @@ fn convert(raw: Lax<RawModel>, r: &mut Reader) -> Option<MdpParts> {
 fn layout(r: &mut Reader, l: Lax<RawLayout>) -> Option<Vec<[f64; 2]>> {
     let l = r.take("layout", l, "an object with \"positions\"")?;
     l.fields.finish("layout", RawLayout::FIELDS, r.problems);
-    let list = r.require("layout.positions", l.positions, "an array of [x, y] pairs")?;
+    let list = r.require_list(
+        "layout.positions",
+        l.positions,
+        "an array of [x, y] pairs",
+        "positions",
+    )?;
     let mut out = Vec::with_capacity(list.len());
     for (i, p) in list.into_iter().enumerate() {
         let path = format!("layout.positions[{i}]");
-        let xy = r
-            .take(&path, p, "an [x, y] pair")
-            .and_then(|v| numbers(r, &path, v))?;
-        if xy.len() != 2 {
-            r.problems.push(
-                path,
-                format!("expected an [x, y] pair, found {} numbers", xy.len()),
-            );
-            return None;
-        }
-        out.push([xy[0], xy[1]]);
+        let (x, y) = pair(r, &path, p, "an [x, y] pair")?;
+        out.push([x, y]);
     }
     Some(out)
 }
@@ -291,7 +309,12 @@ fn table<T, U>(
     a: usize,
     mut cell: impl FnMut(&mut Reader, &str, T) -> Option<U>,
 ) -> Option<Vec<U>> {
-    let rows = r.require(path, v, &format!("an array of {s} rows (one per state)"))?;
+    let rows = r.require_list(
+        path,
+        v,
+        &format!("an array of {s} rows (one per state)"),
+        "rows",
+    )?;
     if rows.len() != s {
         r.problems.push(
             path,
@@ -303,10 +326,11 @@ fn table<T, U>(
     let mut ok = true;
     for (si, row) in rows.into_iter().enumerate() {
         let rp = format!("{path}[{si}]");
-        let Some(row) = r.take(
+        let Some(row) = r.list(
             &rp,
             row,
             &format!("an array of {a} entries (one per action)"),
+            "entries",
         ) else {
             ok = false;
             continue;
@@ -348,12 +372,13 @@ fn step(r: &mut Reader, path: &str, st: Lax<RawStep>, s: usize, a: usize) -> Opt
     })
 }
 
-fn transition_row(
-    r: &mut Reader,
-    path: &str,
-    v: Lax<Vec<Lax<RawEntry>>>,
-) -> Option<Vec<(u32, f64)>> {
-    let list = r.take(path, v, "an array of [next_state, probability] pairs")?;
+fn transition_row(r: &mut Reader, path: &str, v: Entries) -> Option<Vec<(u32, f64)>> {
+    let list = r.list(
+        path,
+        v,
+        "an array of [next_state, probability] pairs",
+        "pairs",
+    )?;
     let mut out = Vec::with_capacity(list.len());
     let mut ok = true;
     for (k, e) in list.into_iter().enumerate() {
@@ -392,14 +417,14 @@ fn transition_row(
     ok.then_some(out)
 }
 
-fn pair(r: &mut Reader, path: &str, v: Lax<Vec<Lax<f64>>>, what: &str) -> Option<(f64, f64)> {
+fn pair(r: &mut Reader, path: &str, v: Pair, what: &str) -> Option<(f64, f64)> {
     let list = r.take(path, v, what)?;
-    let xs = numbers(r, path, list)?;
-    if xs.len() != 2 {
+    if list.len != 2 {
         r.problems
-            .push(path, format!("expected {what}, found {} numbers", xs.len()));
+            .push(path, format!("expected {what}, found {} numbers", list.len));
         return None;
     }
+    let xs = numbers(r, path, list.items)?;
     Some((xs[0], xs[1]))
 }
 
