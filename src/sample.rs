@@ -300,10 +300,35 @@ pub fn gamma<R: Rng>(rng: &mut R, shape: f64) -> f64 {
 }
 
 /// A Beta(a, b) draw as X/(X+Y) with X ~ Gamma(a), Y ~ Gamma(b).
+///
+/// For extreme shapes (both far below 1, so that X and Y underflow to 0,
+/// or so large that X + Y overflows) the ratio is lost; the draw is then
+/// made again in logarithms, 1/(1 + e^(ln Y − ln X)), from two further
+/// Gamma draws. Shapes in the usual range never reach that branch, so
+/// their draws are as before.
 pub fn beta<R: Rng>(rng: &mut R, a: f64, b: f64) -> f64 {
     let x = gamma(rng, a);
     let y = gamma(rng, b);
-    if x + y > 0.0 { x / (x + y) } else { 0.5 }
+    let sum = x + y;
+    if sum > 0.0 && sum.is_finite() {
+        return x / sum;
+    }
+    let d = ln_gamma_draw(rng, b) - ln_gamma_draw(rng, a);
+    if d.is_nan() {
+        0.5
+    } else {
+        1.0 / (1.0 + libm::exp(d))
+    }
+}
+
+/// The logarithm of a Gamma(shape, 1) draw, without underflow for small
+/// shapes: ln G(shape + 1) + ln(U)/shape (the same boost as [`gamma`]).
+fn ln_gamma_draw<R: Rng>(rng: &mut R, shape: f64) -> f64 {
+    if shape < 1.0 {
+        let u: f64 = rng.random();
+        return libm::log(gamma(rng, shape + 1.0)) + libm::log(u) / shape;
+    }
+    libm::log(gamma(rng, shape))
 }
 
 /// A reward drawn from its distribution.
@@ -399,5 +424,40 @@ mod tests {
         let xs: Vec<f64> = (0..N).map(|_| gamma(&mut rng, 3.0)).collect();
         let d = ks(xs, |x| 1.0 - libm::exp(-x) * (1.0 + x + 0.5 * x * x));
         assert!(d < ks_critical(N), "D = {d}");
+    }
+
+    /// Beta draws at the extremes of the allowed shapes (0 < α, β ≤ 1e300)
+    /// are numbers in [0, 1] with the right mean, never NaN (#11, class 5).
+    /// Beta(a, a) is symmetric about 1/2, so for a → 0 its mass goes to 0 and
+    /// 1 in equal halves; Beta(a, 1) for a → 0 to 0, Beta(a, 1) for a → ∞ to
+    /// 1 (common practice: the mean α/(α+β)).
+    #[test]
+    fn beta_draws_at_extreme_shapes_stay_in_range_with_their_mean() {
+        let mut rng = LearnRng::seed_from_u64(5);
+        let n = 4000;
+        let mut draw =
+            |a: f64, b: f64| -> Vec<f64> { (0..n).map(|_| beta(&mut rng, a, b)).collect() };
+        let mean = |xs: &[f64]| xs.iter().sum::<f64>() / xs.len() as f64;
+        for (a, b) in [
+            (1e-300, 1e-300),
+            (1e-300, 1.0),
+            (1e300, 1.0),
+            (1e300, 1e300),
+            (1e-300, 1e300),
+        ] {
+            let xs = draw(a, b);
+            assert!(xs.iter().all(|x| (0.0..=1.0).contains(x)), "Beta({a}, {b})");
+        }
+        let tiny = draw(1e-300, 1e-300);
+        // Half near 0 and half near 1: 4000 fair coin flips, 4 standard errors.
+        assert!((mean(&tiny) - 0.5).abs() < 4.0 * 0.5 / (n as f64).sqrt());
+        assert!(tiny.iter().all(|&x| !(1e-6..=1.0 - 1e-6).contains(&x)));
+        assert!(draw(1e-300, 1.0).iter().all(|&x| x < 1e-6));
+        assert!(draw(1e300, 1.0).iter().all(|&x| x > 1.0 - 1e-6));
+        let big = draw(1e300, 1e300);
+        assert!(
+            big.iter().all(|&x| (x - 0.5).abs() < 1e-6),
+            "Beta(1e300, 1e300) is 1/2 to 1e-150"
+        );
     }
 }

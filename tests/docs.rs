@@ -257,9 +257,14 @@ fn formats_lists_every_limit_with_its_value() {
             .collect();
         assert_eq!(shown, value.to_string(), "{name}: {}", row[1]);
     }
+    let magnitude = rows
+        .iter()
+        .find(|r| r.get(2) == Some(&"`MAX_MAGNITUDE`"))
+        .expect("a row for MAX_MAGNITUDE");
+    assert_eq!(magnitude[1], format!("{:e}", m::MAX_MAGNITUDE));
     assert_eq!(
         rows.len(),
-        consts.len() + 1,
-        "one row per constant, and the JSON depth"
+        consts.len() + 2,
+        "one row per constant, MAX_MAGNITUDE and the JSON depth"
     );
 }

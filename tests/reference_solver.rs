@@ -123,3 +123,35 @@ fn puterman_two_state_example_by_backward_induction() {
         assert_eq!(sol.optimal_value, u1);
     }
 }
+
+/// Rewards at the largest allowed magnitude (±1e300, `MAX_MAGNITUDE`) over
+/// the longest horizon (10 000) solve to finite values and gaps (#11,
+/// class 5: 1.7e308 overflowed to infinity and the solver panicked). By
+/// hand (backward induction): staying on a1 pays 1e300 per step, so
+/// V*_h = (H − h)·1e300, and a2 (−1e300) has gap 2e300 at every step.
+/// Just above the bound the model is refused, naming the reward.
+#[test]
+fn rewards_at_the_magnitude_limit_solve_to_finite_values() {
+    let h = 10_000;
+    let m = model(1, 2, h, |_, a| {
+        (vec![(0, 1.0)], if a == 0 { 1e300 } else { -1e300 })
+    });
+    let sol = solve(&m);
+    let rel = |x: f64, want: f64| ((x - want) / want).abs();
+    assert!(
+        rel(sol.optimal_value, 1e304) < 1e-12,
+        "{}",
+        sol.optimal_value
+    );
+    for t in 0..h {
+        let gap = sol.v[[t, 0]] - sol.q[[t, 0, 1]];
+        assert!(rel(gap, 2e300) < 1e-9, "step {t}: gap {gap}");
+    }
+    let text = r#"{"format": "burnin-model", "version": 1, "horizon": 2, "states": ["s"],
+        "actions": ["a"], "start": [1], "steps": [{"transitions": [[[[0, 1]]]], "rewards": [[1.7e308]]}]}"#;
+    let p = burnin::parse_model(text).unwrap_err().lines();
+    assert_eq!(
+        p[0],
+        "steps[0].rewards[0][0]: reward 1.7e308 is not a finite number within ±1e300"
+    );
+}

@@ -9,6 +9,18 @@ pub mod problems;
 
 pub use problems::{Problem, Problems};
 
+/// A number as a message or a label shows it: as Rust writes it when that
+/// is short (`0.5`, `1e-7`, `12345`), with an exponent otherwise (Display
+/// writes 1e300 with all its 301 digits).
+pub fn readable(x: f64) -> String {
+    let plain = x.to_string();
+    if plain.len() > 12 {
+        format!("{x:e}")
+    } else {
+        plain
+    }
+}
+
 /// Whether `text` is one of the CSV tables Burnin writes (they start with
 /// `learner,algorithm,`): a reader can then say so instead of reporting a
 /// JSON syntax error.

@@ -132,9 +132,10 @@ static PRIOR: ParamInfo = ParamInfo {
     default: 1.0,
     min: 0.0,
     min_open: true,
-    max: None,
+    // S·α₀ stays finite (the posterior draw normalises S Gamma variates).
+    max: Some(1e100),
     help: "α₀ of the Dirichlet prior on each transition row; 1 is uniform on the simplex",
-    want: "a prior α₀ > 0",
+    want: "a prior 0 < α₀ ≤ 1e100",
     label: " prior ",
     label_always: false,
 };
@@ -284,15 +285,9 @@ impl Algorithm {
         let info = self.info();
         match info.param {
             Some(p) if p.label_always || self.param != p.default => {
-                // Display writes 1e300 with all its 301 digits: extreme
-                // values are written with an exponent, so a default label
-                // always fits the label limit.
-                let plain = self.param.to_string();
-                let value = if plain.len() > 12 {
-                    format!("{:e}", self.param)
-                } else {
-                    plain
-                };
+                // Extreme values are written with an exponent, so a
+                // default label always fits the label limit.
+                let value = crate::format::readable(self.param);
                 format!("{}{}{value}", info.key, p.label)
             }
             _ => info.key.to_string(),

@@ -7,7 +7,7 @@ use std::collections::HashSet;
 
 use super::limits::*;
 use super::{MdpParts, Reward, StepParts};
-use crate::format::Problems;
+use crate::format::{Problems, readable};
 
 /// Distance from 1 within which a probability sum is renormalised.
 pub const SUM_TOLERANCE: f64 = 1e-6;
@@ -318,20 +318,36 @@ impl Checker {
 
     /// A reward distribution's parameters.
     pub fn check_reward(&mut self, path: &str, r: &Reward) {
-        let finite = |x: f64| x.is_finite();
+        // Within ±MAX_MAGNITUDE every sum over H ≤ 10 000 steps, and every
+        // difference of two of them, stays finite.
+        let finite = |x: f64| x.is_finite() && x.abs() <= MAX_MAGNITUDE;
         match *r {
-            Reward::Fixed(x) if !finite(x) => self.push(path, format!("reward {x} is not finite")),
+            Reward::Fixed(x) if !finite(x) => self.push(
+                path,
+                format!(
+                    "reward {} is not a finite number within ±{MAX_MAGNITUDE:e}",
+                    readable(x)
+                ),
+            ),
             Reward::Bernoulli(p) if !(finite(p) && (0.0..=1.0).contains(&p)) => self.push(
                 format!("{path}.bernoulli"),
                 format!("expected a probability in [0, 1], found {p}"),
             ),
             Reward::Uniform(lo, hi) if !(finite(lo) && finite(hi) && lo <= hi) => self.push(
                 format!("{path}.uniform"),
-                format!("expected [lo, hi] with lo ≤ hi, found [{lo}, {hi}]"),
+                format!(
+                    "expected [lo, hi] with lo ≤ hi, both within ±{MAX_MAGNITUDE:e}, found [{}, {}]",
+                    readable(lo),
+                    readable(hi)
+                ),
             ),
             Reward::Beta(a, b) if !(finite(a) && finite(b) && a > 0.0 && b > 0.0) => self.push(
                 format!("{path}.beta"),
-                format!("expected [α, β] with α > 0 and β > 0, found [{a}, {b}]"),
+                format!(
+                    "expected [α, β] with 0 < α, β ≤ {MAX_MAGNITUDE:e}, found [{}, {}]",
+                    readable(a),
+                    readable(b)
+                ),
             ),
             _ => {}
         }
@@ -347,10 +363,10 @@ impl Checker {
             return;
         }
         for (i, p) in l.iter().enumerate() {
-            if !(p[0].is_finite() && p[1].is_finite()) {
+            if !p.iter().all(|x| x.is_finite() && x.abs() <= MAX_MAGNITUDE) {
                 self.push(
                     format!("layout.positions[{i}]"),
-                    "expected two finite numbers [x, y]",
+                    format!("expected two finite numbers [x, y] within ±{MAX_MAGNITUDE:e}"),
                 );
             }
         }

@@ -25,3 +25,8 @@ pub const MAX_NAME_CHARS: usize = 200;
 pub const MAX_NOTES_CHARS: usize = 20_000;
 /// Problems listed before the rest are only counted.
 pub const MAX_REPORTED_PROBLEMS: usize = 200;
+/// Largest magnitude of a reward, a reward's bounds or Beta parameters, and
+/// a layout coordinate: H·1e300 and the difference of two such sums stay
+/// far below the largest double (1.8e308), so values, gaps and regrets are
+/// finite (and a Beta's α + β is).
+pub const MAX_MAGNITUDE: f64 = 1e300;

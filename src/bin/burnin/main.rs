@@ -386,7 +386,7 @@ fn solution_table(m: &Mdp, sol: &burnin::solve::Solution) -> String {
     use std::fmt::Write as _;
     let mut o = String::new();
     let _ = writeln!(o, "{}", summary(m).trim_start_matches("ok: "));
-    let _ = writeln!(o, "optimal value  {:.6}", sol.optimal_value);
+    let _ = writeln!(o, "optimal value  {}", fixed6(sol.optimal_value));
     if m.discount() < 1.0 {
         let _ = writeln!(o, "discount       {}", m.discount());
     }
@@ -406,14 +406,14 @@ fn solution_table(m: &Mdp, sol: &burnin::solve::Solution) -> String {
             let best = &m.actions()[sol.policy[[h, s]] as usize];
             let _ = write!(
                 o,
-                "{:>4}  {:<sw$}  {:>10.6}  {:<aw$}",
+                "{:>4}  {:<sw$}  {:>10}  {:<aw$}",
                 h + 1,
                 label,
-                sol.v[[h, s]],
+                fixed6(sol.v[[h, s]]),
                 best
             );
             for a in 0..m.n_actions() {
-                let _ = write!(o, "  {:>10.6}", sol.q[[h, s, a]]);
+                let _ = write!(o, "  {:>10}", fixed6(sol.q[[h, s, a]]));
             }
             o.push('\n');
         }
@@ -821,6 +821,16 @@ impl Progress {
         if self.tty {
             let _ = write!(std::io::stderr(), "\r\x1b[K");
         }
+    }
+}
+
+/// A value with six decimals, or with an exponent when it is too large
+/// for a table column (rewards may reach ±1e300).
+fn fixed6(x: f64) -> String {
+    if x.abs() < 1e9 {
+        format!("{x:.6}")
+    } else {
+        format!("{x:.5e}")
     }
 }
 
