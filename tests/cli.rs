@@ -682,6 +682,64 @@ fn outputs_fail_safely() {
     );
     assert!(r.stdout.is_empty());
     assert_eq!(std::fs::read_to_string(&f).unwrap(), before);
+    // The model file the experiment names, too.
+    let model = d.0.join("night-ferry.json");
+    let before = std::fs::read_to_string(&model).unwrap();
+    let r = burnin(&["run", "--csv", p(&model), p(&f)]);
+    assert_eq!(r.code, 2, "{}", r.stderr);
+    assert!(
+        r.stderr.contains("--csv") && r.stderr.contains("is an input file"),
+        "{}",
+        r.stderr
+    );
+    assert_eq!(std::fs::read_to_string(&model).unwrap(), before);
+}
+
+/// A closed standard output is an error, not a silent success (#11,
+/// class 9): `>&-` is refused before anything runs, and a pipe closed
+/// before the output was written exits 2 saying the output is incomplete,
+/// while the CSV tables asked for are still written. A redirection to
+/// /dev/null is what the user asked for, and succeeds.
+#[cfg(target_os = "linux")]
+#[test]
+fn a_closed_standard_output_is_an_error() {
+    let d = Scratch::new("closed-stdout");
+    let f = experiment_file(
+        &d,
+        r#"[{"algorithm": "uniform"}, {"algorithm": "mvp"}]"#,
+        40,
+    );
+    let bin = env!("CARGO_BIN_EXE_burnin");
+    let sh = |script: &str| {
+        let out = Command::new("bash").arg("-c").arg(script).output().unwrap();
+        (
+            String::from_utf8_lossy(&out.stdout).into_owned(),
+            String::from_utf8_lossy(&out.stderr).into_owned(),
+        )
+    };
+    let (out, err) = sh(&format!("{bin} run {} >&-; echo \"exit $?\"", p(&f)));
+    assert_eq!(out, "exit 2\n", "{err}");
+    assert!(err.contains("standard output is closed"), "{err}");
+    let (out, err) = sh(&format!(
+        "{bin} run {} > /dev/null; echo \"exit $?\"",
+        p(&f)
+    ));
+    assert_eq!(out, "exit 0\n", "{err}");
+    // A reader that is gone before the output is written.
+    let csv = d.0.join("curves.csv");
+    let (out, err) = sh(&format!(
+        "{bin} run --json --csv {} {} | (exec 0<&-); echo \"exit ${{PIPESTATUS[0]}}\"",
+        p(&csv),
+        p(&f)
+    ));
+    assert_eq!(out, "exit 2\n", "{err}");
+    assert!(err.contains("cannot write to standard output"), "{err}");
+    assert!(err.contains("the tables were written to"), "{err}");
+    assert!(
+        std::fs::read_to_string(&csv)
+            .unwrap()
+            .starts_with("learner,algorithm,")
+    );
 }
 
 /// A model_path is read under the same size limit as any file (#11): a

@@ -237,7 +237,71 @@ enum Failure {
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
-    let result = match cli.command {
+    let writes_to_file = matches!(
+        cli.command,
+        Command::Generate {
+            output: Some(_),
+            ..
+        }
+    );
+    let result = if writes_to_file {
+        Ok(())
+    } else {
+        stdout_is_open()
+    };
+    let result = result.and_then(|()| dispatch(cli.command));
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(Failure::Invalid(lines)) => {
+            let mut err = std::io::stderr().lock();
+            for l in lines {
+                let _ = writeln!(err, "{l}");
+            }
+            ExitCode::from(1)
+        }
+        Err(Failure::Io(msg)) => {
+            let _ = writeln!(std::io::stderr(), "burnin: {msg}");
+            ExitCode::from(2)
+        }
+        Err(Failure::Guest(msg)) => {
+            let _ = writeln!(std::io::stderr(), "burnin: guest learner failed: {msg}");
+            ExitCode::from(3)
+        }
+    }
+}
+
+/// Refuses to start when standard output is closed (`burnin run x.json >&-`),
+/// rather than compute for hours and print into nothing with exit status 0.
+///
+/// Rust's runtime reopens a closed standard output on /dev/null before
+/// `main`, read and write; a shell's `> /dev/null` opens it write-only. So
+/// on Linux a standard output that is /dev/null opened for reading and
+/// writing is taken as closed (read from /proc/self; elsewhere nothing is
+/// checked).
+fn stdout_is_open() -> Result<(), Failure> {
+    let target = std::fs::read_link("/proc/self/fd/1");
+    let flags = std::fs::read_to_string("/proc/self/fdinfo/1");
+    let (Ok(target), Ok(flags)) = (target, flags) else {
+        return Ok(());
+    };
+    let mode = flags
+        .lines()
+        .find_map(|l| l.strip_prefix("flags:"))
+        .and_then(|f| u32::from_str_radix(f.trim(), 8).ok())
+        .map(|f| f & 0o3);
+    // O_ACCMODE = 0o3, O_RDWR = 0o2 (Linux).
+    if target == Path::new("/dev/null") && mode == Some(0o2) {
+        return Err(Failure::Io(
+            "standard output is closed; nothing could be printed: send it to a file with > FILE"
+                .into(),
+        ));
+    }
+    Ok(())
+}
+
+/// Runs the subcommand.
+fn dispatch(command: Command) -> Result<(), Failure> {
+    match command {
         Command::Validate { file } => validate(&file),
         Command::Solve { file, json } => solve(&file, json),
         Command::Run {
@@ -278,35 +342,20 @@ fn main() -> ExitCode {
             canon(&file)
         }
         Command::Generate { kind, seed, output } => generate(kind, seed, output.as_deref()),
-    };
-    match result {
-        Ok(()) => ExitCode::SUCCESS,
-        Err(Failure::Invalid(lines)) => {
-            let mut err = std::io::stderr().lock();
-            for l in lines {
-                let _ = writeln!(err, "{l}");
-            }
-            ExitCode::from(1)
-        }
-        Err(Failure::Io(msg)) => {
-            let _ = writeln!(std::io::stderr(), "burnin: {msg}");
-            ExitCode::from(2)
-        }
-        Err(Failure::Guest(msg)) => {
-            let _ = writeln!(std::io::stderr(), "burnin: guest learner failed: {msg}");
-            ExitCode::from(3)
-        }
     }
 }
 
-/// Writes to stdout; a closed pipe (`burnin solve m.json | head`) is not an error.
+/// Writes to stdout. A pipe closed before everything was written
+/// (`burnin run x.json | head -1`) is an error: what was not written is lost.
 fn emit(text: &str) -> Result<(), Failure> {
     let mut out = std::io::stdout().lock();
-    match out.write_all(text.as_bytes()).and_then(|_| out.flush()) {
-        Ok(()) => Ok(()),
-        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
-        Err(e) => Err(Failure::Io(format!("cannot write output: {e}"))),
-    }
+    out.write_all(text.as_bytes())
+        .and_then(|_| out.flush())
+        .map_err(|e| {
+            Failure::Io(format!(
+                "cannot write to standard output ({e}); the output is incomplete"
+            ))
+        })
 }
 
 /// Reads a file (or stdin for "-") as text, refusing files over the size limit
@@ -480,7 +529,9 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     let text = read_text(path)?;
     let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
     let model_text = Mutex::new(None::<String>);
+    let model_file = Mutex::new(None::<PathBuf>);
     let loader = |rel: &str| -> Result<String, String> {
+        *model_file.lock().expect("not poisoned") = Some(base.join(rel));
         // The same size limit as any file given on the command line, applied
         // while reading (a device file or a huge file is not read to the end).
         let t = read_text(&base.join(rel)).map_err(|f| match f {
@@ -491,6 +542,10 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
         Ok(t)
     };
     let exp = parse_experiment(&text, Some(&loader)).map_err(invalid)?;
+    if let Some(m) = model_file.lock().expect("not poisoned").as_deref() {
+        // Checked before the run, not after it.
+        check_table_paths(&o.tables, &[m])?;
+    }
     if let Some(w) = exp.seed_warning() {
         let _ = writeln!(std::io::stderr(), "warning: {w}");
     }
@@ -617,16 +672,16 @@ fn finish_output(
     tables: &Tables,
 ) -> Result<(), Failure> {
     use burnin::experiment::Output;
-    // The results go out first: a table that cannot be written must not
-    // lose what was computed.
-    if json {
-        emit(&out.to_json())?;
+    // The results go out first, and every table is written even when
+    // one output fails: a failed output must not lose what was computed.
+    let printed = if json {
+        emit(&out.to_json())
     } else {
         emit(&terminal_safe(&match out {
             Output::Single(r) => results_table(r),
             Output::Sweep(r) => sweep_table(r),
-        }))?;
-    }
+        }))
+    };
     type Writer = fn(&Output) -> String;
     let writers: [(Option<&Path>, Writer); 3] = [
         (tables.csv, Output::to_csv),
@@ -634,20 +689,29 @@ fn finish_output(
         (tables.seeds, Output::seeds_csv),
     ];
     let mut failed = Vec::new();
+    let mut written = Vec::new();
     for (path, write) in writers {
-        if let Some(p) = path
-            && let Err(e) = std::fs::write(p, write(out))
-        {
-            failed.push(format!("cannot write {}: {e}", p.display()));
+        if let Some(p) = path {
+            match std::fs::write(p, write(out)) {
+                Ok(()) => written.push(p.display().to_string()),
+                Err(e) => failed.push(format!("cannot write {}: {e}", p.display())),
+            }
         }
     }
-    if failed.is_empty() {
-        Ok(())
-    } else {
-        Err(Failure::Io(format!(
+    match (printed, failed.is_empty()) {
+        (Ok(()), true) => Ok(()),
+        (Ok(()), false) => Err(Failure::Io(format!(
             "{} (the results were printed on standard output)",
             failed.join("; ")
-        )))
+        ))),
+        (Err(Failure::Io(m)), _) => {
+            failed.insert(0, m);
+            if !written.is_empty() {
+                failed.push(format!("the tables were written to {}", written.join(", ")));
+            }
+            Err(Failure::Io(failed.join("; ")))
+        }
+        (Err(f), _) => Err(f),
     }
 }
 
