@@ -372,6 +372,31 @@ pub fn generate_model(spec: &str) -> JsValue {
     }
 }
 
+/// How long and how much memory the experiment `text` will take on
+/// `workers` workers: each learner is timed for a few episodes here (about
+/// a second in all; see `experiment::calibrate`). `{ok, estimate, words}`,
+/// or the problems.
+#[wasm_bindgen(js_name = estimateRun)]
+pub fn estimate_run(text: &str, workers: usize) -> JsValue {
+    use crate::experiment::{Point, all_jobs, calibrate, estimate, parse_experiment};
+    let exp = match parse_experiment(text, None) {
+        Ok(e) => e,
+        Err(p) => return problems_value(&p),
+    };
+    let points = Point::all(&exp, None);
+    let start = js_sys::Date::now();
+    let now = || (js_sys::Date::now() - start) / 1000.0;
+    let stop = || now() > 1.0;
+    let pairs = (points.len() * exp.learners.len()) as f64;
+    let cal = calibrate(&points, &now, (0.5 / pairs).clamp(0.01, 0.1), &stop);
+    let e = estimate(&points, &all_jobs(&points), &cal, workers);
+    let obj = Object::new();
+    set(&obj, "ok", true);
+    set(&obj, "estimate", to_js(&e));
+    set(&obj, "words", e.words_with("worker"));
+    obj.into()
+}
+
 /// The catalogues of algorithms and generators and the file limits (see
 /// `src/catalogue.rs`), as plain objects.
 #[wasm_bindgen]

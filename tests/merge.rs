@@ -242,12 +242,31 @@ fn an_absurd_shard_count_is_refused_before_allocating() {
         &d,
         &base[..1],
         |s| s[0]["of"] = json!(1u64 << 60),
-        "s1.json: says it is one of 1152921504606846976 shards, but the experiment's 6 runs can be split into 1 to 6 shards",
+        "s1.json: says it is one of 1152921504606846976 shards; an experiment is split into 1 to 100000",
     );
-    let r = burnin(&["run", "--shard", "1/7", p(&d.0.join("exp.json"))]);
+    let r = burnin(&["run", "--shard", "1/100001", p(&d.0.join("exp.json"))]);
     assert_eq!(r.code, 2, "{}", r.stderr);
     assert_eq!(
         r.stderr,
-        "burnin: --shard 1/7: the experiment's 6 runs can be split into 1 to 6 shards\n"
+        "burnin: --shard 1/100001: an experiment is split into 1 to 100000 shards\n"
     );
+    // More shards than runs: the extra shards hold none, and the merge of
+    // all eight is exact.
+    let mut files = Vec::new();
+    for i in 1..=8 {
+        let r = burnin(&[
+            "run",
+            "--shard",
+            &format!("{i}/8"),
+            p(&d.0.join("exp.json")),
+        ]);
+        assert_eq!(r.code, 0, "{}", r.stderr);
+        files.push(d.file(&format!("e{i}.json"), &r.stdout));
+    }
+    let mut args = vec!["merge", "--json"];
+    args.extend(files.iter().map(|f| p(f)));
+    let merged = burnin(&args);
+    assert_eq!(merged.code, 0, "{}", merged.stderr);
+    let whole = burnin(&["run", "--json", p(&d.0.join("exp.json"))]);
+    assert_eq!(merged.stdout, whole.stdout);
 }

@@ -87,6 +87,28 @@ export const check = (text) => quick.request('check', { text }).promise;
 /** Checks an experiment file's text: {ok: true} or its problems. */
 export const checkExperiment = (text) => quick.request('check-experiment', { text }).promise;
 
+/**
+ * How long and how much memory the experiment `text` will take on the
+ * pool: {ok, estimate: {seconds, at_least, bytes, threads, learners}, words}
+ * (the core times each learner for about a second). When a single episode
+ * takes longer than `ESTIMATE_WAIT_MS`, the worker is replaced and the answer
+ * is {ok, estimate: {seconds: null, at_least: true}, words}.
+ */
+export async function estimateRun(text, workers = POOL_SIZE) {
+  const job = quick.request('estimate', { text, workers });
+  let timer;
+  const late = new Promise((resolve) => { timer = setTimeout(() => resolve(null), ESTIMATE_WAIT_MS); });
+  const r = await Promise.race([job.promise, late]);
+  clearTimeout(timer);
+  if (r) return r;
+  quick.replace(job.id, new Error('the estimate took too long'));
+  job.promise.catch(() => {});
+  const secs = ESTIMATE_WAIT_MS / 1000;
+  return { ok: true, estimate: { seconds: null, at_least: true }, words: `a single episode takes more than ${secs} s; the whole run would take far longer` };
+}
+/** How long the page waits for an estimate. */
+const ESTIMATE_WAIT_MS = 5000;
+
 /** The core's catalogues of algorithms and generators, and its file limits. */
 export const catalogue = () => quick.request('catalogue', {}).promise;
 

@@ -1,13 +1,16 @@
 // The experiment view: set-up form, running in the worker with progress and
 // cancel, and the results (charts with hover, table, visit heat map, exports,
 // presentation view).
-import { runExperiment, checkGuest, checkExperiment } from './compute.js';
+import { runExperiment, checkGuest, checkExperiment, estimateRun } from './compute.js';
 import * as store from './store.js';
 import { timeLeft } from './eta.js';
 import { el, download, safeName } from './dom.js';
 import { drawChart, CanvasPen, SvgPen, PALETTE, nearestIndex } from './chart.js';
 import { short, grouped, valueColour, inkOn } from './format.js';
 import { sweepableParams } from './generator-form.js';
+
+/** A run estimated longer than this (seconds) is started only when the user says so. */
+const LONG_RUN_SECONDS = 180;
 
 /** The ready experiment of a first visit: a few seconds in the browser. */
 export const DEFAULT_SETUP = {
@@ -437,7 +440,7 @@ export class ExperimentView {
   }
 
   async run() {
-    if (this.running) return;
+    if (this.running || this.estimating) return;
     for (const e of document.querySelectorAll('#exp-form [aria-invalid]')) e.removeAttribute('aria-invalid');
     $('exp-problems').hidden = true;
     let file;
@@ -449,6 +452,18 @@ export class ExperimentView {
       return;
     }
     const guests = named.map((name) => ({ name, source: this.guests.get(name).source }));
+    // Say how long it will take, and ask first when that is more than a few minutes.
+    $('run-exp').disabled = true;
+    $('exp-status').textContent = 'Estimating how long this run takes…';
+    this.estimating = true;
+    const est = await estimateRun(file.text).finally(() => { this.estimating = false; });
+    $('run-exp').disabled = false;
+    if (est.ok === false) { $('exp-status').textContent = ''; this.showProblems(est, file.rows); return; }
+    const long = est.estimate.seconds === null || est.estimate.seconds > LONG_RUN_SECONDS;
+    if (long && !(await this.confirmLongRun(est.words))) {
+      $('exp-status').textContent = `Not started: estimated ${est.words}.`;
+      return;
+    }
     const t0 = performance.now();
     // The set-up is what is running: it cannot change under the run.
     const fieldsets = [...document.querySelectorAll('#exp-form fieldset')];
@@ -500,6 +515,20 @@ export class ExperimentView {
       $('run-exp').disabled = false;
       $('cancel-exp').disabled = true;
     }
+  }
+
+  /** Asks whether to start a run estimated at `words`; resolves true to run it. */
+  confirmLongRun(words) {
+    const d = $('long-run');
+    $('long-run-text').textContent = `It is estimated to take ${words}.`;
+    return new Promise((resolve) => {
+      const done = (go) => { d.onclose = null; d.close(); resolve(go); };
+      $('long-run-go').onclick = () => done(true);
+      $('long-run-back').onclick = () => done(false);
+      d.onclose = () => resolve(false);
+      d.showModal();
+      $('long-run-back').focus();
+    });
   }
 
   /** Shows results {text, csv?, experiment?} (from a run, a file or the library). */

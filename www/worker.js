@@ -13,11 +13,12 @@
 //                        {learner, episodes, ms} of the slice just run (one run per slice).
 //   check-guest {source} → done {result: {ok, message}}  (whether a module exports a learner)
 //   merge {shards}     → done {result: {json, csv}} or problems
+//   estimate {text, workers} → done {result: {ok, estimate, words}} or problems
 //   catalogue          → done {result}            (algorithms, generators, limits: src/catalogue.rs)
 //   read-document {text} → done {result}          (what a file is, read by the core)
 //   with-layout {text, positions} → done {result} (the model's text with a new layout, or problems)
 //   cancel {id}        → the run with that id stops and answers cancelled
-import init, { solveModel, checkModel, checkExperiment, generateModel, mergeShards, catalogue, readDocument, withLayout, ExperimentRun } from './pkg/burnin.js';
+import init, { solveModel, checkModel, checkExperiment, generateModel, mergeShards, catalogue, readDocument, withLayout, estimateRun, ExperimentRun } from './pkg/burnin.js';
 
 const ready = init();
 const cancelled = new Set();
@@ -126,6 +127,8 @@ self.onmessage = async (event) => {
       self.postMessage({ type: 'done', id, result: readDocument(event.data.text) });
     } else if (type === 'with-layout') {
       self.postMessage({ type: 'done', id, result: withLayout(event.data.text, event.data.positions) });
+    } else if (type === 'estimate') {
+      self.postMessage({ type: 'done', id, result: estimateRun(event.data.text, event.data.workers) });
     } else if (type === 'merge') {
       self.postMessage({ type: 'done', id, result: mergeShards(event.data.shards) });
     } else {

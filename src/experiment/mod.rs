@@ -12,11 +12,15 @@
 //! responsive.
 
 mod draws;
+mod estimate;
 mod results;
 mod shard;
 mod spec;
 
 pub use draws::draw_stream;
+pub use estimate::{
+    Calibration, Estimate, LearnerCost, bytes_words, calibrate, duration_words, estimate,
+};
 pub use shard::{MAX_SHARDS, SHARD_FORMAT, SHARD_VERSION, ShardFile, merge, text_digest};
 
 pub use results::{

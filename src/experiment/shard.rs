@@ -210,6 +210,17 @@ pub fn merge(shards: &[ShardFile], name: &dyn Fn(usize) -> String) -> Result<Out
         }
     }
     std::mem::take(&mut p).into_result()?;
+    // Checked before anything of size `of` is allocated (a shard beyond the
+    // experiment's runs holds none, and is still one of the n).
+    if first.of == 0 || first.of > MAX_SHARDS {
+        return Err(Problems::single(
+            name(0),
+            format!(
+                "says it is one of {} shards; an experiment is split into 1 to {MAX_SHARDS}",
+                first.of
+            ),
+        ));
+    }
     let model = first.model.clone();
     let loader = move |_: &str| {
         model
@@ -218,18 +229,7 @@ pub fn merge(shards: &[ShardFile], name: &dyn Fn(usize) -> String) -> Result<Out
     };
     let exp = parse_experiment(&first.experiment, Some(&loader))?;
     let points: Vec<Arc<Point>> = exp.points().into_iter().map(Point::new).collect();
-    let total: usize = points.iter().map(|c| c.runs()).sum();
     let n = first.of;
-    // Checked before anything of size n is allocated.
-    if n == 0 || n > total.min(MAX_SHARDS) {
-        return Err(Problems::single(
-            name(0),
-            format!(
-                "says it is one of {n} shards, but the experiment's {total} runs can be split into 1 to {} shards",
-                total.min(MAX_SHARDS)
-            ),
-        ));
-    }
     let mut seen = vec![None; n];
     for (i, s) in shards.iter().enumerate() {
         match seen.get(s.shard.wrapping_sub(1)) {

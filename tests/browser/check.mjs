@@ -43,7 +43,9 @@ async function check(name, body) {
     failed++;
     // What the page said may explain a time-out better than the time-out does.
     const status = await page.locator('#status').textContent({ timeout: 1000 }).catch(() => '(no status line)');
-    const why = [String(err.stack || err), `page status: ${status}`, ...problems].join('\n');
+    const expStatus = await page.locator('#exp-status').textContent({ timeout: 1000 }).catch(() => '');
+    const expProblems = await page.locator('#exp-problems').textContent({ timeout: 1000 }).catch(() => '');
+    const why = [String(err.stack || err), `page status: ${status}`, ...(expStatus ? [`experiment status: ${expStatus}`] : []), ...(expProblems.trim() ? [`experiment problems: ${expProblems.trim()}`] : []), ...problems].join('\n');
     console.log(`FAIL ${name}\n     ${why.split('\n').join('\n     ')}`);
   } finally {
     await context.close();
@@ -85,8 +87,21 @@ async function upload(page, name, text) {
   await page.setInputFiles('#file-input', { name, mimeType: 'application/json', buffer: Buffer.from(text) });
 }
 
-async function runAndWait(page) {
+/**
+ * Clicks Run and, when the page asks before a long run, says to run it;
+ * returns the long-run question's text ('' when it did not ask).
+ */
+async function startRun(page) {
   await page.click('#run-exp');
+  await page.waitForFunction(() => document.getElementById('long-run').open || !/^Estimating/.test(document.getElementById('exp-status').textContent), null, { timeout: 20000 });
+  if (!(await page.evaluate(() => document.getElementById('long-run').open))) return '';
+  const asked = await page.textContent('#long-run-text');
+  await page.click('#long-run-go');
+  return asked;
+}
+
+async function runAndWait(page) {
+  await startRun(page);
   await page.waitForFunction(() => /^Done in/.test(document.getElementById('exp-status').textContent), null, { timeout: 120000 });
 }
 
@@ -351,10 +366,41 @@ await check('the time left is estimated from each learner\'s own measured cost, 
   // During a run the status line gives it.
   await page.click('#tab-experiment');
   await page.fill('#exp-episodes', '100000000');
-  await page.click('#run-exp');
+  await startRun(page);
   await page.waitForFunction(() => / s left · /.test(document.getElementById('exp-status').textContent), null, { timeout: 20000 });
   await page.click('#cancel-exp');
   await page.waitForFunction(() => /^Cancelled/.test(document.getElementById('exp-status').textContent));
+});
+
+await check('a run estimated at more than a few minutes asks first and says how long; a short one starts at once', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '1000000000');
+  await page.click('#run-exp');
+  await page.waitForFunction(() => document.getElementById('long-run').open, null, { timeout: 20000 });
+  const asked = await page.textContent('#long-run-text');
+  assert(/^It is estimated to take (about|at least) [\d.]+ (min|h \d+ min|days|years) on \d+ workers?, peak memory about [\d.]+ (kB|MB|GB)\.$/.test(asked), asked);
+  await page.click('#long-run-back');
+  const status = await page.textContent('#exp-status');
+  assert(status.startsWith('Not started: estimated '), status);
+  assert(await page.isEnabled('#run-exp'), 'nothing runs');
+  assert(await page.isDisabled('#cancel-exp'), 'nothing to cancel');
+  assertEqual(await page.inputValue('#exp-episodes'), '1000000000', 'the set-up is kept');
+  // The estimate is the core's own, the same as `burnin run --estimate`
+  // gives (its per-episode costs are timed, so compare the arithmetic: a
+  // billion episodes at the measured cost).
+  const est = await page.evaluate(async () => {
+    const { estimateRun } = await import('./compute.js');
+    const text = JSON.stringify({ format: 'burnin-experiment', version: 1, episodes: 1000000, seeds: 2, generator: { kind: 'river', states: 4, horizon: 5 }, learners: [{ algorithm: 'uniform' }] });
+    return (await estimateRun(text, 1)).estimate;
+  });
+  const perEpisode = est.learners[0].seconds_per_episode;
+  assert(perEpisode > 0, `a measured cost: ${perEpisode}`);
+  assert(Math.abs(est.seconds - 2 * 1e6 * perEpisode) <= 1e-9 * est.seconds, `${est.seconds} = 2 runs × 10⁶ episodes × ${perEpisode}`);
+  // A short run starts without asking.
+  await page.fill('#exp-episodes', '200');
+  assertEqual(await startRun(page), '', 'no question for a short run');
+  await page.waitForFunction(() => /^Done in/.test(document.getElementById('exp-status').textContent), null, { timeout: 60000 });
 });
 
 await check('the numbers are explained where they are shown, from the core\'s glossary; exports carry their caption; legends name the bound lines', async (page) => {
@@ -397,7 +443,7 @@ await check('a long run cancels within a quarter second', async (page) => {
   await openPage(page);
   await page.click('#tab-experiment');
   await page.fill('#exp-episodes', '100000000');
-  await page.click('#run-exp');
+  await startRun(page);
   await page.waitForFunction(() => Number(document.getElementById('exp-progress').value) > 0, null, { timeout: 20000 });
   await page.click('#cancel-exp');
   await page.waitForFunction(() => /^Cancelled/.test(document.getElementById('exp-status').textContent), null, { timeout: 5000 });
@@ -548,13 +594,13 @@ await check('the set-up is locked while a run goes, and a problem\'s message goe
   await page.click('#tab-experiment');
   await page.locator('#learner-rows tr:nth-child(3) input[type=text]').fill('same');
   await page.locator('#learner-rows tr:nth-child(4) input[type=text]').fill('same');
-  await page.click('#run-exp');
+  await startRun(page);
   await page.waitForSelector('#exp-problems:not([hidden])');
   assert((await page.locator('#exp-problems').textContent()).includes('duplicate label'), 'the problem is shown');
   await page.locator('#learner-rows tr:nth-child(4) input[type=text]').fill('different');
   await page.waitForSelector('#exp-problems[hidden]', { state: 'attached', timeout: 5000 });
   await page.fill('#exp-episodes', '100000000');
-  await page.click('#run-exp');
+  await startRun(page);
   await page.waitForFunction(() => Number(document.getElementById('exp-progress').value) > 0, null, { timeout: 20000 });
   assert(await page.locator('#exp-episodes').isDisabled(), 'episodes locked');
   assert(await page.locator('#learner-rows select').first().isDisabled(), 'learners locked');
@@ -589,7 +635,7 @@ await check('a sweep draws regret at K against the swept parameter', async (page
   assert(r.points.every((pt) => pt.learners[0].final_regret[0] === r.points[0].learners[0].final_regret[0]), 'and the same numbers at every point');
   await page.screenshot({ path: join(out, 'sweep.png'), fullPage: true });
   await page.fill('#sweep-values', '0.1, -2');
-  await page.click('#run-exp');
+  await startRun(page);
   await page.waitForSelector('#exp-problems:not([hidden])');
   assertEqual((await page.locator('#exp-problems li').allTextContents())[0], 'sweep.values[1]: expected a bonus scale > 0, found -2', 'bad sweep value');
 });
@@ -936,7 +982,7 @@ await check('a worker that crashes mid-run is reported and replaced', async (pag
   await openPage(page);
   await page.click('#tab-experiment');
   await page.fill('#exp-episodes', '100000000');
-  await page.click('#run-exp');
+  await startRun(page);
   await page.waitForFunction(() => Number(document.getElementById('exp-progress').value) > 0, null, { timeout: 20000 });
   await page.evaluate(async () => (await import('./compute.js')).crashPoolWorkerForTest(0));
   await page.waitForFunction(() => /^The run failed: a compute worker stopped/.test(document.getElementById('exp-status').textContent), null, { timeout: 10000 });
@@ -971,7 +1017,7 @@ await check('a model at the size limit solves without freezing the page', async 
   await page.fill('#gen-horizon', '1025');
   await page.click('#gen-run');
   await page.waitForSelector('#problems:not([hidden])');
-  assertEqual((await page.locator('#problems li').allTextContents())[0], 'generator.states: S·A·H = 4096·4·1025 = 16793600 is over the limit of 16777216 (step, state, action) cells', 'one over the limit');
+  assertEqual((await page.locator('#problems li').allTextContents())[0], 'generator.states: H·S·A = 1025·4096·4 = 16793600 is over the limit of 16777216 (step, state, action) cells', 'one over the limit');
 });
 
 await check('a reload in the middle of a run loses nothing saved', async (page) => {
@@ -982,7 +1028,7 @@ await check('a reload in the middle of a run loses nothing saved', async (page) 
   await page.click('#save-current');
   await page.click('#tab-experiment');
   await page.fill('#exp-episodes', '100000000');
-  await page.click('#run-exp');
+  await startRun(page);
   await page.waitForFunction(() => Number(document.getElementById('exp-progress').value) > 0, null, { timeout: 20000 });
   await page.reload();
   await shownValue(page, 'Pearl reef');
@@ -1118,7 +1164,7 @@ await check('your own learner module runs in workers with exact regret: K·(V* �
   await upload(page, 'two-doors-guest-experiment.json', guestFixture);
   await page.waitForSelector('#panel-experiment:not([hidden])');
   // The file names the learner; the page asks for its file before running.
-  await page.click('#run-exp');
+  await startRun(page);
   await page.waitForFunction(() => /your learner "uniform" is not loaded/.test(document.getElementById('exp-problems').textContent), null, { timeout: 10000 });
   await loadGuest(page, 'uniform.mjs', readFileSync(join(examples, 'uniform.mjs'), 'utf8'));
   assertEqual(await page.locator('#learner-rows select').nth(1).inputValue(), 'guest:uniform', 'the row uses the loaded learner');
@@ -1169,7 +1215,7 @@ await check('a run with a learner module cancels promptly, even while the module
   await page.waitForSelector('#panel-experiment:not([hidden])');
   const source = readFileSync(join(browserDir, 'guests/misbehave.mjs'), 'utf8').replace("'BURNIN_HOW'", "'silent'");
   await loadGuest(page, 'bad.mjs', source);
-  await page.click('#run-exp');
+  await startRun(page);
   await page.waitForFunction(() => Number(document.getElementById('exp-progress').value) > 0, null, { timeout: 20000 });
   await page.waitForTimeout(1500);
   const t0 = Date.now();

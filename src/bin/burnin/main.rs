@@ -64,6 +64,16 @@ enum Command {
         /// Seconds a guest learner may take to answer one message.
         #[arg(long, value_name = "SECS", default_value_t = 30.0)]
         learner_timeout: f64,
+        /// Print the run's estimated time and memory and stop, without running.
+        #[arg(long, conflicts_with = "no_budget")]
+        estimate: bool,
+        /// Refuse a run estimated to take longer than this (minutes) or to
+        /// need more memory than the machine has free.
+        #[arg(long, value_name = "MINUTES", default_value_t = 60.0)]
+        budget: f64,
+        /// Run without estimating first (and so without a budget).
+        #[arg(long)]
+        no_budget: bool,
     },
     /// Time the reference workloads (solver, learners, MVP replanning) on this machine.
     Bench {
@@ -312,6 +322,9 @@ fn dispatch(command: Command) -> Result<(), Failure> {
             shard,
             learners,
             learner_timeout,
+            estimate,
+            budget,
+            no_budget,
         } => run(
             &file,
             &RunOptions {
@@ -321,6 +334,13 @@ fn dispatch(command: Command) -> Result<(), Failure> {
                 shard: shard.as_deref(),
                 learners: &learners,
                 learner_timeout,
+                budget: if no_budget {
+                    Budget::Unchecked
+                } else if estimate {
+                    Budget::EstimateOnly
+                } else {
+                    Budget::Minutes(budget)
+                },
             },
         ),
         Command::Merge {
@@ -504,6 +524,12 @@ fn parse_shard(text: &str) -> Result<(usize, usize), Failure> {
     if i == 0 || i > n {
         return Err(bad());
     }
+    let most = burnin::experiment::MAX_SHARDS;
+    if n > most {
+        return Err(Failure::Io(format!(
+            "--shard {text}: an experiment is split into 1 to {most} shards"
+        )));
+    }
     Ok((i, n))
 }
 
@@ -515,6 +541,13 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     let (json, threads) = (o.json, o.threads);
     check_table_paths(&o.tables, &[path])?;
     let shard = o.shard.map(parse_shard).transpose()?;
+    if let Budget::Minutes(m) = o.budget
+        && !(m > 0.0 && m.is_finite())
+    {
+        return Err(Failure::Io(format!(
+            "--budget: expected a number of minutes > 0, found {m}"
+        )));
+    }
     if !(o.learner_timeout > 0.0 && o.learner_timeout <= 86_400.0) {
         return Err(Failure::Io(format!(
             "--learner-timeout: expected 0 < SECS ≤ 86400, found {}",
@@ -570,18 +603,37 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     // A sweep is one experiment per value; all their runs share one pool.
     let points = Point::all(&exp, Some(&guests));
     let (index, count) = shard.map_or((0, 1), |(i, n)| (i - 1, n));
-    let total: usize = points.iter().map(|c| c.runs()).sum();
-    let most = total.min(burnin::experiment::MAX_SHARDS);
-    if count > most {
-        return Err(Failure::Io(format!(
-            "--shard {}/{count}: the experiment's {total} runs can be split into 1 to {most} shards",
-            index + 1
-        )));
-    }
     let jobs = shard_jobs(&points, index, count);
     let threads = threads
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
         .clamp(1, jobs.len().max(1));
+    if !matches!(o.budget, Budget::Unchecked) {
+        let e = estimate_jobs(&points, &jobs, threads);
+        let line = format!("estimate: {}", e.words());
+        match o.budget {
+            Budget::EstimateOnly if o.json => {
+                return emit(&(serde_json::to_string_pretty(&e).expect("finite estimate") + "\n"));
+            }
+            Budget::EstimateOnly => return emit(&format!("{line}\n")),
+            Budget::Minutes(m) if e.seconds > 60.0 * m => {
+                return Err(Failure::Io(format!(
+                    "this run is estimated to take {}, over the budget of {m} min; give a larger --budget, split it with --shard (docs/array-jobs.md), or --no-budget to run it anyway",
+                    e.words()
+                )));
+            }
+            _ => {}
+        }
+        if free_memory().is_some_and(|free| e.bytes > free) {
+            return Err(Failure::Io(format!(
+                "this run is estimated to need {}, more than the {} of memory free; run it in shards (--shard) or with fewer seeds, or --no-budget to try anyway",
+                burnin::experiment::bytes_words(e.bytes),
+                burnin::experiment::bytes_words(free_memory().unwrap_or(0.0))
+            )));
+        }
+        if e.seconds >= 10.0 {
+            let _ = writeln!(std::io::stderr(), "{line}");
+        }
+    }
     let next = AtomicUsize::new(0);
     let done_episodes = AtomicU64::new(0);
     let records = Mutex::new(Vec::with_capacity(jobs.len()));
@@ -657,6 +709,72 @@ struct RunOptions<'a> {
     shard: Option<&'a str>,
     learners: &'a [String],
     learner_timeout: f64,
+    budget: Budget,
+}
+
+/// What `run` does with its estimate.
+#[derive(Clone, Copy)]
+enum Budget {
+    /// `--no-budget`: no estimate.
+    Unchecked,
+    /// `--estimate`: print it and stop.
+    EstimateOnly,
+    /// Refuse a run over this many minutes (or the free memory).
+    Minutes(f64),
+}
+
+/// Measures the learners (at most ~2 s in all; a learner whose first
+/// episode outlasts that is counted at the time it has taken, and the
+/// estimate says "at least") and estimates the `jobs` on `threads` threads.
+fn estimate_jobs(
+    points: &[std::sync::Arc<burnin::experiment::Point>],
+    jobs: &[(usize, usize)],
+    threads: usize,
+) -> burnin::experiment::Estimate {
+    use burnin::experiment::{Calibration, calibrate, estimate};
+    use std::time::{Duration, Instant};
+    const DEADLINE: Duration = Duration::from_secs(2);
+    let pairs = points.len() * points[0].exp.learners.len();
+    let per_run = (1.0 / pairs as f64).clamp(0.01, 0.1);
+    let (tx, rx) = std::sync::mpsc::channel();
+    let pts = points.to_vec();
+    let start = Instant::now();
+    std::thread::spawn(move || {
+        let now = || start.elapsed().as_secs_f64();
+        let stop = || start.elapsed() > DEADLINE;
+        let _ = tx.send(calibrate(&pts, &now, per_run, &stop));
+    });
+    match rx.recv_timeout(DEADLINE + Duration::from_secs(1)) {
+        Ok(cal) => estimate(points, jobs, &cal, threads),
+        Err(_) => {
+            // One episode alone took longer than the deadline: every
+            // learner is counted at that time per episode, a lower bound
+            // for the one being measured.
+            let spent = start.elapsed().as_secs_f64();
+            let n = points[0].exp.learners.len();
+            let cal = Calibration {
+                per_point: vec![vec![Some(spent); n]; points.len()],
+                learners: Vec::new(),
+            };
+            let mut e = estimate(points, jobs, &cal, threads);
+            e.at_least = true;
+            e
+        }
+    }
+}
+
+/// Free memory in bytes (Linux: MemAvailable), when it can be read.
+fn free_memory() -> Option<f64> {
+    let info = std::fs::read_to_string("/proc/meminfo").ok()?;
+    let kb: f64 = info
+        .lines()
+        .find_map(|l| l.strip_prefix("MemAvailable:"))?
+        .trim()
+        .trim_end_matches("kB")
+        .trim()
+        .parse()
+        .ok()?;
+    Some(kb * 1024.0)
 }
 
 /// The CSV tables `run` and `merge` may write besides their output.
