@@ -4,7 +4,8 @@
 //! - `cargo xtask serve [--port N]`: build the wasm core into `www/pkg`, copy
 //!   the demo models into `www/demo-models`, and serve `www/` on 127.0.0.1.
 //! - `cargo xtask test`: formatting, clippy, every cargo test, the wasm
-//!   build, and the headless-Chromium checks of the page.
+//!   build, the headless-Chromium checks of the page, and the array-job
+//!   recipe on a single-node Slurm.
 //! - `cargo xtask wasm`: only the wasm build.
 //! - `cargo xtask fuzz [SECONDS]`: each cargo-fuzz target for a bounded time
 //!   (30 s by default; part of `test`).
@@ -190,7 +191,25 @@ fn test_cmd() -> Result<()> {
     let www = build_wasm()?;
     step("browser checks (headless Chromium)");
     browser_checks(www)?;
+    slurm_check()?;
     fuzz(30)
+}
+
+/// The array-job recipe of docs/array-jobs.md on a real single-node Slurm
+/// (tests/slurm/check.sh, which installs Slurm and MUNGE when missing and
+/// stops every daemon it started). It needs root, as CI is; elsewhere it
+/// says that it was skipped.
+fn slurm_check() -> Result<()> {
+    step("array-job recipe on a single-node Slurm (tests/slurm/check.sh)");
+    let root_user = output(Command::new("id").arg("-u")).is_some_and(|u| u.trim() == "0");
+    if !root_user {
+        eprintln!("skipped: starting Slurm's daemons and installing them needs root");
+        return Ok(());
+    }
+    run(cargo().args(["build", "--bin", "burnin"]))?;
+    run(Command::new("bash")
+        .arg(root().join("tests/slurm/check.sh"))
+        .arg(root().join("target/debug/burnin")))
 }
 
 /// Each fuzz target for `seconds`, on a fresh corpus grown from fuzz/seeds.
