@@ -20,6 +20,8 @@ pub struct Catalogue {
     pub sweep_keys: Vec<&'static str>,
     /// What each number a front end shows means ([`GLOSSARY`]).
     pub glossary: &'static [Term],
+    /// This build ([`crate::BUILD`]), as `burnin --version` prints it.
+    pub build: &'static str,
 }
 
 /// One entry of the glossary: the key a front end finds it by, how the
@@ -113,6 +115,7 @@ pub fn catalogue() -> Catalogue {
         max_file_bytes: crate::model::limits::MAX_FILE_BYTES,
         sweep_keys: crate::experiment::experiment_sweep_keys(),
         glossary: GLOSSARY,
+        build: crate::BUILD,
     }
 }
 

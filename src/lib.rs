@@ -25,5 +25,11 @@ pub mod theory;
 #[cfg(target_arch = "wasm32")]
 pub mod wasm;
 
+/// This build: the crate's version and a short digest of the core's
+/// source (build.rs), as `burnin --version`, the page and results files
+/// show it: two people comparing numbers can see whether they ran the same
+/// build.
+pub const BUILD: &str = concat!(env!("CARGO_PKG_VERSION"), "+", env!("BURNIN_CORE_DIGEST"));
+
 pub use model::json::{parse_model, write_model};
 pub use model::{Mdp, MdpParts, Problem, Problems, Reward, StepParts};

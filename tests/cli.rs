@@ -761,3 +761,24 @@ fn model_path_reads_are_bounded() {
         r.stderr
     );
 }
+
+/// `burnin --version` names the build as results files record it (#16): the
+/// crate's version and a digest of the core's source.
+#[test]
+fn the_version_names_the_build_that_results_record() {
+    let r = burnin(&["--version"]);
+    assert_eq!(r.code, 0);
+    let build = r.stdout.trim().strip_prefix("burnin ").unwrap().to_owned();
+    let (version, digest) = build.split_once('+').expect("VERSION+DIGEST");
+    assert_eq!(version, env!("CARGO_PKG_VERSION"));
+    assert!(
+        digest.len() == 8 && digest.chars().all(|c| c.is_ascii_hexdigit()),
+        "{digest}"
+    );
+    assert_eq!(build, burnin::BUILD);
+    let d = Scratch::new("build-id");
+    let f = experiment_file(&d, r#"[{"algorithm": "uniform"}]"#, 10);
+    let out = burnin(&["run", "--json", p(&f)]);
+    let v: serde_json::Value = serde_json::from_str(&out.stdout).unwrap();
+    assert_eq!(v["build"], build.as_str());
+}

@@ -268,3 +268,21 @@ fn formats_lists_every_limit_with_its_value() {
         "one row per constant, MAX_MAGNITUDE and the JSON depth"
     );
 }
+
+/// The example publishing workflow is YAML, and builds the site the way the
+/// README says (`cargo xtask dist`) and publishes that folder.
+#[test]
+fn the_publishing_example_builds_the_site_with_xtask_dist() {
+    let text = read("docs/publish-pages.example.yml");
+    let v: serde_yaml::Value = serde_yaml::from_str(&text).expect("valid YAML");
+    let steps = v["jobs"]["build"]["steps"]
+        .as_sequence()
+        .expect("build steps");
+    let runs: Vec<&str> = steps.iter().filter_map(|s| s["run"].as_str()).collect();
+    assert!(runs.contains(&"cargo xtask dist site"), "{runs:?}");
+    assert!(
+        steps.iter().any(|s| s["with"]["path"] == "site"),
+        "publishes the folder it built"
+    );
+    assert!(read("README.md").contains("cargo xtask dist site/"));
+}

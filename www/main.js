@@ -390,6 +390,7 @@ const experimentHooks = {
 
 async function start() {
   CATALOGUE = await catalogue();
+  $('build-id').textContent = `Burnin ${CATALOGUE.build}`;
   experiment = new ExperimentView(experimentHooks, CATALOGUE);
   $('optimal-value-term').title = experiment.meaning('optimal_value');
   const index = await (await fetch('demo-models/index.json')).json();
@@ -491,7 +492,40 @@ function fail(err) {
   console.error(err);
 }
 
+// ---- a published build: offline, and told of newer builds --------------
+/**
+ * In a folder written by `cargo xtask dist` (it marks index.html with
+ * <meta name="burnin-dist">), registers the service worker that keeps the
+ * build for offline use. A newer published build is offered, never swapped
+ * in: the reload waits until no experiment runs.
+ */
+async function keepOffline() {
+  if (!document.querySelector('meta[name="burnin-dist"]') || !('serviceWorker' in navigator)) return;
+  const reg = await navigator.serviceWorker.register('sw.js');
+  const offer = (waiting) => {
+    $('update-bar').hidden = false;
+    $('update-reload').onclick = () => {
+      if (experiment?.running || experiment?.estimating) {
+        $('update-text').textContent = 'A newer version of Burnin is available; it loads when you reload after the run has finished or been cancelled.';
+        return;
+      }
+      navigator.serviceWorker.addEventListener('controllerchange', () => location.reload(), { once: true });
+      waiting.postMessage('take-over');
+    };
+  };
+  if (reg.waiting && navigator.serviceWorker.controller) offer(reg.waiting);
+  reg.addEventListener('updatefound', () => {
+    const w = reg.installing;
+    w?.addEventListener('statechange', () => {
+      if (w.state === 'installed' && navigator.serviceWorker.controller) offer(w);
+    });
+  });
+  // Look for a newer build when the page comes back into view.
+  document.addEventListener('visibilitychange', () => { if (!document.hidden) reg.update().catch(() => {}); });
+}
+
 start().catch(fail).finally(() => {
+  keepOffline().catch((err) => console.warn(`offline copy not kept: ${err.message}`));
   // Start the experiment workers once the page has settled, so that a first
   // run does not pay for creating them.
   const later = window.requestIdleCallback || ((f) => setTimeout(f, 200));

@@ -145,6 +145,10 @@ pub struct LearnerResult {
 pub struct Results {
     pub format: String,
     pub version: u64,
+    /// The build that computed them ([`crate::BUILD`]); empty in files from
+    /// builds before December 2026.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub build: String,
     pub name: String,
     pub model_name: String,
     pub states: usize,
@@ -503,6 +507,7 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
         .collect();
     Results {
         format: RESULTS_FORMAT.into(),
+        build: crate::BUILD.into(),
         version: RESULTS_VERSION,
         name: exp.name.clone(),
         model_name: m.name().to_owned(),
@@ -676,6 +681,9 @@ pub struct SweepLearner {
 pub struct SweepResults {
     pub format: String,
     pub version: u64,
+    /// As [`Results::build`].
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub build: String,
     pub name: String,
     pub parameter: String,
     pub values: Vec<f64>,
@@ -710,6 +718,7 @@ impl SweepResults {
             .collect();
         SweepResults {
             format: SWEEP_FORMAT.into(),
+            build: crate::BUILD.into(),
             version: RESULTS_VERSION,
             name: name.to_owned(),
             parameter: parameter.to_owned(),

@@ -7,6 +7,8 @@
 //!   build, the headless-Chromium checks of the page, and the array-job
 //!   recipe on a single-node Slurm.
 //! - `cargo xtask wasm`: only the wasm build.
+//! - `cargo xtask dist DIR`: the page as a static site for any host, which
+//!   keeps working offline (`dist.rs`).
 //! - `cargo xtask fuzz [SECONDS]`: each cargo-fuzz target for a bounded time
 //!   (30 s by default; part of `test`).
 //! - `cargo xtask bench [--quick]`: the reference workloads natively, in
@@ -17,6 +19,7 @@
 //! (apt-get, as root), and the browser test's npm packages (npm ci).
 
 mod bench;
+mod dist;
 mod serve;
 
 use std::path::{Path, PathBuf};
@@ -34,6 +37,7 @@ fn main() -> ExitCode {
         Some("serve") => serve_cmd(&args[1..]),
         Some("test") => test_cmd(),
         Some("wasm") => build_wasm().map(|_| ()),
+        Some("dist") => dist::dist_cmd(&args[1..]),
         Some("bench") => bench::bench(args.iter().any(|a| a == "--quick")),
         Some("fuzz") => match args.get(1).map(|s| s.parse::<u32>()) {
             None => fuzz(30),
@@ -42,7 +46,7 @@ fn main() -> ExitCode {
         },
         _ => {
             eprintln!(
-                "usage: cargo xtask serve [--port N] | test | wasm | bench [--quick] | fuzz [SECONDS]"
+                "usage: cargo xtask serve [--port N] | test | wasm | dist DIR | bench [--quick] | fuzz [SECONDS]"
             );
             return ExitCode::from(2);
         }
@@ -331,10 +335,32 @@ fn browser_checks(www: PathBuf) -> Result<()> {
         std::fs::write(out.join(format!("{name}.results.json")), json)
             .map_err(|e| e.to_string())?;
     }
+    // The published site, at a sub-path of its own server, and a second
+    // build to publish over it.
+    let checks = root().join("target/dist-check");
+    let _ = std::fs::remove_dir_all(&checks);
+    let site = checks.join("root/team/burnin");
+    let next = checks.join("next");
+    std::fs::create_dir_all(site.parent().unwrap()).map_err(|e| e.to_string())?;
+    dist::write_dist(&site, None)?;
+    dist::write_dist(
+        &next,
+        Some("a second publish of the same page, for the update check"),
+    )?;
+    let version = output(Command::new(&cli).arg("--version")).ok_or("burnin --version failed")?;
+    let dist_server =
+        serve::Server::start(checks.join("root"), 0).map_err(|e| format!("cannot listen: {e}"))?;
     let server = serve::Server::start(www, 0).map_err(|e| format!("cannot listen: {e}"))?;
     let status = Command::new("node")
         .arg(dir.join("check.mjs"))
         .env("BURNIN_URL", server.url())
+        .env(
+            "BURNIN_DIST_URL",
+            format!("{}/team/burnin/", dist_server.url()),
+        )
+        .env("BURNIN_DIST_DIR", &site)
+        .env("BURNIN_DIST_NEXT", &next)
+        .env("BURNIN_VERSION", version.trim())
         .env("BURNIN_CHROMIUM", &chrome)
         .env("BURNIN_EXPECTED", expected)
         .env("BURNIN_OUT", &out)

@@ -18,7 +18,7 @@ use burnin::{Mdp, Problems};
 #[derive(Parser)]
 #[command(
     name = "burnin",
-    version,
+    version = burnin::BUILD,
     about = "Models, exact solutions and regret experiments for finite-horizon tabular MDPs"
 )]
 struct Cli {
