@@ -59,6 +59,21 @@ fn refused(d: &Scratch, base: &[Value], edit: impl FnOnce(&mut Vec<Value>), want
     assert!(stderr.contains(want), "wanted {want:?} in:\n{stderr}");
 }
 
+/// Edits every shard's embedded experiment from 60 episodes to 50, and
+/// makes its digest match the edited text when `redigest`.
+fn fewer_episodes(s: &mut [Value], redigest: bool) {
+    for x in s.iter_mut() {
+        let t = x["experiment"]
+            .as_str()
+            .unwrap()
+            .replace("\"episodes\": 60", "\"episodes\": 50");
+        if redigest {
+            x["digest"] = json!(burnin::experiment::text_digest(&t, x["model"].as_str()));
+        }
+        x["experiment"] = json!(t);
+    }
+}
+
 #[test]
 fn merge_refuses_every_inconsistent_shard() {
     let d = Scratch::new("merge-lies");
@@ -177,31 +192,14 @@ fn merge_refuses_every_inconsistent_shard() {
     refused(
         &d,
         &base,
-        |s| {
-            for x in s.iter_mut() {
-                let t = x["experiment"]
-                    .as_str()
-                    .unwrap()
-                    .replace("\"episodes\": 60", "\"episodes\": 50");
-                x["experiment"] = json!(t);
-            }
-        },
+        |s| fewer_episodes(s, false),
         "s1.json: its experiment or model text does not match the digest written with it",
     );
     // … and edited with the digest made to match: the records do not fit it.
     refused(
         &d,
         &base,
-        |s| {
-            for x in s.iter_mut() {
-                let t = x["experiment"]
-                    .as_str()
-                    .unwrap()
-                    .replace("\"episodes\": 60", "\"episodes\": 50");
-                x["digest"] = json!(burnin::experiment::text_digest(&t, x["model"].as_str()));
-                x["experiment"] = json!(t);
-            }
-        },
+        |s| fewer_episodes(s, true),
         "s1.json: records[0]: regret has 36 values; the experiment gives it 34",
     );
     // Written by a build that draws different numbers.
