@@ -6,11 +6,7 @@ use serde_json::json;
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-use common::{Scratch, burnin};
-
-fn p(path: &Path) -> &str {
-    path.to_str().unwrap()
-}
+use common::{Scratch, burnin, p};
 
 #[test]
 fn every_demo_model_validates_and_solves() {
@@ -327,8 +323,7 @@ fn broken_files_never_panic() {
 }
 
 fn experiment_file(d: &Scratch, learners: &str, episodes: u64) -> PathBuf {
-    let model = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/night-ferry.json");
-    std::fs::copy(&model, d.0.join("night-ferry.json")).unwrap();
+    d.demo("night-ferry.json", "night-ferry.json");
     d.file(
         "exp.json",
         &format!(
@@ -485,8 +480,7 @@ fn run_sweeps_a_generator_parameter() {
 #[test]
 fn merged_shards_equal_a_single_run() {
     let d = Scratch::new("shards");
-    let model = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/night-ferry.json");
-    std::fs::copy(&model, d.0.join("ferry.json")).unwrap();
+    d.demo("night-ferry.json", "ferry.json");
     let f = d.file(
         "exp.json",
         r#"{"format": "burnin-experiment", "version": 1, "model_path": "ferry.json",
@@ -589,8 +583,7 @@ fn every_bad_input_in_the_corpus_gets_its_message() {
 #[test]
 fn one_seed_is_not_an_interval() {
     let d = Scratch::new("run-one-seed");
-    let model = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/night-ferry.json");
-    std::fs::copy(&model, d.0.join("night-ferry.json")).unwrap();
+    d.demo("night-ferry.json", "night-ferry.json");
     let exp = |seeds: &str| {
         format!(
             r#"{{"format": "burnin-experiment", "version": 1, "model_path": "night-ferry.json",

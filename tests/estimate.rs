@@ -6,17 +6,13 @@
 
 mod common;
 
-use common::{Scratch, burnin};
+use common::{Scratch, burnin, p};
 use serde_json::Value;
 use std::sync::Mutex;
 use std::time::Instant;
 
 /// The tests of this binary take turns: a timed one shares the machine with nothing.
 static ALONE: Mutex<()> = Mutex::new(());
-
-fn p(path: &std::path::Path) -> &str {
-    path.to_str().unwrap()
-}
 
 /// The estimated and the measured seconds of running `file`.
 fn estimated_and_taken(file: &str) -> (f64, f64) {
@@ -35,9 +31,7 @@ fn estimated_and_taken(file: &str) -> (f64, f64) {
 fn the_estimate_is_within_a_factor_of_three_of_the_time_taken() {
     let _alone = ALONE.lock().unwrap_or_else(|e| e.into_inner());
     let d = Scratch::new("estimate");
-    let model =
-        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/pearl-reef.json");
-    std::fs::copy(&model, d.0.join("reef.json")).unwrap();
+    d.demo("pearl-reef.json", "reef.json");
     // Seven learners of costs three orders of magnitude apart, and a sweep
     // whose points differ in size (the estimate times the largest).
     let race = d.file(

@@ -8,15 +8,13 @@
 
 mod common;
 
-use common::{Scratch, burnin};
+use common::{Scratch, burnin, p};
 use serde_json::{Value, json};
 
 /// The four shards of a small experiment (two learners, three seeds, a
 /// model named by path), as JSON values.
 fn shards(d: &Scratch) -> Vec<Value> {
-    let model =
-        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/night-ferry.json");
-    std::fs::copy(&model, d.0.join("ferry.json")).unwrap();
+    d.demo("night-ferry.json", "ferry.json");
     let f = d.file(
         "exp.json",
         r#"{"format": "burnin-experiment", "version": 1, "model_path": "ferry.json",
@@ -30,10 +28,6 @@ fn shards(d: &Scratch) -> Vec<Value> {
             serde_json::from_str(&r.stdout).unwrap()
         })
         .collect()
-}
-
-fn p(path: &std::path::Path) -> &str {
-    path.to_str().unwrap()
 }
 
 /// Merges `shards` written to files s1.json…; (exit code, stderr).

@@ -100,6 +100,22 @@ impl Scratch {
         std::fs::write(&p, text).unwrap();
         p
     }
+
+    /// Copies the demo model `demo` (a file of demo-models/) into the
+    /// folder as `name`, for an experiment's `model_path`; its path.
+    pub fn demo(&self, demo: &str, name: &str) -> std::path::PathBuf {
+        let from = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("demo-models")
+            .join(demo);
+        let to = self.0.join(name);
+        std::fs::copy(&from, &to).unwrap();
+        to
+    }
+}
+
+/// A path as a command-line argument.
+pub fn p(path: &std::path::Path) -> &str {
+    path.to_str().unwrap()
 }
 
 impl Drop for Scratch {
