@@ -62,7 +62,9 @@ pub fn dist_cmd(args: &[String]) -> Result<()> {
         _ => return Err("usage: cargo xtask dist DIR [--note TEXT]".into()),
     };
     let dir = PathBuf::from(dir);
-    write_dist(&dir, note)?;
+    let www = build_wasm()?;
+    crate::run(crate::cargo().args(["build", "--bin", "burnin"]))?;
+    write_dist(&www, &dir, note)?;
     println!(
         "wrote the static site to {} (serve it with .wasm as application/wasm; README, \"Publishing the page\")",
         dir.display()
@@ -73,9 +75,9 @@ pub fn dist_cmd(args: &[String]) -> Result<()> {
 /// Writes the site into `dir`. `note` (`--note TEXT`; the browser checks'
 /// "a newer build is published") adds `publish-note.txt`, and so makes a
 /// distinct build of the same page.
-pub fn write_dist(dir: &Path, note: Option<&str>) -> Result<()> {
-    let www = build_wasm()?;
-    crate::run(crate::cargo().args(["build", "--bin", "burnin"]))?;
+/// `www` is the built page (`build_wasm`), and target/debug/burnin the
+/// CLI built from the same sources (it says the build identity).
+pub fn write_dist(www: &Path, dir: &Path, note: Option<&str>) -> Result<()> {
     step(&format!("writing the static site to {}", dir.display()));
     if dir.exists() {
         // Only a folder that is empty or an earlier dist is replaced.
@@ -94,7 +96,7 @@ pub fn write_dist(dir: &Path, note: Option<&str>) -> Result<()> {
     }
     std::fs::create_dir_all(dir).map_err(|e| e.to_string())?;
     let mut all = Vec::new();
-    files(&www, &www, &mut all)?;
+    files(www, www, &mut all)?;
     let mut list: Vec<String> = all.into_iter().filter(|f| published(f)).collect();
     let build = crate::output(
         std::process::Command::new(root().join("target/debug/burnin")).arg("--version"),

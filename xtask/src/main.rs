@@ -342,8 +342,9 @@ fn browser_checks(www: PathBuf) -> Result<()> {
     let site = checks.join("root/team/burnin");
     let next = checks.join("next");
     std::fs::create_dir_all(site.parent().unwrap()).map_err(|e| e.to_string())?;
-    dist::write_dist(&site, None)?;
+    dist::write_dist(&www, &site, None)?;
     dist::write_dist(
+        &www,
         &next,
         Some("a second publish of the same page, for the update check"),
     )?;

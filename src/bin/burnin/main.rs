@@ -623,11 +623,11 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
             }
             _ => {}
         }
-        if free_memory().is_some_and(|free| e.bytes > free) {
+        if let Some(free) = free_memory().filter(|&free| e.bytes > free) {
             return Err(Failure::Io(format!(
                 "this run is estimated to need {}, more than the {} of memory free; run it in shards (--shard) or with fewer seeds, or --no-budget to try anyway",
                 burnin::experiment::bytes_words(e.bytes),
-                burnin::experiment::bytes_words(free_memory().unwrap_or(0.0))
+                burnin::experiment::bytes_words(free)
             )));
         }
         if e.seconds >= 10.0 {
