@@ -22,6 +22,9 @@ pub struct Catalogue {
     pub glossary: &'static [Term],
     /// This build ([`crate::BUILD`]), as `burnin --version` prints it.
     pub build: &'static str,
+    /// The series colours (`#rrggbb`, [`crate::chart::colours::SERIES`]):
+    /// the page's transition graph colours actions with them.
+    pub palette: Vec<String>,
 }
 
 /// One entry of the glossary: the key a front end finds it by, how the
@@ -116,6 +119,10 @@ pub fn catalogue() -> Catalogue {
         sweep_keys: crate::experiment::experiment_sweep_keys(),
         glossary: GLOSSARY,
         build: crate::BUILD,
+        palette: crate::chart::colours::SERIES
+            .iter()
+            .map(|c| c.hex())
+            .collect(),
     }
 }
 

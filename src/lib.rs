@@ -2,7 +2,7 @@
 //! (`solve`), seeded generators (`generate`), online learners and their
 //! catalogue (`learn`), regret experiments with exact expected regret, their
 //! summaries and shards (`experiment`), statistics and published bounds
-//! (`stats`, `theory`), the file-format plumbing (`format`) and the reference
+//! (`stats`, `theory`), charts of results (`chart`), the file-format plumbing (`format`) and the reference
 //! benchmarks (`bench`). The CLI (`src/bin/burnin/main.rs`) and the wasm bindings
 //! (`wasm`, for the page) are front ends over it.
 //!
@@ -12,6 +12,7 @@
 
 pub mod bench;
 pub mod catalogue;
+pub mod chart;
 pub mod experiment;
 pub mod format;
 pub mod generate;

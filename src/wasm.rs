@@ -4,7 +4,7 @@
 //! **Invariant:** no logic lives here that a native test cannot reach; every
 //! function is a conversion around a core call.
 
-use js_sys::{Array, Float64Array, Object, Reflect, Uint32Array};
+use js_sys::{Float64Array, Object, Reflect, Uint32Array};
 use wasm_bindgen::prelude::*;
 
 use crate::model::{Mdp, Problems};
@@ -15,33 +15,55 @@ fn set(obj: &Object, key: &str, value: impl Into<JsValue>) {
 
 /// `{ok: false, problems: [{path, message}], unlisted}`.
 fn problems_value(p: &Problems) -> JsValue {
-    let obj = Object::new();
-    set(&obj, "ok", false);
-    let list = Array::new();
-    for pr in p.list() {
-        let o = Object::new();
-        set(&o, "path", pr.path.as_str());
-        set(&o, "message", pr.message.as_str());
-        list.push(&o);
+    #[derive(serde::Serialize)]
+    struct Item<'a> {
+        path: &'a str,
+        message: &'a str,
     }
-    set(&obj, "problems", list);
-    set(&obj, "unlisted", p.unlisted() as u32);
-    obj.into()
+    #[derive(serde::Serialize)]
+    struct Value<'a> {
+        ok: bool,
+        problems: Vec<Item<'a>>,
+        unlisted: usize,
+    }
+    to_js(&Value {
+        ok: false,
+        problems: p
+            .list()
+            .iter()
+            .map(|pr| Item {
+                path: &pr.path,
+                message: &pr.message,
+            })
+            .collect(),
+        unlisted: p.unlisted(),
+    })
 }
 
-fn summary(obj: &Object, m: &Mdp) {
-    set(obj, "ok", true);
-    set(obj, "name", m.name());
-    set(obj, "notes", m.notes().unwrap_or(""));
-    set(obj, "states", labels(m.states()));
-    set(obj, "actions", labels(m.actions()));
-    set(obj, "horizon", m.horizon() as u32);
-    set(obj, "stationary", m.is_stationary());
-    set(obj, "entries", m.entries() as u32);
+/// A model's summary as the page shows it.
+#[derive(serde::Serialize)]
+struct Summary<'a> {
+    ok: bool,
+    name: &'a str,
+    notes: &'a str,
+    states: &'a [String],
+    actions: &'a [String],
+    horizon: usize,
+    stationary: bool,
+    entries: usize,
 }
 
-fn labels(ls: &[String]) -> Array {
-    ls.iter().map(|s| JsValue::from_str(s)).collect()
+fn summary(m: &Mdp) -> JsValue {
+    to_js(&Summary {
+        ok: true,
+        name: m.name(),
+        notes: m.notes().unwrap_or(""),
+        states: m.states(),
+        actions: m.actions(),
+        horizon: m.horizon(),
+        stationary: m.is_stationary(),
+        entries: m.entries(),
+    })
 }
 
 /// Checks a model file's text: `{ok: true, name, states, actions, horizon,
@@ -49,11 +71,7 @@ fn labels(ls: &[String]) -> Array {
 #[wasm_bindgen(js_name = checkModel)]
 pub fn check_model(text: &str) -> JsValue {
     match crate::parse_model(text) {
-        Ok(m) => {
-            let obj = Object::new();
-            summary(&obj, &m);
-            obj.into()
-        }
+        Ok(m) => summary(&m),
         Err(p) => problems_value(&p),
     }
 }
@@ -88,8 +106,7 @@ pub fn solve_model(text: &str) -> JsValue {
         Err(p) => return problems_value(&p),
     };
     let sol = crate::solve::solve(&m);
-    let obj = Object::new();
-    summary(&obj, &m);
+    let obj: Object = summary(&m).unchecked_into();
     set(&obj, "optimal_value", sol.optimal_value);
     let h = m.horizon();
     let v = sol.v.slice(ndarray::s![..h, ..]);
@@ -437,6 +454,7 @@ pub fn read_document(text: &str) -> JsValue {
                 set(&obj, "cellsCsv", out.cells_csv());
                 set(&obj, "summaryCsv", out.summary_csv());
                 set(&obj, "seedsCsv", out.seeds_csv());
+                set(&obj, "chartText", crate::chart::chart_text(&out));
             }
             Err(p) => return problems_value(&p),
         },
@@ -499,6 +517,7 @@ pub fn merge_shards(shards: Vec<String>) -> JsValue {
             set(&obj, "cellsCsv", out.cells_csv());
             set(&obj, "summaryCsv", out.summary_csv());
             set(&obj, "seedsCsv", out.seeds_csv());
+            set(&obj, "chartText", crate::chart::chart_text(&out));
             obj.into()
         }
         Err(p) => problems_value(&p),
@@ -540,4 +559,133 @@ pub fn bench_figures(quick: bool, only: Option<String>, no_learners: bool) -> St
         no_learners,
     };
     crate::bench::report("wasm", &now_seconds, &|| Some(heap_bytes().into()), sel)
+}
+
+/// The chart of one results file, kept on the page's thread, where its
+/// canvases are: drawn by the core (`chart`) through plotters-canvas.
+/// Holds the chart data ([`crate::chart::chart_text`], from the worker) and
+/// the last drawing's layout for the hover read-out.
+#[wasm_bindgen]
+pub struct ResultsChart {
+    out: crate::experiment::Output,
+    drawn: Option<(crate::chart::Figure, crate::chart::layout::Layout)>,
+}
+
+/// Chart options from the page's controls (see `chart::Options`).
+fn chart_options(options: JsValue) -> Result<crate::chart::Options, JsValue> {
+    serde_wasm_bindgen::from_value(options)
+        .map_err(|e| JsValue::from_str(&format!("chart options: {e}")))
+}
+
+#[wasm_bindgen]
+impl ResultsChart {
+    /// Reads chart data (`chartText` of a results document or a merge).
+    #[wasm_bindgen(constructor)]
+    pub fn new(text: &str) -> Result<ResultsChart, JsValue> {
+        let out = crate::chart::read_chart_text(text).map_err(|e| JsValue::from_str(&e))?;
+        Ok(ResultsChart { out, drawn: None })
+    }
+
+    /// The views these results have: `[{key, label}]`, the default first.
+    pub fn views(&self) -> JsValue {
+        #[derive(serde::Serialize)]
+        struct ViewItem {
+            key: &'static str,
+            label: String,
+        }
+        let list: Vec<ViewItem> = crate::chart::views(&self.out)
+            .into_iter()
+            .map(|(v, label)| ViewItem {
+                key: v.key(),
+                label,
+            })
+            .collect();
+        to_js(&list)
+    }
+
+    /// Draws the chart into `canvas` at its pixel size, type and lines
+    /// enlarged by `scale` (the device pixel ratio times any presentation
+    /// scale). `{ok: true, series}` or `{ok: false, message}` when the view
+    /// cannot be drawn (the canvas then says why).
+    pub fn draw(
+        &mut self,
+        canvas: web_sys::HtmlCanvasElement,
+        options: JsValue,
+        scale: f64,
+    ) -> Result<JsValue, JsValue> {
+        use crate::chart::{
+            Figure,
+            draw::{TypeSizes, draw},
+        };
+        use plotters::prelude::IntoDrawingArea;
+        let opts = chart_options(options)?;
+        let (fig, ok) = match crate::chart::figure(&self.out, &opts) {
+            Ok(f) => (f, Ok(())),
+            Err(m) => (Figure::message(&m), Err(m)),
+        };
+        let backend = plotters_canvas::CanvasBackend::with_canvas_object(canvas)
+            .ok_or_else(|| JsValue::from_str("the canvas has no 2D context"))?;
+        let area = backend.into_drawing_area();
+        let layout = draw(&area, &fig, scale, TypeSizes::EM).map_err(|e| JsValue::from_str(&e))?;
+        area.present()
+            .map_err(|e| JsValue::from_str(&e.to_string()))?;
+        let obj = Object::new();
+        match ok {
+            Ok(()) => {
+                set(&obj, "ok", true);
+                set(&obj, "series", fig.series.len() as u32);
+            }
+            Err(m) => {
+                set(&obj, "ok", false);
+                set(&obj, "message", m);
+            }
+        }
+        self.drawn = Some((fig, layout));
+        Ok(obj.into())
+    }
+
+    /// The hover read-out at canvas pixel (`x`, `y`) of the last drawing:
+    /// `{index, x, px, lines}`, or null outside the plot.
+    pub fn readout(&self, x: f64, y: f64) -> JsValue {
+        match &self.drawn {
+            Some((fig, layout)) => layout
+                .readout(fig, x, y)
+                .map_or(JsValue::NULL, |r| to_js(&r)),
+            None => JsValue::NULL,
+        }
+    }
+
+    /// The chart as SVG, `width`×`height` pixels (what `burnin plot` writes
+    /// for the same results and options).
+    pub fn svg(
+        &self,
+        options: JsValue,
+        width: u32,
+        height: u32,
+        scale: f64,
+    ) -> Result<String, JsValue> {
+        let opts = chart_options(options)?;
+        crate::chart::svg(&self.out, &opts, width, height, scale).map_err(|e| JsValue::from_str(&e))
+    }
+
+    /// The words under the chart.
+    pub fn caption(&self, options: JsValue) -> Result<String, JsValue> {
+        Ok(crate::chart::caption(&self.out, &chart_options(options)?))
+    }
+}
+
+/// The charts' typeface (its bytes, for the page's FontFace), so the canvas
+/// draws with the glyphs the layout measured.
+#[wasm_bindgen(js_name = chartFont)]
+pub fn chart_font() -> js_sys::Uint8Array {
+    js_sys::Uint8Array::from(crate::chart::layout::FONT)
+}
+
+/// A fresh base seed from the browser's Crypto.getRandomValues (through
+/// getrandom), for the page's "New seed"; the page writes it into the
+/// experiment.
+#[wasm_bindgen(js_name = freshSeed)]
+pub fn fresh_seed() -> Result<f64, JsValue> {
+    let bits = getrandom::u64().map_err(|e| JsValue::from_str(&format!("no random bits: {e}")))?;
+    Ok(crate::experiment::fresh_seed(bits) as f64)
 }

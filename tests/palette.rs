@@ -1,5 +1,5 @@
-//! The series palette (`PALETTE` in www/chart.js, used by the charts, the
-//! graph and every export) is our own, legible on the page's card colour and
+//! The series palette (`burnin::chart::colours::SERIES`, used by the charts,
+//! the graph and every export) is our own, legible on the page's card colour and
 //! distinguishable for colour-blind readers.
 //!
 //! Checks:
@@ -18,13 +18,17 @@
 
 const CARD: [u8; 3] = [0xff, 0xfd, 0xf8];
 
+#[test]
+fn the_card_is_the_charts_background() {
+    let b = burnin::chart::colours::BACKGROUND;
+    assert_eq!([b.0, b.1, b.2], CARD);
+}
+
 fn palette() -> Vec<[u8; 3]> {
-    let js = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/www/chart.js")).unwrap();
-    let line = js
-        .lines()
-        .find(|l| l.starts_with("export const PALETTE = ["))
-        .expect("PALETTE in www/chart.js");
-    line.split('\'').skip(1).step_by(2).map(hex).collect()
+    burnin::chart::colours::SERIES
+        .iter()
+        .map(|c| [c.0, c.1, c.2])
+        .collect()
 }
 
 fn hex(h: &str) -> [u8; 3] {

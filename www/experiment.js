@@ -5,7 +5,7 @@ import { runExperiment, checkGuest, checkExperiment, estimateRun } from './compu
 import * as store from './store.js';
 import { timeLeft } from './eta.js';
 import { el, download, safeName } from './dom.js';
-import { drawChart, CanvasPen, SvgPen, PALETTE, nearestIndex } from './chart.js';
+import { openChart, drawInto, EXPORT } from './charts.js';
 import { short, grouped, valueColour, inkOn } from './format.js';
 import { sweepableParams } from './generator-form.js';
 
@@ -43,6 +43,15 @@ function burnInText(l) {
   return iv ? `${k(l.burn_in)} [${k(iv[0])}, ${k(iv[1])}]` : k(l.burn_in);
 }
 
+/**
+ * Results as the view keeps them, from the core's reading of a results
+ * file or a merge ({json, csv, cellsCsv, summaryCsv, seedsCsv, chartText}),
+ * with the experiment file that made them (or null).
+ */
+export const resultsOf = (doc, experiment = null) => ({
+  text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, chartText: doc.chartText, experiment,
+});
+
 /** Whether results (or sweep results) ran one seed per learner. */
 const oneSeed = (d) => (d.format === 'burnin-sweep' ? d.points[0].seeds : d.seeds) < 2;
 
@@ -63,7 +72,7 @@ export class ExperimentView {
     this.algorithms = new Map(catalogue.algorithms.map((a) => [a.key, a]));
     this.results = null;
     this.running = null;
-    this.layout = null;
+    this.chart = null;
     this.rows = $('learner-rows');
     $('add-learner').addEventListener('click', () => { this.addRow({ use: true, algorithm: 'mvp', value: 1, label: '' }); hooks.changed(); });
     /** The user's learners loaded in this page: name → {source, file}. Never saved unless kept. */
@@ -499,7 +508,7 @@ export class ExperimentView {
         this.showProblems(r, file.rows);
       } else {
         const secs = (performance.now() - t0) / 1000;
-        this.setResults({ text: r.json, csv: r.csv, cellsCsv: r.cellsCsv, summaryCsv: r.summaryCsv, seedsCsv: r.seedsCsv, experiment: file.text });
+        this.setResults(resultsOf(r, file.text));
         /** Whether these results are saved somewhere (library or a file): only then may opening another model clear them unasked. */
         this.resultsKept = false;
         $('exp-status').textContent = `Done in ${secs.toFixed(1)} s on ${job.workers} worker${job.workers === 1 ? '' : 's'}.`;
@@ -539,13 +548,6 @@ export class ExperimentView {
     const data = JSON.parse(r.text);
     this.results = { ...r, data, csv: r.csv || '' };
     const sweep = data.format === 'burnin-sweep';
-    const view = $('chart-view');
-    view.replaceChildren();
-    if (sweep) view.append(el('option', `regret at K against ${data.parameter}`, { value: 'sweep' }));
-    else {
-      view.append(el('option', 'cumulative regret', { value: 'cumulative' }), el('option', 'per-episode regret', { value: 'episode' }));
-      if (data.comparisons?.length) view.append(el('option', 'paired difference A − B', { value: 'difference' }));
-    }
     $('compare-section').hidden = sweep || !data.comparisons?.length;
     if (!sweep) {
       for (const [id, pick] of [['cmp-a', 0], ['cmp-b', 1]]) {
@@ -574,7 +576,7 @@ export class ExperimentView {
     heatSel.replaceChildren();
     $('heat-section').hidden = sweep;
     if (!sweep) data.learners.forEach((l, i) => heatSel.append(el('option', l.label, { value: String(i) })));
-    this.draw();
+    this.openChart(this.results);
     this.drawTable();
     this.drawHeat();
     this.renderGlossary();
@@ -603,110 +605,71 @@ export class ExperimentView {
 
   clearResults() {
     this.results = null;
+    this.chart?.free();
+    this.chart = null;
     $('results').hidden = true;
   }
 
-  spec(d = this.results.data) {
-    const log = document.querySelector('input[name=axes]:checked').value === 'log';
-    // One seed has no interval: no band is drawn (a zero-width one would read as certainty).
-    const bands = $('show-bands').checked && !oneSeed(d);
-    const view = $('chart-view').value;
-    const series = [];
-    if (view === 'sweep') {
-      d.learners.forEach((l, i) => series.push({ label: l.label, color: PALETTE[i % PALETTE.length], x: d.values, y: l.regret_mean, lo: bands ? l.regret_lo : null, hi: bands ? l.regret_hi : null }));
-      return { title: `Regret at K = ${grouped(d.points[0].episodes)} against ${d.parameter}`, xLabel: d.parameter, yLabel: 'regret at K', log, bars: true, series };
+  /**
+   * Loads the chart of results `r` (drawn by the core on this thread) and
+   * fills the view choices from it; results replaced meanwhile win.
+   */
+  async openChart(r) {
+    this.chart?.free();
+    this.chart = null;
+    $('chart').dataset.series = '0';
+    let chart;
+    try {
+      chart = await openChart(r.chartText);
+    } catch (err) {
+      $('chart-caption').textContent = `These results cannot be charted: ${err?.message || err}`;
+      return;
     }
-    if (view === 'difference') {
-      const found = this.comparison();
-      const first = d.learners[0].checkpoints;
-      if (!found) return { title: 'Paired difference: choose two compared learners', xLabel: 'episode k', yLabel: 'regret difference', log: false, series: [] };
-      const { c, sign } = found;
-      const [a, b] = sign > 0 ? [c.a, c.b] : [c.b, c.a];
-      const flip = (xs) => xs.map((x) => sign * x);
-      const [lo, hi] = sign > 0 ? [c.difference_lo, c.difference_hi] : [flip(c.difference_hi), flip(c.difference_lo)];
-      series.push({ label: `${a} − ${b}`, color: PALETTE[0], x: first, y: flip(c.difference_mean), lo: bands ? lo : null, hi: bands ? hi : null });
-      series.push({ label: 'no difference', color: '#5d676b', x: first, y: first.map(() => 0), dash: [2, 3], width: 1 });
-      return { title: `Paired difference in cumulative regret — ${a} minus ${b} (${d.seeds} seeds)`, xLabel: 'episode k', yLabel: 'regret(A) − regret(B)', log: false, series };
-    }
-    const episode = view === 'episode';
-    d.learners.forEach((l, i) => {
-      const color = PALETTE[i % PALETTE.length];
-      series.push({
-        label: l.label, color, x: l.checkpoints,
-        y: episode ? l.episode_regret_mean : l.regret_mean,
-        lo: bands && !episode ? l.regret_lo : null, hi: bands && !episode ? l.regret_hi : null,
-      });
-      if (!episode && $('show-bounds').checked && l.bound) {
-        // A bound that does not apply (scaled bonus) is drawn sparser and says so in the legend.
-        const applies = l.bound.applies !== false;
-        series.push({ label: applies ? `${l.label}: published bound` : `${l.label}: bound, does not apply (bonus scaled)`, color, x: l.checkpoints, y: l.bound.values, dash: applies ? [7, 4] : [2, 7], width: 1.2, legend: !applies });
-      }
-      // Burn-in: a short tick on the curve where its slope settles.
-      if (!episode && l.burn_in !== null && l.burn_in !== undefined) {
-        const k = l.checkpoints;
-        let j = 0;
-        for (let i = 1; i < k.length; i++) if (Math.abs(k[i] - l.burn_in) < Math.abs(k[j] - l.burn_in)) j = i;
-        const y = l.regret_mean[j];
-        const top = Math.max(...l.regret_mean);
-        const [lo, hi] = log ? [y / 1.35, y * 1.35] : [y - 0.04 * top, y + 0.04 * top];
-        series.push({ label: `${l.label}: burn-in`, color, x: [l.burn_in, l.burn_in], y: [lo, hi], width: 3, legend: false });
-      }
-      // Where MVP's bonus falls below H whatever the data (even visits): a vertical mark.
-      const mark = l.bound?.bonus_below_h;
-      if (!episode && mark && mark <= l.checkpoints[l.checkpoints.length - 1]) {
-        const top = Math.max(...l.regret_hi);
-        const bottom = log ? Math.max(1e-9, Math.min(...l.regret_mean.filter((y) => y > 0))) : 0;
-        series.push({ label: `${l.label}: bonus < H from K ≈ ${grouped(mark)}`, color, x: [mark, mark], y: [bottom, top], dash: [1, 3], width: 1.5 });
-      }
-    });
-    if (!episode && d.learners.some((l) => l.burn_in !== null && l.burn_in !== undefined)) {
-      series.push({ label: 'thick tick: burn-in (the slope settles)', color: '#5d676b', x: [], y: [], width: 3 });
-    }
-    if (!episode && $('show-bounds').checked && d.learners.some((l) => l.bound && l.bound.applies !== false)) {
-      // One legend entry says what every dashed line in a learner's colour is.
-      series.push({ label: 'dashed: published bound (learner\u2019s colour)', color: '#5d676b', x: [], y: [], dash: [7, 4], width: 1.2 });
-    }
-    if (!episode && $('show-lower').checked) {
-      series.push({ label: 'lower-bound shape √(SAH³K)', color: '#5d676b', x: d.learners[0].checkpoints, y: d.lower_bound.values, dash: [2, 3], width: 1.5 });
-    }
-    const title = `${episode ? 'Regret per episode' : 'Cumulative regret'} — ${d.model_name} (S=${d.states}, A=${d.actions}, H=${d.horizon}, ${d.seeds} seeds)`;
-    return { title, xLabel: 'episode k', yLabel: episode ? 'expected regret of episode k' : 'cumulative expected regret', log, series };
+    if (this.results !== r) { chart.free(); return; }
+    this.chart = chart;
+    const view = $('chart-view');
+    const was = view.value;
+    view.replaceChildren(...chart.views().map((v) => el('option', v.label, { value: v.key })));
+    if ([...view.options].some((o) => o.value === was)) view.value = was;
+    this.draw();
   }
 
-  caption() {
-    const d = this.results.data;
-    const bounds = $('show-bounds').checked ? ' Dashed: each learner\u2019s published bound as an order (constants and log factors dropped); sparsely dashed where it does not apply because the learner\u2019s bonus is scaled.' : '';
-    const lower = $('show-lower').checked ? ' Dotted: the minimax lower-bound shape.' : '';
-    const bands = !$('show-bands').checked ? '' : oneSeed(d) ? ' One seed per learner: no interval can be shown.' : ' Shaded: 95% Student-t intervals across seeds.';
-    return `${d.name || 'Experiment'}.${bands}${bounds}${lower}`;
+  /** The chart options of the page's controls (see chart::Options in the core). */
+  chartOptions(caption) {
+    const view = $('chart-view').value || null;
+    return {
+      view,
+      log: document.querySelector('input[name=axes]:checked').value === 'log',
+      bands: $('show-bands').checked,
+      lower: $('show-lower').checked,
+      bounds: $('show-bounds').checked,
+      compare: view === 'difference' ? [$('cmp-a').value, $('cmp-b').value] : null,
+      caption,
+    };
   }
 
   draw() {
-    if (!this.results) return;
+    if (!this.chart) return;
     const canvas = $('chart');
     const w = Math.max(320, canvas.parentElement.clientWidth || 800);
     const h = Math.round(Math.min(520, Math.max(300, w * 0.5)));
-    this.layout = drawChart(new CanvasPen(canvas, w, h), w, h, this.spec());
-    canvas.dataset.series = String(this.layout.series.length);
-    $('chart-caption').textContent = this.caption();
+    const r = drawInto(this.chart, canvas, this.chartOptions(false), w, h);
+    this.ratio = r.ratio;
+    canvas.dataset.series = String(r.ok ? r.series : 0);
+    $('chart-caption').textContent = this.chart.caption(this.chartOptions(true));
   }
 
   hover(e) {
     const tip = $('chart-tip');
-    if (!this.layout) return;
+    if (!this.chart) return;
     const rect = e.target.getBoundingClientRect();
     const px = e.clientX - rect.left, py = e.clientY - rect.top;
-    const i = nearestIndex(this.layout, px, py);
-    if (i < 0) { tip.hidden = true; return; }
-    const sweep = $('chart-view').value === 'sweep';
-    const lines = [`${sweep ? this.results.data.parameter : 'k'} = ${sweep ? Number(this.layout.xs[i].toPrecision(4)) : grouped(this.layout.xs[i])}`];
-    // Curves only: markers (burn-in ticks, bonus marks, legend-only entries) have no value at k.
-    for (const s of this.layout.series.filter((x) => x.x.length === this.layout.xs.length)) {
-      lines.push(`${s.label}: ${short(s.y[i])}${s.lo && s.hi ? ` [${short(s.lo[i])}, ${short(s.hi[i])}]` : ''}`);
-    }
-    tip.textContent = lines.join('\n');
+    // The core's own data↔pixel mapping of the drawing, in canvas pixels.
+    const r = this.chart.readout(px * this.ratio, py * this.ratio);
+    if (!r) { tip.hidden = true; return; }
+    tip.textContent = r.lines.join('\n');
     tip.hidden = false;
-    const x = this.layout.sx(this.layout.xs[i]);
+    const x = r.px / this.ratio;
     tip.style.left = `${Math.min(x + 12, rect.width - tip.offsetWidth - 4)}px`;
     tip.style.top = `${Math.max(4, py - tip.offsetHeight - 10)}px`;
   }
@@ -819,25 +782,25 @@ export class ExperimentView {
     $('heat-wrap').replaceChildren(table);
   }
 
+  /** The PNG export: the core's chart drawn on a canvas of the export size. */
   exportPng() {
+    if (!this.chart) return;
     const c = document.createElement('canvas');
-    const [w, h] = [1280, 720];
-    drawChart(new CanvasPen(c, w, h), w, h, { ...this.spec(), caption: this.caption() }, 1.25);
+    c.width = EXPORT.width;
+    c.height = EXPORT.height;
+    this.chart.draw(c, this.chartOptions(true), EXPORT.scale);
     c.toBlob((b) => download(`${this.fileBase()}-chart.png`, b, 'image/png'), 'image/png');
   }
 
-  svgText() {
-    const [w, h] = [1280, 720];
-    const pen = new SvgPen(w, h);
-    drawChart(pen, w, h, { ...this.spec(), caption: this.caption() }, 1.25);
-    return pen.toString();
-  }
+  /** The SVG export: what `burnin plot --output x.svg` writes for the same results and options. */
+  svgText() { return this.chart.svg(this.chartOptions(true), EXPORT.width, EXPORT.height, EXPORT.scale); }
 
-  exportSvg() { download(`${this.fileBase()}-chart.svg`, this.svgText(), 'image/svg+xml'); }
+  exportSvg() { if (this.chart) download(`${this.fileBase()}-chart.svg`, this.svgText(), 'image/svg+xml'); }
 
   present() {
+    if (!this.chart) return;
     // A caption the user wrote is kept for these results until new ones come.
-    $('present-caption').value = this.presentCaption ?? this.caption();
+    $('present-caption').value = this.presentCaption ?? this.chart.caption(this.chartOptions(true));
     $('presenter').hidden = false;
     this.drawPresent();
     $('present-close').focus();
@@ -849,8 +812,7 @@ export class ExperimentView {
     // the chart never covers Close on a small screen.
     const bar = document.querySelector('#presenter .presenter-bar');
     const w = window.innerWidth, h = Math.max(160, window.innerHeight - bar.offsetHeight);
-    const spec = { ...this.spec(), title: this.spec().title };
-    drawChart(new CanvasPen(c, w, h), w, h, spec, Math.max(1.4, w / 900));
+    drawInto(this.chart, c, this.chartOptions(false), w, h, Math.max(1.4, w / 900));
   }
 
   closePresent() {

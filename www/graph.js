@@ -1,7 +1,6 @@
 // The transition graph: states as nodes, the chosen step's transitions as
 // arrows (width by probability, colour by action), nodes draggable (or moved
 // with the arrow keys) with their positions kept in the model's layout.
-import { PALETTE } from './chart.js';
 
 const NS = 'http://www.w3.org/2000/svg';
 const W = 1000, H = 520, M = 60, R = 16;
@@ -21,6 +20,8 @@ export class GraphView {
   constructor(onLayout) {
     this.onLayout = onLayout;
     this.doc = null;
+    /** Action colours: the core's series palette (set from the catalogue at start). */
+    this.palette = ['#5d676b'];
     $('graph-step').addEventListener('input', () => { $('graph-step-shown').textContent = $('graph-step').value; this.render(); });
     $('graph-policy').addEventListener('change', () => this.render());
   }
@@ -73,7 +74,7 @@ export class GraphView {
     const defs = svg('defs');
     for (let a = 0; a < A; a++) {
       const m = svg('marker', { id: `arrow${a}`, viewBox: '0 0 10 10', refX: 9, refY: 5, markerWidth: 11, markerHeight: 11, markerUnits: 'userSpaceOnUse', orient: 'auto' });
-      m.append(svg('path', { d: 'M0,0 L10,5 L0,10 z', fill: PALETTE[a % PALETTE.length] }));
+      m.append(svg('path', { d: 'M0,0 L10,5 L0,10 z', fill: this.palette[a % this.palette.length] }));
       defs.append(m);
     }
     root.append(defs);
@@ -85,7 +86,7 @@ export class GraphView {
         for (const [t, prob] of step.transitions[s][a]) {
           if (!(prob > 0)) continue;
           const q = f.to(this.positions[t]);
-          const colour = PALETTE[a % PALETTE.length];
+          const colour = this.palette[a % this.palette.length];
           const width = (1 + 5 * prob) * (on && policy ? 1.4 : 1);
           const attrs = { fill: 'none', stroke: colour, 'stroke-width': width, opacity: on ? 0.8 : 0.1, 'marker-end': `url(#arrow${a})`, 'data-edge': `${s}-${a}-${t}` };
           let dPath;
@@ -131,7 +132,7 @@ export class GraphView {
       const li = document.createElement('li');
       const sw = document.createElement('span');
       sw.className = 'swatch';
-      sw.style.background = PALETTE[a % PALETTE.length];
+      sw.style.background = this.palette[a % this.palette.length];
       const label = document.createElement('span');
       label.textContent = name;
       li.append(sw, label);

@@ -2,7 +2,7 @@
 // views, files, share links and the library together.
 import { solve, qStep, generate, warmPool, onWorkerRestart, catalogue, readDocument, withLayout } from './compute.js';
 import { renderFacts, renderProblems, renderOptimal, renderValues, renderQ } from './views.js';
-import { ExperimentView, DEFAULT_SETUP } from './experiment.js';
+import { ExperimentView, DEFAULT_SETUP, resultsOf } from './experiment.js';
 import { initGeneratorForm } from './generator-form.js';
 import { Editor } from './editor.js';
 import { GraphView } from './graph.js';
@@ -165,7 +165,7 @@ async function openText(text, label) {
   }
   if (doc.kind === 'results') {
     try {
-      experiment.setResults({ text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, experiment: null });
+      experiment.setResults(resultsOf(doc));
       showTab('experiment');
       notice(`Showing results from ${label}.`);
     } catch (err) {
@@ -289,7 +289,7 @@ async function openEntry(id) {
       if (doc.ok && doc.kind === 'experiment') experiment.applySetup(setupFromSummary(doc.experiment));
     }
     const results = e.results ? await readDocument(e.results) : null;
-    if (results?.ok && results.kind === 'results') { experiment.setResults({ text: results.json, csv: results.csv, cellsCsv: results.cellsCsv, summaryCsv: results.summaryCsv, seedsCsv: results.seedsCsv, experiment: e.experiment }); showTab('experiment'); } else showTab('solution');
+    if (results?.ok && results.kind === 'results') { experiment.setResults(resultsOf(results, e.experiment)); showTab('experiment'); } else showTab('solution');
     saveWork();
   }
 }
@@ -391,6 +391,7 @@ const experimentHooks = {
 async function start() {
   CATALOGUE = await catalogue();
   $('build-id').textContent = `Burnin ${CATALOGUE.build}`;
+  graph.palette = CATALOGUE.palette;
   experiment = new ExperimentView(experimentHooks, CATALOGUE);
   $('optimal-value-term').title = experiment.meaning('optimal_value');
   const index = await (await fetch('demo-models/index.json')).json();
@@ -478,7 +479,7 @@ async function start() {
       if (saved.results) {
         // The CSVs are the core's to write: read the saved results again.
         const doc = await readDocument(saved.results.text);
-        experiment.setResults(doc.ok && doc.kind === 'results' ? { ...saved.results, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv } : saved.results);
+        if (doc.ok && doc.kind === 'results') experiment.setResults(resultsOf(doc, saved.results.experiment));
       }
     }
     if (shown !== false) return;

@@ -62,6 +62,17 @@ pub fn run_seed(base: u64, learner: usize, seed: u64) -> u64 {
         & ((1 << 53) - 1)
 }
 
+/// The largest seed [`fresh_seed`] gives (nine digits: easy to read out and
+/// type back).
+pub const FRESH_SEED_MAX: u64 = 999_999_999;
+
+/// A base seed in 1..=[`FRESH_SEED_MAX`] from 64 random bits that a front
+/// end drew from the system's entropy (`burnin run --new-seed`, the page's
+/// "New seed"): the core itself never draws an unseeded number.
+pub fn fresh_seed(bits: u64) -> u64 {
+    1 + bits % FRESH_SEED_MAX
+}
+
 /// Relative tolerance below which an episode's regret counts as zero.
 pub const REGRET_TOLERANCE: f64 = 1e-12;
 

@@ -324,6 +324,79 @@ await check('charts and results export as PNG, SVG, JSON and CSV, and results re
   assertEqual(shown[2], ferryCli.learners[2].regret_mean.at(-1), 're-opened results');
 });
 
+await check('the chart is the core\'s: the page\'s SVG equals `burnin plot`\'s, the canvas shows every series, and the hover reads the drawing', async (page) => {
+  await openPage(page);
+  const file = 'ferry-experiment.json.results.json';
+  await upload(page, file, readFileSync(join(out, file), 'utf8'));
+  await page.waitForSelector('#results:not([hidden])');
+  await page.waitForFunction(() => Number(document.getElementById('chart').dataset.series) > 0);
+  const cli = (suffix) => readFileSync(join(out, `ferry-experiment.json.${suffix}.svg`), 'utf8');
+  // The same results, options and size: the same bytes.
+  assertEqual((await downloadText(page, '#export-svg')).text, cli('chart'), 'default view: page SVG = burnin plot');
+  await page.check('input[name=axes][value=log]');
+  await page.check('#show-lower');
+  await page.check('#show-bounds');
+  assertEqual((await downloadText(page, '#export-svg')).text, cli('chart-log'), 'log-log with bounds: page SVG = burnin plot --log --lower --bounds');
+  await page.check('input[name=axes][value=linear]');
+  await page.selectOption('#chart-view', 'difference');
+  assertEqual((await downloadText(page, '#export-svg')).text, cli('chart-difference'), 'difference: page SVG = burnin plot --view difference');
+  // Pixel checks: each learner's colour (the core's palette) is drawn on
+  // the canvas, in the plot and in the legend; with the bands off no
+  // band tint is left.
+  await page.selectOption('#chart-view', 'cumulative');
+  const palette = await page.evaluate(async () => (await (await import('./compute.js')).catalogue()).palette);
+  const count = (colours, tol) => page.evaluate(([cs, t]) => {
+    const c = document.getElementById('chart');
+    const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
+    const rgb = cs.map((h) => [1, 3, 5].map((i) => parseInt(h.slice(i, i + 2), 16)));
+    const n = rgb.map(() => 0);
+    for (let i = 0; i < d.length; i += 4) {
+      rgb.forEach((q, k) => { if (Math.abs(d[i] - q[0]) <= t && Math.abs(d[i + 1] - q[1]) <= t && Math.abs(d[i + 2] - q[2]) <= t) n[k]++; });
+    }
+    return n;
+  }, [colours, tol]);
+  const learners = ferryCli.learners.length;
+  const drawn = await count(palette.slice(0, learners), 2);
+  drawn.forEach((n, i) => assert(n >= 40, `${ferryCli.learners[i].label}: ${n} pixels of its colour ${palette[i]}`));
+  assertEqual((await count(palette.slice(learners), 2)).reduce((a, b) => a + b, 0), 0, 'no colour of a learner the results do not have');
+  // A band is the learner's colour at 16% over the card (#fffdf8).
+  const tint = (h) => '#' + [1, 3, 5].map((i) => { const c = parseInt(h.slice(i, i + 2), 16), bg = parseInt('fffdf8'.slice(i - 1, i + 1), 16); return Math.round(bg + 0.16 * (c - bg)).toString(16).padStart(2, '0'); }).join('');
+  const width = (l) => l.regret_hi.reduce((a, h, i) => a + h - l.regret_lo[i], 0);
+  const widest = ferryCli.learners.reduce((b, l, i) => (width(l) > width(ferryCli.learners[b]) ? i : b), 0);
+  const bandPixels = async () => (await count([tint(palette[widest])], 3))[0];
+  const withBands = await bandPixels();
+  assert(withBands > 500, `${ferryCli.learners[widest].label}'s band is drawn (${withBands} pixels)`);
+  await page.uncheck('#show-bands');
+  assert(await bandPixels() < withBands / 10, 'with the bands off their tint is gone');
+  await page.check('#show-bands');
+  // The hover read-out comes from the core's mapping of this drawing: at
+  // the pixel column of a checkpoint it names that checkpoint.
+  const box = await page.locator('#chart').boundingBox();
+  const ks = ferryCli.learners[0].checkpoints;
+  await page.mouse.move(box.x + box.width * 0.5, box.y + box.height * 0.5);
+  await page.waitForSelector('#chart-tip:not([hidden])');
+  const tip = await page.locator('#chart-tip').textContent();
+  const k = Number(/^k = ([\d,]+)/.exec(tip)[1].replace(/,/g, ''));
+  assert(ks.includes(k), `the read-out names a checkpoint (${k})`);
+  const l0 = ferryCli.learners[0];
+  const at = ks.indexOf(k);
+  assert(tip.includes(`${l0.label}: `), `the read-out names ${l0.label}`);
+  const value = Number(new RegExp(`${l0.label.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}: ([\\d.]+)`).exec(tip)[1]);
+  assert(Math.abs(value - l0.regret_mean[at]) <= 0.051 + 0.005 * l0.regret_mean[at], `read-out value ${value} is the curve's ${l0.regret_mean[at]}`);
+});
+
+await check('results from an earlier build still open, chart and plot', async (page) => {
+  await openPage(page);
+  const old = readFileSync(join(fixtures, 'results-from-an-earlier-build.json'), 'utf8');
+  await upload(page, 'results-from-an-earlier-build.json', old);
+  await page.waitForSelector('#results:not([hidden])');
+  await page.waitForFunction(() => Number(document.getElementById('chart').dataset.series) > 0);
+  const views = await page.locator('#chart-view option').evaluateAll((os) => os.map((o) => o.value));
+  assertEqual(views.join(','), 'cumulative,episode', 'no comparisons in the old file: no difference view');
+  const svg = (await downloadText(page, '#export-svg')).text;
+  assertEqual(svg, readFileSync(join(out, 'results-from-an-earlier-build.chart.svg'), 'utf8'), 'page SVG = burnin plot of the old file');
+});
+
 await check('a model file saved from the page opens again the same', async (page) => {
   await openPage(page);
   await page.selectOption('#demo-select', 'pearl-reef.json');

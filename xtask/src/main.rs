@@ -282,6 +282,15 @@ pub(crate) fn browser_dir() -> Result<PathBuf> {
     Ok(dir)
 }
 
+/// The figures `burnin plot` draws of the ferry fixture's results for the
+/// browser checks: file suffix and options (the page's controls set the
+/// same way must export the same SVG).
+const FIGURES: &[(&str, &[&str])] = &[
+    ("chart", &[]),
+    ("chart-log", &["--log", "--lower", "--bounds"]),
+    ("chart-difference", &["--view", "difference"]),
+];
+
 fn browser_checks(www: PathBuf) -> Result<()> {
     let chrome = chromium()?;
     let dir = browser_dir()?;
@@ -332,9 +341,39 @@ fn browser_checks(www: PathBuf) -> Result<()> {
         }
         let json =
             output(&mut run).ok_or_else(|| format!("burnin run failed on {}", p.display()))?;
-        std::fs::write(out.join(format!("{name}.results.json")), json)
-            .map_err(|e| e.to_string())?;
+        let results = out.join(format!("{name}.results.json"));
+        std::fs::write(&results, json).map_err(|e| e.to_string())?;
+        // `burnin plot`'s figures of these results, for the page's SVG
+        // export to be compared with byte for byte.
+        let figures = if name == "ferry-experiment.json" {
+            FIGURES
+        } else {
+            &[]
+        };
+        for (suffix, args) in figures {
+            let svg = out.join(format!("{name}.{suffix}.svg"));
+            let mut plot = Command::new(&cli);
+            plot.arg("plot")
+                .arg(&results)
+                .arg("--output")
+                .arg(&svg)
+                .args(*args);
+            output(&mut plot)
+                .ok_or_else(|| format!("burnin plot {args:?} failed on {}", results.display()))?;
+        }
     }
+    // A results file written by an earlier build must still plot, in the
+    // page as with `burnin plot`.
+    let old = dir.join("fixtures/results-from-an-earlier-build.json");
+    let svg = out.join("results-from-an-earlier-build.chart.svg");
+    output(
+        Command::new(&cli)
+            .arg("plot")
+            .arg(&old)
+            .arg("--output")
+            .arg(&svg),
+    )
+    .ok_or_else(|| format!("burnin plot failed on {}", old.display()))?;
     // The published site, at a sub-path of its own server, and a second
     // build to publish over it.
     let checks = root().join("target/dist-check");

@@ -3,6 +3,7 @@
 //! failed); all logic is in the library, shared with the page, except
 //! starting guest learners' processes (`guest.rs`).
 
+mod figure;
 mod guest;
 
 use std::io::{Read, Write};
@@ -57,6 +58,10 @@ enum Command {
         /// Run only shard I of N of the runs and print a shard file for `burnin merge`.
         #[arg(long, value_name = "I/N")]
         shard: Option<String>,
+        /// Run with a fresh base seed drawn from the operating system's
+        /// random source instead of the file's; the results carry it.
+        #[arg(long, conflicts_with = "shard")]
+        new_seed: bool,
         /// The command that starts the guest learner NAME (one process per
         /// run, through the shell); repeat for each guest the file names.
         #[arg(long = "learner", value_name = "NAME=CMD")]
@@ -98,6 +103,17 @@ enum Command {
         #[command(flatten)]
         tables: TableArgs,
     },
+    /// Draw the chart of a results or sweep file as SVG or PNG (the page's
+    /// chart: the same views, options and look).
+    Plot {
+        /// Results file (burnin-results or burnin-sweep), or - for standard input.
+        file: PathBuf,
+        /// The figure file to write: .svg or .png.
+        #[arg(long, short, value_name = "FILE")]
+        output: PathBuf,
+        #[command(flatten)]
+        figure: figure::FigureArgs,
+    },
     /// Rewrite a model file in the canonical layout (fields in order, one
     /// transition row per line) on standard output.
     Canon {
@@ -133,6 +149,11 @@ struct TableArgs {
     /// Also write every seed's regret curve as CSV to this file.
     #[arg(long, value_name = "FILE")]
     seeds_csv: Option<PathBuf>,
+    /// Also draw the chart to this file (.svg or .png; see the Figure options).
+    #[arg(long, value_name = "FILE")]
+    figure: Option<PathBuf>,
+    #[command(flatten)]
+    look: figure::FigureArgs,
 }
 
 impl TableArgs {
@@ -141,6 +162,7 @@ impl TableArgs {
             csv: self.csv.as_deref(),
             cells: self.cells_csv.as_deref(),
             seeds: self.seeds_csv.as_deref(),
+            figure: self.figure.as_deref().map(|p| (p, &self.look)),
         }
     }
 }
@@ -320,6 +342,7 @@ fn dispatch(command: Command) -> Result<(), Failure> {
             tables,
             threads,
             shard,
+            new_seed,
             learners,
             learner_timeout,
             estimate,
@@ -332,6 +355,7 @@ fn dispatch(command: Command) -> Result<(), Failure> {
                 tables: tables.tables(),
                 threads,
                 shard: shard.as_deref(),
+                new_seed,
                 learners: &learners,
                 learner_timeout,
                 budget: if no_budget {
@@ -353,6 +377,11 @@ fn dispatch(command: Command) -> Result<(), Failure> {
             only,
             no_learners,
         } => bench(quick, only.as_deref(), no_learners),
+        Command::Plot {
+            file,
+            output,
+            figure,
+        } => plot(&file, &output, &figure),
         Command::Canon { file } => canon(&file),
         Command::Tidy { file } => {
             let _ = writeln!(
@@ -574,7 +603,19 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
         *model_text.lock().expect("not poisoned") = Some(t.clone());
         Ok(t)
     };
-    let exp = parse_experiment(&text, Some(&loader)).map_err(invalid)?;
+    let mut exp = parse_experiment(&text, Some(&loader)).map_err(invalid)?;
+    if o.new_seed {
+        let bits = getrandom::u64().map_err(|e| {
+            Failure::Io(format!("--new-seed: the system gave no random bits ({e})"))
+        })?;
+        exp.seed = burnin::experiment::fresh_seed(bits);
+        let _ = writeln!(
+            std::io::stderr(),
+            "new seed {}: the results carry it as \"seed\"; give \"seed\": {} in the experiment to compute the same numbers again",
+            exp.seed,
+            exp.seed
+        );
+    }
     if let Some(m) = model_file.lock().expect("not poisoned").as_deref() {
         // Checked before the run, not after it.
         check_table_paths(&o.tables, &[m])?;
@@ -707,6 +748,7 @@ struct RunOptions<'a> {
     tables: Tables<'a>,
     threads: Option<usize>,
     shard: Option<&'a str>,
+    new_seed: bool,
     learners: &'a [String],
     learner_timeout: f64,
     budget: Budget,
@@ -782,6 +824,8 @@ struct Tables<'a> {
     csv: Option<&'a Path>,
     cells: Option<&'a Path>,
     seeds: Option<&'a Path>,
+    /// The figure's file and how to draw it.
+    figure: Option<(&'a Path, &'a figure::FigureArgs)>,
 }
 
 fn finish_output(
@@ -814,6 +858,12 @@ fn finish_output(
                 Ok(()) => written.push(p.display().to_string()),
                 Err(e) => failed.push(format!("cannot write {}: {e}", p.display())),
             }
+        }
+    }
+    if let Some((p, look)) = tables.figure {
+        match look.write(out, p) {
+            Ok(()) => written.push(p.display().to_string()),
+            Err(e) => failed.push(format!("--figure: {e}")),
         }
     }
     match (printed, failed.is_empty()) {
@@ -850,10 +900,15 @@ fn terminal_safe(text: &str) -> String {
 /// Refuses a table path that names one of the input files (it would be
 /// overwritten with a CSV), before anything runs.
 fn check_table_paths(tables: &Tables, inputs: &[&Path]) -> Result<(), Failure> {
+    if let Some((p, look)) = tables.figure {
+        look.check(p)
+            .map_err(|e| Failure::Io(format!("--figure: {e}")))?;
+    }
     for (flag, path) in [
         ("--csv", tables.csv),
         ("--cells-csv", tables.cells),
         ("--seeds-csv", tables.seeds),
+        ("--figure", tables.figure.map(|f| f.0)),
     ] {
         let Some(p) = path else { continue };
         let Ok(out) = std::fs::canonicalize(p) else {
@@ -862,13 +917,38 @@ fn check_table_paths(tables: &Tables, inputs: &[&Path]) -> Result<(), Failure> {
         for input in inputs {
             if std::fs::canonicalize(input).is_ok_and(|i| i == out) {
                 return Err(Failure::Io(format!(
-                    "{flag} {}: that is an input file, which the table would overwrite; choose another path",
+                    "{flag} {}: that is an input file, which this output would overwrite; choose another path",
                     p.display()
                 )));
             }
         }
     }
     Ok(())
+}
+
+/// `burnin plot`: the chart of a results or sweep file.
+fn plot(file: &Path, output: &Path, look: &figure::FigureArgs) -> Result<(), Failure> {
+    look.check(output).map_err(Failure::Io)?;
+    if std::fs::canonicalize(file)
+        .is_ok_and(|f| std::fs::canonicalize(output).is_ok_and(|o| o == f))
+    {
+        return Err(Failure::Io(format!(
+            "--output {}: that is the results file, which the figure would overwrite; choose another path",
+            output.display()
+        )));
+    }
+    let text = read_text(file)?;
+    let out = burnin::experiment::parse_results(&text).map_err(|p| {
+        Failure::Invalid(
+            p.lines()
+                .into_iter()
+                .map(|l| format!("{}: {l}", file.display()))
+                .collect(),
+        )
+    })?;
+    let bytes = look.render(&out, output).map_err(Failure::Io)?;
+    std::fs::write(output, bytes)
+        .map_err(|e| Failure::Io(format!("cannot write {}: {e}", output.display())))
 }
 
 fn merge(files: &[PathBuf], json: bool, tables: &Tables) -> Result<(), Failure> {

@@ -1,0 +1,48 @@
+//! The project's colours: eight series colours and the chart's neutrals.
+//!
+//! The series colours are our own: each stands out from the chart's
+//! background by at least 3:1 (WCAG 2.1, non-text contrast), every pair
+//! stays apart for readers with protanopia, deuteranopia and tritanopia
+//! (simulated with the matrices of Machado, Oliveira & Fernandes 2009), and
+//! none is a stock colour of common plotting defaults; tests/palette.rs
+//! checks all three. The page's transition graph colours actions with them
+//! (through the catalogue).
+
+/// An sRGB colour.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Rgb(pub u8, pub u8, pub u8);
+
+impl Rgb {
+    /// `#rrggbb`.
+    pub fn hex(self) -> String {
+        format!("#{:02x}{:02x}{:02x}", self.0, self.1, self.2)
+    }
+}
+
+/// Series colours, in the order learners get them.
+pub const SERIES: [Rgb; 8] = [
+    Rgb(0x1f, 0x6f, 0x78), // deep teal
+    Rgb(0xcb, 0x80, 0x19), // ochre
+    Rgb(0xad, 0x75, 0xf4), // lilac
+    Rgb(0x57, 0x3e, 0x0c), // umber
+    Rgb(0x53, 0x24, 0x9a), // indigo
+    Rgb(0x80, 0x98, 0x6e), // sage
+    Rgb(0xec, 0x55, 0xbe), // orchid
+    Rgb(0x82, 0x0f, 0x44), // claret
+];
+
+/// The colour of series `i` (the palette repeats past eight).
+pub fn series_colour(i: usize) -> Rgb {
+    SERIES[i % SERIES.len()]
+}
+
+/// Background of a chart (the page's card colour).
+pub const BACKGROUND: Rgb = Rgb(0xff, 0xfd, 0xf8);
+/// Titles and labels.
+pub const INK: Rgb = Rgb(0x1e, 0x28, 0x2d);
+/// Tick labels, captions and reference lines (lower bound, zero).
+pub const MUTED: Rgb = Rgb(0x5d, 0x67, 0x6b);
+/// Grid lines.
+pub const GRID: Rgb = Rgb(0xe7, 0xe0, 0xd0);
+/// The plot's frame.
+pub const FRAME: Rgb = Rgb(0xb9, 0xb0, 0x9c);

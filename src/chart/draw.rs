@@ -1,0 +1,249 @@
+//! Draws a laid-out chart on any plotters backend: the page's canvas
+//! (plotters-canvas), SVG (plotters' SVG backend) and, natively, a bitmap
+//! for PNG ([`super::raster`]).
+
+use plotters::coord::Shift;
+use plotters::element::DashedPathElement;
+use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
+
+use super::Figure;
+use super::colours::{BACKGROUND, FRAME, GRID, INK, MUTED, Rgb};
+use super::layout::{Align, FONT, FONT_FAMILY, Label, Layout};
+
+fn colour(c: Rgb) -> RGBColor {
+    RGBColor(c.0, c.1, c.2)
+}
+
+/// A pixel position as plotters' integer coordinates.
+fn at(x: f64, y: f64) -> (i32, i32) {
+    (x.round() as i32, y.round() as i32)
+}
+
+/// How a backend sizes type: plotters' SVG backend writes `font-size` as
+/// the size given ÷ 1.24 (its convention for a font's pixel height), the
+/// canvas and our bitmap text take it as pixels to the em.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct TypeSizes(pub f64);
+
+impl TypeSizes {
+    pub const EM: TypeSizes = TypeSizes(1.0);
+    pub const SVG: TypeSizes = TypeSizes(1.24);
+}
+
+/// Draws `fig` in the whole of `area` (w×h pixels) with type enlarged by
+/// `scale`; returns the layout (for the hover read-out).
+pub fn draw<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    fig: &Figure,
+    scale: f64,
+    sizes: TypeSizes,
+) -> Result<Layout, String> {
+    let (w, h) = area.dim_in_pixel();
+    let layout = Layout::new(fig, f64::from(w), f64::from(h), scale);
+    paint(area, fig, &layout, sizes).map_err(|e| format!("the chart could not be drawn: {e}"))?;
+    Ok(layout)
+}
+
+fn paint<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    fig: &Figure,
+    l: &Layout,
+    sizes: TypeSizes,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    let f = l.frame;
+    let s = l.scale;
+    let width = |w: f64| ((w * s).round() as u32).max(1);
+    area.fill(&colour(BACKGROUND))?;
+    // Grid.
+    let grid = colour(GRID).stroke_width(1);
+    for &v in &l.x_ticks {
+        area.draw(&PathElement::new(
+            vec![at(f.px(v), f.y0), at(f.px(v), f.y1)],
+            grid,
+        ))?;
+    }
+    for &v in &l.y_ticks {
+        area.draw(&PathElement::new(
+            vec![at(f.x0, f.py(v)), at(f.x1, f.py(v))],
+            grid,
+        ))?;
+    }
+    area.draw(&Rectangle::new(
+        [at(f.x0, f.y0), at(f.x1, f.y1)],
+        colour(FRAME).stroke_width(1),
+    ))?;
+    // Series: bands first, then lines, in order.
+    for series in &fig.series {
+        let idx: Vec<usize> = (0..series.x.len())
+            .filter(|&i| f.shows(series.x[i], series.y[i]))
+            .collect();
+        let c = colour(series.colour);
+        if let (Some((lo, hi)), false) = (&series.band, fig.bars) {
+            let ok: Vec<usize> = idx
+                .iter()
+                .copied()
+                .filter(|&i| f.shows(series.x[i], lo[i]) && f.shows(series.x[i], hi[i]))
+                .collect();
+            if ok.len() >= 2 {
+                let mut pts: Vec<(i32, i32)> = ok
+                    .iter()
+                    .map(|&i| at(f.px(series.x[i]), f.py(hi[i])))
+                    .collect();
+                pts.extend(ok.iter().rev().map(|&i| at(f.px(series.x[i]), f.py(lo[i]))));
+                area.draw(&Polygon::new(pts, c.mix(0.16).filled()))?;
+            }
+        }
+        let pts: Vec<(i32, i32)> = idx
+            .iter()
+            .map(|&i| at(f.px(series.x[i]), f.py(series.y[i])))
+            .collect();
+        line(area, pts, c, width(series.width), series.dash, s)?;
+        if fig.bars {
+            for &i in &idx {
+                let x = f.px(series.x[i]);
+                if let Some((lo, hi)) = &series.band {
+                    // On log axes a lower end at or below zero runs to the frame.
+                    let bottom = if f.shows(1.0, lo[i]) {
+                        f.py(lo[i]).min(f.y1)
+                    } else {
+                        f.y1
+                    };
+                    area.draw(&PathElement::new(
+                        vec![at(x, bottom), at(x, f.py(hi[i]))],
+                        c.stroke_width(width(1.5)),
+                    ))?;
+                }
+                let y = f.py(series.y[i]);
+                let r = 3.0 * s;
+                area.draw(&Rectangle::new(
+                    [at(x - r, y - r), at(x + r, y + r)],
+                    c.filled(),
+                ))?;
+            }
+        }
+    }
+    // Legend samples.
+    for &(i, x, y) in &l.legend {
+        let series = &fig.series[i];
+        let pts = vec![at(x, y), at(x + 20.0 * s, y)];
+        line(
+            area,
+            pts,
+            colour(series.colour),
+            width(series.width),
+            series.dash,
+            s,
+        )?;
+    }
+    for label in &l.labels {
+        text(area, label, sizes)?;
+    }
+    Ok(())
+}
+
+/// A polyline, solid or dashed (dash and gap at scale 1).
+fn line<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    pts: Vec<(i32, i32)>,
+    c: RGBColor,
+    width: u32,
+    dash: Option<(f64, f64)>,
+    scale: f64,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    if pts.len() < 2 {
+        return Ok(());
+    }
+    let style = c.stroke_width(width);
+    match dash {
+        None => area.draw(&PathElement::new(pts, style)),
+        Some((on, off)) => {
+            let len = |v: f64| ((v * scale).round() as u32).max(1);
+            area.draw(&DashedPathElement::new(pts, len(on), len(off), style))
+        }
+    }
+}
+
+fn text<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    label: &Label,
+    sizes: TypeSizes,
+) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
+    let h = match label.align {
+        Align::Left => HPos::Left,
+        Align::Centre => HPos::Center,
+        Align::Right => HPos::Right,
+    };
+    let ink = colour(if label.muted { MUTED } else { INK });
+    let mut style = TextStyle::from((FONT_FAMILY, label.size * sizes.0).into_font())
+        .color(&ink)
+        .pos(Pos::new(h, VPos::Center));
+    if label.upright {
+        style = style.transform(FontTransform::Rotate270);
+    }
+    area.draw(&Text::new(label.text.clone(), at(label.x, label.y), style))
+}
+
+/// The chart as an SVG document, w×h pixels, with the typeface embedded
+/// (a viewer draws it with the glyphs it was laid out with).
+pub fn svg(fig: &Figure, w: u32, h: u32, scale: f64) -> String {
+    let mut out = String::new();
+    {
+        let area = SVGBackend::with_string(&mut out, (w, h)).into_drawing_area();
+        draw(&area, fig, scale, TypeSizes::SVG).expect("drawing into a string cannot fail");
+        area.present().expect("an SVG string is always complete");
+    }
+    let end = out
+        .find('>')
+        .expect("the SVG backend writes its root element first")
+        + 1;
+    let face = format!(
+        "\n<defs><style>@font-face{{font-family:BurninSans;src:url(data:font/ttf;base64,{})}}</style></defs>",
+        base64(FONT)
+    );
+    out.insert_str(end, &face);
+    out
+}
+
+/// Standard base64 (RFC 4648, section 4) with padding.
+pub fn base64(bytes: &[u8]) -> String {
+    const ABC: &[u8; 64] = b"ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
+    let mut out = String::with_capacity(bytes.len().div_ceil(3) * 4);
+    for chunk in bytes.chunks(3) {
+        let b = [
+            chunk[0],
+            *chunk.get(1).unwrap_or(&0),
+            *chunk.get(2).unwrap_or(&0),
+        ];
+        let n = (u32::from(b[0]) << 16) | (u32::from(b[1]) << 8) | u32::from(b[2]);
+        for k in 0..4 {
+            if k <= chunk.len() {
+                out.push(ABC[((n >> (18 - 6 * k)) & 63) as usize] as char);
+            } else {
+                out.push('=');
+            }
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The test vectors of RFC 4648, section 10.
+    #[test]
+    fn base64_matches_the_rfc_vectors() {
+        for (plain, coded) in [
+            ("", ""),
+            ("f", "Zg=="),
+            ("fo", "Zm8="),
+            ("foo", "Zm9v"),
+            ("foob", "Zm9vYg=="),
+            ("fooba", "Zm9vYmE="),
+            ("foobar", "Zm9vYmFy"),
+        ] {
+            assert_eq!(base64(plain.as_bytes()), coded);
+        }
+    }
+}

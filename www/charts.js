@@ -1,0 +1,37 @@
+// The charts, drawn by the core (src/chart) on the page's thread, where
+// the canvases are: the same code that writes `burnin plot`'s SVG and PNG.
+// The worker reads results files; this thread gets only the chart data
+// (`chartText`: the curves, without the per-seed curves and regret maps).
+import init, { ResultsChart, chartFont } from './pkg/burnin.js';
+
+const ready = (async () => {
+  await init();
+  // The typeface the core measures text with, so the canvas draws what the layout planned.
+  const face = new FontFace('BurninSans', chartFont());
+  document.fonts.add(face);
+  await face.load();
+})();
+
+/** The chart of chart data, once the core is loaded. */
+export async function openChart(chartText) {
+  await ready;
+  return new ResultsChart(chartText);
+}
+
+/**
+ * Sizes `canvas` to cssW×cssH CSS pixels at the screen's pixel density
+ * (sharp on high-density screens) and draws into it, type enlarged by
+ * `typeScale`. Returns the core's {ok, series | message} and the ratio of
+ * canvas to CSS pixels.
+ */
+export function drawInto(chart, canvas, options, cssW, cssH, typeScale = 1) {
+  const ratio = window.devicePixelRatio || 1;
+  canvas.width = Math.round(cssW * ratio);
+  canvas.height = Math.round(cssH * ratio);
+  canvas.style.width = `${cssW}px`;
+  canvas.style.height = `${cssH}px`;
+  return { ...chart.draw(canvas, options, ratio * typeScale), ratio };
+}
+
+/** Size and type scale of exported pictures (as `burnin plot`'s defaults). */
+export const EXPORT = { width: 1280, height: 720, scale: 1.25 };
