@@ -109,6 +109,9 @@ export async function estimateRun(text, workers = POOL_SIZE) {
 /** How long the page waits for an estimate. */
 const ESTIMATE_WAIT_MS = 5000;
 
+/** A fresh base seed drawn from the browser's random source (getrandom in the core's bindings). */
+export const freshSeed = () => quick.request('fresh-seed', {}).promise;
+
 /** The core's catalogues of algorithms and generators, and its file limits. */
 export const catalogue = () => quick.request('catalogue', {}).promise;
 

@@ -1,7 +1,7 @@
 // The experiment view: set-up form, running in the worker with progress and
 // cancel, and the results (charts with hover, table, visit heat map, exports,
 // presentation view).
-import { runExperiment, checkGuest, checkExperiment, estimateRun } from './compute.js';
+import { runExperiment, checkGuest, checkExperiment, estimateRun, freshSeed } from './compute.js';
 import * as store from './store.js';
 import { timeLeft } from './eta.js';
 import { el, download, safeName } from './dom.js';
@@ -52,6 +52,9 @@ export const resultsOf = (doc, experiment = null) => ({
   text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, chartText: doc.chartText, experiment,
 });
 
+/** Resolves in a later task (after the browser has had its turn). */
+const nextTask = () => new Promise((resolve) => setTimeout(resolve, 0));
+
 /** Whether results (or sweep results) ran one seed per learner. */
 const oneSeed = (d) => (d.format === 'burnin-sweep' ? d.points[0].seeds : d.seeds) < 2;
 
@@ -75,6 +78,13 @@ export class ExperimentView {
     this.chart = null;
     this.rows = $('learner-rows');
     $('add-learner').addEventListener('click', () => { this.addRow({ use: true, algorithm: 'mvp', value: 1, label: '' }); hooks.changed(); });
+    // A fresh seed goes into the form, so the experiment saved, shared or
+    // run carries it and its results can be computed again.
+    $('new-seed').addEventListener('click', async () => {
+      $('exp-seed').value = String(await freshSeed());
+      hooks.changed();
+      this.recheckSoon();
+    });
     /** The user's learners loaded in this page: name → {source, file}. Never saved unless kept. */
     this.guests = new Map();
     $('add-guest').addEventListener('click', () => $('guest-file').click());
@@ -620,6 +630,10 @@ export class ExperimentView {
     $('chart').dataset.series = '0';
     let chart;
     try {
+      // Reading the chart data and drawing each run as a task of its own,
+      // after the table and the map: no one task keeps the page busy long.
+      await nextTask();
+      if (this.results !== r) return;
       chart = await openChart(r.chartText);
     } catch (err) {
       $('chart-caption').textContent = `These results cannot be charted: ${err?.message || err}`;
@@ -631,6 +645,8 @@ export class ExperimentView {
     const was = view.value;
     view.replaceChildren(...chart.views().map((v) => el('option', v.label, { value: v.key })));
     if ([...view.options].some((o) => o.value === was)) view.value = was;
+    await nextTask();
+    if (this.chart !== chart) return;
     this.draw();
   }
 

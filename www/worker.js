@@ -17,8 +17,9 @@
 //   catalogue          → done {result}            (algorithms, generators, limits: src/catalogue.rs)
 //   read-document {text} → done {result}          (what a file is, read by the core)
 //   with-layout {text, positions} → done {result} (the model's text with a new layout, or problems)
+//   fresh-seed         → done {result: a base seed}   (from Crypto.getRandomValues, through the core)
 //   cancel {id}        → the run with that id stops and answers cancelled
-import init, { solveModel, checkModel, checkExperiment, generateModel, mergeShards, catalogue, readDocument, withLayout, estimateRun, ExperimentRun } from './pkg/burnin.js';
+import init, { solveModel, checkModel, checkExperiment, generateModel, mergeShards, catalogue, readDocument, withLayout, estimateRun, freshSeed, ExperimentRun } from './pkg/burnin.js';
 
 const ready = init();
 const cancelled = new Set();
@@ -129,6 +130,8 @@ self.onmessage = async (event) => {
       self.postMessage({ type: 'done', id, result: withLayout(event.data.text, event.data.positions) });
     } else if (type === 'estimate') {
       self.postMessage({ type: 'done', id, result: estimateRun(event.data.text, event.data.workers) });
+    } else if (type === 'fresh-seed') {
+      self.postMessage({ type: 'done', id, result: freshSeed() });
     } else if (type === 'merge') {
       self.postMessage({ type: 'done', id, result: mergeShards(event.data.shards) });
     } else {

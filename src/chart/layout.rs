@@ -327,6 +327,15 @@ impl Layout {
         if !log {
             ymax += (ymax - ymin) * 0.04;
         }
+        if fig.bars {
+            // Points with error bars keep clear of the frame's sides.
+            if log {
+                (xmin, xmax) = (xmin / 1.15, xmax * 1.15);
+            } else {
+                let pad = (xmax - xmin) * 0.04;
+                (xmin, xmax) = (xmin - pad, xmax + pad);
+            }
+        }
         let legend_items: Vec<usize> = (0..fig.series.len())
             .filter(|&i| fig.series[i].legend)
             .collect();

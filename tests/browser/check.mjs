@@ -385,6 +385,26 @@ await check('the chart is the core\'s: the page\'s SVG equals `burnin plot`\'s, 
   assert(Math.abs(value - l0.regret_mean[at]) <= 0.051 + 0.005 * l0.regret_mean[at], `read-out value ${value} is the curve's ${l0.regret_mean[at]}`);
 });
 
+await check('"New seed" writes a fresh base seed into the experiment, and the results carry it', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  const before = await page.inputValue('#exp-seed');
+  const draw = async (was) => {
+    await page.click('#new-seed');
+    await page.waitForFunction((w) => document.getElementById('exp-seed').value !== w, was);
+    return page.inputValue('#exp-seed');
+  };
+  const a = await draw(before);
+  const b = await draw(a);
+  for (const s of [a, b]) assert(/^\d+$/.test(s) && Number(s) >= 1 && Number(s) <= 999999999, `a seed of up to nine digits: ${s}`);
+  // Two draws from 10⁹ seeds coincide with probability 10⁻⁹.
+  assert(a !== b, `two fresh seeds differ (${a}, ${b})`);
+  await page.fill('#exp-episodes', '200');
+  await runAndWait(page);
+  const r = await resultsJson(page);
+  assertEqual(String(r.seed), b, 'the results carry the seed that was drawn');
+});
+
 await check('results from an earlier build still open, chart and plot', async (page) => {
   await openPage(page);
   const old = readFileSync(join(fixtures, 'results-from-an-earlier-build.json'), 'utf8');
@@ -408,7 +428,7 @@ await check('a model file saved from the page opens again the same', async (page
   assertEqual((await shownValue(page, await demoName('pearl-reef.json'))).data, v.data, 'same optimal value');
 });
 
-await check('the main thread never blocks for more than 50 ms during a run', async (page) => {
+await check('the main thread never blocks for more than 50 ms during a run and while its charts are drawn', async (page) => {
   await openPage(page);
   await page.evaluate(() => {
     window.__long = [];
@@ -418,6 +438,18 @@ await check('the main thread never blocks for more than 50 ms during a run', asy
   await page.fill('#exp-episodes', '20000');
   await page.evaluate(() => { window.__long = []; });
   await runAndWait(page);
+  // Drawing included: the core draws every chart on this thread.
+  await page.waitForFunction(() => Number(document.getElementById('chart').dataset.series) > 0);
+  await page.check('input[name=axes][value=log]');
+  await page.check('#show-lower');
+  await page.check('#show-bounds');
+  await page.selectOption('#chart-view', 'episode');
+  await page.selectOption('#chart-view', 'cumulative');
+  await page.setViewportSize({ width: 1100, height: 800 });
+  await downloadText(page, '#export-svg');
+  await Promise.all([page.waitForEvent('download'), page.click('#export-png')]);
+  await page.click('#present');
+  await page.click('#present-close');
   const long = await page.evaluate(() => window.__long);
   const worst = Math.max(0, ...long);
   console.log(`     ${long.length} long tasks, the longest ${worst.toFixed(0)} ms`);

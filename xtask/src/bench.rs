@@ -435,6 +435,16 @@ pub fn bench(quick: bool) -> Result<()> {
             mark(*rate >= want)
         ));
     }
+    // The page's one download of code: the core (charts included) as wasm,
+    // uncompressed as the server sends it without compression.
+    let wasm_bytes = std::fs::metadata(www.join("pkg/burnin_bg.wasm"))
+        .map_err(|e| format!("the wasm build: {e}"))?
+        .len();
+    targets.push(format!(
+        "| wasm download under 1.5 MB uncompressed (`www/pkg/burnin_bg.wasm`) | {:.2} MB ({wasm_bytes} bytes) | {} |",
+        wasm_bytes as f64 / 1e6,
+        mark(wasm_bytes < 1_500_000)
+    ));
     let _ = writeln!(
         md,
         "\n## Targets\n\n| target | measured | status |\n|---|---|---|"
