@@ -378,3 +378,96 @@ fn a_new_seed_is_fresh_and_written_into_the_results_so_it_can_be_run_again() {
         r.stderr
     );
 }
+
+#[test]
+fn a_sweep_plots_regret_at_k_against_the_swept_value() {
+    let dir = Scratch::new("plot-sweep");
+    let mut exp: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(FERRY).unwrap()).unwrap();
+    exp["episodes"] = 300.into();
+    exp["sweep"] = serde_json::json!({"parameter": "delta", "values": [0.01, 0.1, 0.5]});
+    let file = dir.file("sweep.json", &exp.to_string());
+    let svg = dir.0.join("sweep.svg");
+    let r = burnin(&["run", p(&file), "--figure", p(&svg), "--log"]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let (texts, strokes, _) = svg_parts(&std::fs::read_to_string(&svg).unwrap());
+    assert!(
+        texts.contains(&"Regret at K = 300 against delta".to_string()),
+        "{texts:?}"
+    );
+    assert!(texts.contains(&"delta".to_string()) && texts.contains(&"regret at K".to_string()));
+    let learners = exp["learners"].as_array().unwrap().len();
+    for i in 0..learners {
+        assert!(
+            strokes.contains(&burnin::chart::colours::SERIES[i].hex()),
+            "learner {i} drawn"
+        );
+    }
+    // A sweep has only its own view: refused before anything runs.
+    let r = burnin(&["run", p(&file), "--figure", p(&svg), "--view", "episode"]);
+    assert_eq!(r.code, 2);
+    assert!(
+        r.stderr.contains(
+            "--figure: this experiment's results will have no episode view; they will have: sweep"
+        ),
+        "{}",
+        r.stderr
+    );
+    assert!(r.stdout.is_empty(), "nothing ran: {}", r.stdout);
+    let r = burnin(&[
+        "run",
+        FERRY,
+        "--figure",
+        p(&svg),
+        "--view",
+        "difference",
+        "--compare",
+        "psrl",
+        "nobody",
+    ]);
+    assert!(
+        r.stderr
+            .contains("--figure: no learner is labelled \"nobody\""),
+        "{}",
+        r.stderr
+    );
+    assert!(r.stdout.is_empty());
+}
+
+#[test]
+fn a_figure_that_fails_after_a_run_loses_no_results() {
+    // Merging shards of a sweep with an impossible view: the shards carry
+    // no plan to check first, so the merge prints the results, then says
+    // why the figure was not written.
+    let dir = Scratch::new("plot-late");
+    let mut exp: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(FERRY).unwrap()).unwrap();
+    exp["episodes"] = 100.into();
+    exp["sweep"] = serde_json::json!({"parameter": "delta", "values": [0.01, 0.1]});
+    let file = dir.file("sweep.json", &exp.to_string());
+    let r = burnin(&["run", p(&file), "--shard", "1/1"]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let shard = dir.file("s1.json", &r.stdout);
+    let svg = dir.0.join("late.svg");
+    let r = burnin(&[
+        "merge",
+        p(&shard),
+        "--figure",
+        p(&svg),
+        "--view",
+        "cumulative",
+    ]);
+    assert_eq!(r.code, 2);
+    assert!(
+        r.stdout.contains("regret at K against delta"),
+        "the results were printed: {}",
+        r.stdout
+    );
+    assert!(
+        r.stderr
+            .contains("--figure: these results have no cumulative view; they have: sweep"),
+        "{}",
+        r.stderr
+    );
+    assert!(!svg.exists());
+}

@@ -172,6 +172,40 @@ pub fn views(out: &Output) -> Vec<(View, String)> {
     }
 }
 
+/// Checks `opts` against the results an experiment will give (a sweep or
+/// not, with these learner labels) before it runs, so a figure that cannot
+/// be drawn is refused before hours of running rather than after.
+pub fn check_planned(opts: &Options, sweep: bool, labels: &[&str]) -> Result<(), String> {
+    let have: Vec<View> = if sweep {
+        vec![View::Sweep]
+    } else if labels.len() >= 2 {
+        vec![View::Cumulative, View::Episode, View::Difference]
+    } else {
+        vec![View::Cumulative, View::Episode]
+    };
+    if let Some(v) = opts.view
+        && !have.contains(&v)
+    {
+        let keys: Vec<&str> = have.iter().map(|v| v.key()).collect();
+        return Err(format!(
+            "this experiment's results will have no {} view; they will have: {}",
+            v.key(),
+            keys.join(", ")
+        ));
+    }
+    if let Some((a, b)) = &opts.compare {
+        for name in [a, b] {
+            if !labels.contains(&name.as_str()) {
+                return Err(format!(
+                    "no learner is labelled {name:?}; the labels are: {}",
+                    labels.join(", ")
+                ));
+            }
+        }
+    }
+    Ok(())
+}
+
 /// Whether these results ran one seed per learner (no interval exists).
 fn one_seed(out: &Output) -> bool {
     match out {

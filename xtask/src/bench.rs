@@ -111,7 +111,8 @@ pub fn bench(quick: bool) -> Result<()> {
     step("wasm workloads in headless Chromium, learners in rounds with native and numpy runs");
     let chrome = chromium()?;
     let dir = browser_dir()?;
-    let server = crate::serve::Server::start(www.clone(), 0).map_err(|e| format!("cannot listen: {e}"))?;
+    let server =
+        crate::serve::Server::start(www.clone(), 0).map_err(|e| format!("cannot listen: {e}"))?;
     let pairs_out = tmp.join("pairs.tsv");
     let guest_out = tmp.join("guest.tsv");
     let mut node = Command::new("node");

@@ -604,6 +604,12 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
         Ok(t)
     };
     let mut exp = parse_experiment(&text, Some(&loader)).map_err(invalid)?;
+    if let Some((_, look)) = o.tables.figure {
+        let labels: Vec<&str> = exp.learners.iter().map(|l| l.label.as_str()).collect();
+        let opts = look.options().map_err(Failure::Io)?;
+        burnin::chart::check_planned(&opts, exp.sweep.is_some(), &labels)
+            .map_err(|e| Failure::Io(format!("--figure: {e}")))?;
+    }
     if o.new_seed {
         let bits = getrandom::u64().map_err(|e| {
             Failure::Io(format!("--new-seed: the system gave no random bits ({e})"))
