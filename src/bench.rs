@@ -9,6 +9,8 @@
 //!   (the machine's streaming rate for this layout);
 //! - learn: each learner on a random model with S = 20, A = 4, H = 20 and 5
 //!   successors, one seed, K episodes (100 000 by default);
+//! - floor: the cheapest episode loop on the same model (a fixed policy,
+//!   reward and next-state draws, visit counts), episodes per second;
 //! - replan: MVP's model updates and time at K = 10³ … 10⁶.
 
 use serde::Serialize;
@@ -207,6 +209,58 @@ pub fn learn_figures(now: &dyn Fn() -> f64, episodes: u64, only: Option<&str>) -
         .collect()
 }
 
+/// The name `Selection::only` takes for the floor workload alone.
+pub const FLOOR: &str = "floor";
+
+/// The floor of an episode loop on the learning workload's model: the
+/// least any run does per step (a fixed policy, the reward draw, the
+/// next-state draw from the alias tables, the visit count and the return)
+/// and nothing else: no learner, no policy evaluation, no regret. Every
+/// learner's cost per step is measured against it. Returns episodes per
+/// second (of H steps, as the learners' figures) and a checksum of the
+/// returns and visits.
+pub fn floor_figures(now: &dyn Fn() -> f64, episodes: u64) -> Vec<Figure> {
+    use crate::learn::LearnRng;
+    use crate::sample::{Sampler, reward};
+    use rand::SeedableRng;
+    let m = learn_experiment(Algorithm::new(AlgorithmKind::Uniform), episodes).model;
+    let sampler = Sampler::new(&m);
+    let (s_n, a_n, h_n) = (m.n_states(), m.n_actions(), m.horizon());
+    let (mut rates, mut spent, mut check) = (Vec::new(), 0.0, 0.0);
+    while rates.is_empty() || (spent < LEARN_SECONDS && rates.len() < LEARN_REPS) {
+        let mut rng = LearnRng::seed_from_u64(1);
+        let mut visits = vec![0u64; h_n * s_n];
+        let mut total = 0.0;
+        let t = now();
+        for _ in 0..episodes {
+            let mut s = sampler.start(&mut rng);
+            for h in 0..h_n {
+                // A fixed policy that still visits every action.
+                let a = (h + s) % a_n;
+                let row = s * a_n + a;
+                total += reward(&mut rng, m.step(h).reward(row));
+                visits[h * s_n + s] += 1;
+                s = sampler.next(&mut rng, h, row);
+            }
+        }
+        let secs = now() - t;
+        spent += secs;
+        rates.push(episodes as f64 / secs);
+        let spread: u64 = visits
+            .iter()
+            .enumerate()
+            .map(|(i, &v)| v * (i as u64 + 1))
+            .sum();
+        check = total + spread as f64;
+    }
+    vec![figure(
+        &format!("floor S=20 A=4 H=20 K={episodes}"),
+        "episodes/s",
+        rates,
+        format!("{check:.12e}"),
+    )]
+}
+
 /// MVP's model updates and seconds at K = 10³ … 10^max_exp on the learning workload.
 pub fn replan_figures(now: &dyn Fn() -> f64, max_exp: u32) -> Vec<Figure> {
     (3..=max_exp)
@@ -231,7 +285,8 @@ pub fn replan_figures(now: &dyn Fn() -> f64, max_exp: u32) -> Vec<Figure> {
 pub struct Selection<'a> {
     /// Smaller workloads (K = 10 000, replanning to 10⁵, two solver repetitions).
     pub quick: bool,
-    /// Only this learner's learning workload (an algorithm key).
+    /// Only this learner's learning workload (an algorithm key), or only
+    /// the floor ([`FLOOR`]).
     pub only: Option<&'a str>,
     /// No learning workloads.
     pub no_learners: bool,
@@ -258,6 +313,9 @@ pub fn report(
     }
     let after_solve = memory();
     if !sel.no_learners {
+        if sel.only.is_none_or(|k| k == FLOOR) {
+            figures.extend(floor_figures(now, k));
+        }
         figures.extend(learn_figures(now, k, sel.only));
     }
     if sel.only.is_none() {

@@ -54,8 +54,11 @@ fn timed(cmd: &mut Command) -> Result<f64> {
 /// rest is rewritten.
 const KEPT_HEADING: &str = "## Measured by hand";
 
-/// The learners of the learning workload, in the order of the tables.
-const LEARNERS: [&str; 7] = [
+/// The workloads run in rounds on the learning workload's model, in the
+/// order of the tables: the floor (`burnin bench --only floor`: the
+/// cheapest episode loop) and every learner.
+const LEARNERS: [&str; 8] = [
+    "floor",
     "mvp",
     "ucbvi-hoeffding",
     "ucbvi-bernstein",
@@ -289,7 +292,7 @@ pub fn bench(quick: bool) -> Result<()> {
     }
     let _ = writeln!(
         md,
-        "\n## Learning (S=20, A=4, H=20, 5 successors, one seed, K={k}; episodes/s)\n\nEach learner ran in rounds, a native run (`burnin bench --only`) then a wasm run in the same open page, so that both sides of a ratio are measured within seconds of each other; rates are the best of all rounds, the ratio is the median of the rounds' ratios (their range in brackets).\n\n| learner | rounds | native | wasm | native/wasm | checksum (native = wasm) |\n|---|---|---|---|---|---|"
+        "\n## Learning (S=20, A=4, H=20, 5 successors, one seed, K={k}; episodes/s)\n\nEach learner ran in rounds, a native run (`burnin bench --only`) then a wasm run in the same open page, so that both sides of a ratio are measured within seconds of each other; rates are the best of all rounds, the ratio is the median of the rounds' ratios (their range in brackets). The floor is the cheapest episode loop on the same model (a fixed policy, the reward and next-state draws, the visit counts: `floor_figures` in `src/bench.rs`); the cost per step is 1/(episodes/s × H) at the best native rate, and × floor is that cost over the floor's.\n\n| workload | rounds | native | wasm | native/wasm | ns per step (native) | × floor | checksum (native = wasm) |\n|---|---|---|---|---|---|---|---|"
     );
     let rows: Vec<Vec<&str>> = rounds
         .lines()
@@ -314,6 +317,15 @@ pub fn bench(quick: bool) -> Result<()> {
             String::new()
         }
     };
+    let step_ns = |rate: f64| 1e9 / (rate * 20.0);
+    let floor_ns = {
+        let n: Vec<f64> = rows
+            .iter()
+            .filter(|r| r[0] == "floor")
+            .map(|r| num(r[1]))
+            .collect();
+        step_ns(best(&n))
+    };
     for key in LEARNERS {
         let mine: Vec<&Vec<&str>> = rows.iter().filter(|r| r[0] == key).collect();
         if mine.is_empty() {
@@ -324,15 +336,24 @@ pub fn bench(quick: bool) -> Result<()> {
         let ratios: Vec<f64> = n.iter().zip(&w).map(|(a, b)| a / b).collect();
         let ratio = median(&ratios);
         let equal = mine.iter().all(|r| r[3] == r[4]);
+        let ns = step_ns(best(&n));
         let _ = writeln!(
             md,
-            "| {key} | {} | {:.0} | {:.0} | {ratio:.2}{} | {} |",
+            "| {key} | {} | {:.0} | {:.0} | {ratio:.2}{} | {ns:.1} | {:.2} | {} |",
             mine.len(),
             best(&n),
             best(&w),
             range(&ratios, 2),
+            ns / floor_ns,
             if equal { "equal" } else { "**differs**" }
         );
+        if key == "uniform" {
+            targets.push(format!(
+                "| uniform within 2× of the floor per step (native) | {:.2}× | {} |",
+                ns / floor_ns,
+                mark(ns <= 2.0 * floor_ns)
+            ));
+        }
         targets.push(format!(
             "| wasm within 1.5× of native: {key} | {ratio:.2}× | {} |",
             mark(ratio <= 1.5)

@@ -85,7 +85,8 @@ enum Command {
         /// Smaller workloads (K = 10 000, replanning to 10⁵) for a quick look.
         #[arg(long)]
         quick: bool,
-        /// Only this learner's learning workload (an algorithm key).
+        /// Only this learner's learning workload (an algorithm key), or
+        /// `floor`: the cheapest episode loop, the floor learners are measured against.
         #[arg(long, value_name = "ALGORITHM", conflicts_with = "no_learners")]
         only: Option<String>,
         /// The solver and replanning workloads, without the learners'.
