@@ -11,7 +11,9 @@
 //!   successors, one seed, K episodes (100 000 by default);
 //! - floor: the cheapest episode loop on the same model (a fixed policy,
 //!   reward and next-state draws, visit counts), episodes per second;
-//! - replan: MVP's model updates and time at K = 10³ … 10⁶.
+//! - replan: MVP's model updates and time at K = 10³ … 10⁶;
+//! - research (alone, on request): each learner on S = 500, A = 10, H = 50
+//!   with 10 successors per row, episodes per second.
 
 use serde::Serialize;
 
@@ -261,6 +263,63 @@ pub fn floor_figures(now: &dyn Fn() -> f64, episodes: u64) -> Vec<Figure> {
     )]
 }
 
+/// The research-scale workload's model: S = 500, A = 10, H = 50, 10
+/// successors per row, a fresh table per step (2.5 million entries),
+/// Bernoulli rewards (`burnin generate random --states 500 --actions 10
+/// --successors 10 --horizon 50 --time-dependent --seed 1` writes it).
+pub fn research_model() -> crate::Mdp {
+    Garnet {
+        states: 500,
+        actions: 10,
+        successors: 10,
+        horizon: 50,
+        time_dependent: true,
+        bernoulli: true,
+    }
+    .generate(1)
+    .expect("valid parameters")
+}
+
+/// Episodes each learner is asked for at research scale …
+pub const RESEARCH_EPISODES: u64 = 1000;
+/// … and the seconds after which its run is cut (the rate is over the
+/// episodes done by then).
+pub const RESEARCH_SECONDS: f64 = 15.0;
+
+/// Episodes per second of each learner (one seed, set-up excluded: the
+/// sampler's tables and V*) on the research-scale model, over the first
+/// [`RESEARCH_EPISODES`] episodes or the episodes done in
+/// [`RESEARCH_SECONDS`], whichever comes first; the note says how many.
+pub fn research_figures(now: &dyn Fn() -> f64, only: Option<&str>) -> Vec<Figure> {
+    bench_learners()
+        .into_iter()
+        .filter(|a| only.is_none_or(|k| a.key() == k))
+        .map(|a| {
+            let mut exp = learn_experiment(a, RESEARCH_EPISODES);
+            exp.model = research_model();
+            exp.eps_targets = vec![5.0, 2.5];
+            let ctx = Point::new(exp);
+            let mut r = Run::new(ctx, 0);
+            let t = now();
+            let mut secs;
+            loop {
+                let finished = r.advance(1).expect("built-in learners never fail");
+                secs = now() - t;
+                if finished || secs > RESEARCH_SECONDS {
+                    break;
+                }
+            }
+            let done = r.episodes_done();
+            figure(
+                &format!("research {} S=500 A=10 H=50 b=10", a.key()),
+                "episodes/s",
+                vec![done as f64 / secs],
+                format!("{done} of {RESEARCH_EPISODES} episodes in {secs:.2} s"),
+            )
+        })
+        .collect()
+}
+
 /// MVP's model updates and seconds at K = 10³ … 10^max_exp on the learning workload.
 pub fn replan_figures(now: &dyn Fn() -> f64, max_exp: u32) -> Vec<Figure> {
     (3..=max_exp)
@@ -290,6 +349,8 @@ pub struct Selection<'a> {
     pub only: Option<&'a str>,
     /// No learning workloads.
     pub no_learners: bool,
+    /// Only the research-scale workload (with `only`, one learner's).
+    pub research: bool,
 }
 
 /// Runs the selected workloads and returns the report both front ends
@@ -308,6 +369,15 @@ pub fn report(
         (100_000, 6, 5)
     };
     let mut figures = Vec::new();
+    if sel.research {
+        figures.extend(research_figures(now, sel.only));
+        return serde_json::to_string_pretty(&serde_json::json!({
+            "target": target,
+            "figures": figures,
+            "peak_memory_bytes": memory(),
+        }))
+        .expect("plain values");
+    }
     if sel.only.is_none() {
         figures.extend(solve_figures(now, reps));
     }

@@ -550,13 +550,20 @@ fn heap_bytes() -> u32 {
 /// figures as JSON, with the wasm heap size at the end (its peak: wasm
 /// memory never shrinks). With `only` (an algorithm key), only that
 /// learner's learning workload, as `burnin bench --only`; with
-/// `no_learners`, none, as `burnin bench --no-learners`.
+/// `no_learners`, none, as `burnin bench --no-learners`; with `research`,
+/// only the research-scale workload, as `burnin bench --research`.
 #[wasm_bindgen(js_name = benchFigures)]
-pub fn bench_figures(quick: bool, only: Option<String>, no_learners: bool) -> String {
+pub fn bench_figures(
+    quick: bool,
+    only: Option<String>,
+    no_learners: bool,
+    research: bool,
+) -> String {
     let sel = crate::bench::Selection {
         quick,
         only: only.as_deref(),
         no_learners,
+        research,
     };
     crate::bench::report("wasm", &now_seconds, &|| Some(heap_bytes().into()), sel)
 }

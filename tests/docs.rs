@@ -286,3 +286,31 @@ fn the_publishing_example_builds_the_site_with_xtask_dist() {
     );
     assert!(read("README.md").contains("cargo xtask dist site/"));
 }
+
+/// xtask (which has no dependency on the core) restates the research-scale
+/// workload's episode count and time cap for BENCHMARKS.md's words; they
+/// must be the core's.
+#[test]
+fn the_bench_report_states_the_cores_research_workload() {
+    let xtask = read("xtask/src/bench.rs");
+    let find = |name: &str| -> String {
+        let line = xtask
+            .lines()
+            .find(|l| l.starts_with(&format!("const {name}:")))
+            .unwrap_or_else(|| panic!("{name} in xtask/src/bench.rs"));
+        line.split('=')
+            .nth(1)
+            .unwrap()
+            .trim()
+            .trim_end_matches(';')
+            .replace('_', "")
+    };
+    assert_eq!(
+        find("RESEARCH_EPISODES").parse::<u64>().unwrap(),
+        burnin::bench::RESEARCH_EPISODES
+    );
+    assert_eq!(
+        find("RESEARCH_SECONDS").parse::<f64>().unwrap(),
+        burnin::bench::RESEARCH_SECONDS
+    );
+}

@@ -1,5 +1,5 @@
 // The benchmark worker: the same workloads as `burnin bench`, in wasm.
-// Requests {id, quick, only, noLearners} → {id, json} or {id, error};
+// Requests {id, quick, only, noLearners, research} → {id, json} or {id, error};
 // {id, guest: {texts: [guest experiment, built-in experiment], source}} times
 // the guest contract with a trivial learner module against the built-in
 // uniform learner on the same workload → {id, json: {guest, builtin}} (episodes/s).
@@ -20,7 +20,7 @@ function rate(text, guests) {
 }
 
 self.onmessage = async (e) => {
-  const { id, quick, only, noLearners, guest } = e.data;
+  const { id, quick, only, noLearners, research, guest } = e.data;
   try {
     await ready;
     if (guest) {
@@ -31,7 +31,7 @@ self.onmessage = async (e) => {
       self.postMessage({ id, json });
       return;
     }
-    self.postMessage({ id, json: benchFigures(Boolean(quick), only || undefined, Boolean(noLearners)) });
+    self.postMessage({ id, json: benchFigures(Boolean(quick), only || undefined, Boolean(noLearners), Boolean(research)) });
   } catch (err) {
     self.postMessage({ id, error: String((err && err.message) || err) });
   }

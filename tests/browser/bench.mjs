@@ -18,6 +18,11 @@
 //                                learner module (examples/uniform.mjs) against the
 //                                built-in uniform learner in the page, in rounds
 //   BURNIN_GUEST_OUT             where to write one TSV line per round: guest rate, built-in rate
+//   BURNIN_RESEARCH              learners to run at research scale (comma-separated keys),
+//                                each natively (`burnin bench --research --only KEY`, its
+//                                own process) and then in a page of its own (its own heap)
+//   BURNIN_RESEARCH_OUT          where to write one TSV line per learner: key, native rate,
+//                                native peak RSS bytes, wasm rate, wasm heap bytes, native note, wasm note
 // Prints the wasm figures (JSON) of the solver and replanning workloads, or
 // of BURNIN_ONLY's learner.
 import { execFileSync } from 'node:child_process';
@@ -76,5 +81,24 @@ if (env.BURNIN_GUEST_MODEL) {
     console.error(`guest\t${r.guest}\t${r.builtin}`);
   }
   writeFileSync(env.BURNIN_GUEST_OUT, lines.join('\n') + '\n');
+}
+if (env.BURNIN_RESEARCH) {
+  const lines = [];
+  const one = (json) => {
+    const j = JSON.parse(json);
+    const f = j.figures.find((x) => x.name.startsWith('research '));
+    return { rate: f.best, note: f.note, memory: j.peak_memory_bytes };
+  };
+  for (const key of env.BURNIN_RESEARCH.split(',').filter(Boolean)) {
+    const n = one(execFileSync(env.BURNIN_CLI, ['bench', '--research', '--only', key], { encoding: 'utf8' }));
+    const fresh = await browser.newPage();
+    await fresh.goto(`${env.BURNIN_URL}/bench.html?manual`);
+    const w = one(await fresh.evaluate((r) => window.benchRun(r), { research: true, only: key }));
+    await fresh.close();
+    const row = [key, n.rate, n.memory, w.rate, w.memory, n.note, w.note];
+    lines.push(row.join('\t'));
+    console.error(row.join('\t'));
+  }
+  writeFileSync(env.BURNIN_RESEARCH_OUT, lines.join('\n') + '\n');
 }
 await browser.close();

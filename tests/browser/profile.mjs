@@ -25,9 +25,9 @@ const cdp = await page.context().newCDPSession(page);
 await cdp.send('Profiler.enable');
 await cdp.send('Profiler.setSamplingInterval', { interval: 200 });
 await page.evaluate(async () => { const m = await import('./pkg/burnin.js'); await m.default(); window.core = m; });
-await page.evaluate((key) => window.core.benchFigures(true, key, false), only);
+await page.evaluate((key) => window.core.benchFigures(true, key, false, false), only);
 await cdp.send('Profiler.start');
-const out = JSON.parse(await page.evaluate((key) => window.core.benchFigures(true, key, false), only));
+const out = JSON.parse(await page.evaluate((key) => window.core.benchFigures(true, key, false, false), only));
 const { profile } = await cdp.send('Profiler.stop');
 await browser.close();
 

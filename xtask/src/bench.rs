@@ -13,6 +13,10 @@ use std::time::Instant;
 
 use crate::{Result, browser_dir, build_wasm, cargo, chromium, output, root, step};
 
+/// As `burnin::bench` (xtask has no dependency on the core).
+const RESEARCH_EPISODES: u64 = 1000;
+const RESEARCH_SECONDS: f64 = 15.0;
+
 /// Finds a figure by the start of its name in `burnin bench` JSON: its
 /// best and median values and its note.
 fn figure(json: &str, name: &str) -> Option<(f64, f64, String)> {
@@ -118,6 +122,7 @@ pub fn bench(quick: bool) -> Result<()> {
         crate::serve::Server::start(www.clone(), 0).map_err(|e| format!("cannot listen: {e}"))?;
     let pairs_out = tmp.join("pairs.tsv");
     let guest_out = tmp.join("guest.tsv");
+    let research_out = tmp.join("research.tsv");
     let mut node = Command::new("node");
     node.arg(dir.join("bench.mjs"))
         .env("BURNIN_URL", server.url())
@@ -127,6 +132,8 @@ pub fn bench(quick: bool) -> Result<()> {
         .env("BURNIN_PAIRS_OUT", &pairs_out)
         .env("BURNIN_GUEST_MODEL", &model)
         .env("BURNIN_GUEST_OUT", &guest_out)
+        .env("BURNIN_RESEARCH", LEARNERS[1..].join(","))
+        .env("BURNIN_RESEARCH_OUT", &research_out)
         .env(
             "BURNIN_NUMPY",
             format!(
@@ -140,6 +147,35 @@ pub fn bench(quick: bool) -> Result<()> {
     }
     let wasm = output(&mut node).ok_or("the browser benchmark failed")?;
     let rounds = std::fs::read_to_string(&pairs_out).map_err(|e| e.to_string())?;
+    let research = std::fs::read_to_string(&research_out).map_err(|e| e.to_string())?;
+
+    step("the numpy peer at research scale");
+    let research_model = tmp.join("research-model.json");
+    let text = output(Command::new(&cli).args([
+        "generate",
+        "random",
+        "--states",
+        "500",
+        "--actions",
+        "10",
+        "--successors",
+        "10",
+        "--horizon",
+        "50",
+        "--time-dependent",
+        "--seed",
+        "1",
+    ]))
+    .ok_or("burnin generate failed")?;
+    std::fs::write(&research_model, text).map_err(|e| e.to_string())?;
+    let peer_k = if quick { 3 } else { 20 };
+    let peer_json = output(
+        Command::new("python3")
+            .arg(root().join("benches/numpy_ucbvi.py"))
+            .arg(&research_model)
+            .arg(peer_k.to_string()),
+    )
+    .ok_or("the numpy peer failed at research scale")?;
 
     step("thread scaling (whole-process timings)");
     let exp = tmp.join("threads.json");
@@ -417,6 +453,35 @@ pub fn bench(quick: bool) -> Result<()> {
         mb(&wasm, "peak_memory_after_solve_bytes"),
         mb(&native, "peak_memory_bytes"),
         mb(&wasm, "peak_memory_bytes")
+    );
+    // Research scale: each learner in its own process and its own page.
+    let _ = writeln!(
+        md,
+        "\n## Research scale (S=500, A=10, H=50, 10 successors per row, a table per step, one seed; episodes/s)\n\nEach learner ran its first {RESEARCH_EPISODES} episodes, or as many as it did in {RESEARCH_SECONDS} s, natively in a process of its own (`burnin bench --research --only KEY`) and then in a page of its own; set-up (the sampler's tables and V*) is not timed. Memory is the native process's peak RSS and the page's wasm heap.\n\n| learner | native | native peak RSS | wasm | wasm heap | native/wasm | episodes timed (native; wasm) |\n|---|---|---|---|---|---|---|"
+    );
+    for row in research.lines().filter(|l| !l.is_empty()) {
+        let r: Vec<&str> = row.split('\t').collect();
+        if r.len() < 7 {
+            continue;
+        }
+        let mib = |x: &str| format!("{:.0} MiB", num(x) / 1048576.0);
+        let _ = writeln!(
+            md,
+            "| {} | {:.1} | {} | {:.1} | {} | {:.2} | {}; {} |",
+            r[0],
+            num(r[1]),
+            mib(r[2]),
+            num(r[3]),
+            mib(r[4]),
+            num(r[1]) / num(r[3]),
+            r[5],
+            r[6]
+        );
+    }
+    let peer_rate = top_number(&peer_json, "episodes_per_second").unwrap_or(f64::NAN);
+    let _ = writeln!(
+        md,
+        "| numpy peer, UCBVI-Hoeffding (`benches/numpy_ucbvi.py`, K = {peer_k}) | {peer_rate:.1} | | | | | |"
     );
     // The guest contract's overhead: a trivial learner (plays uniformly,
     // keeps its policy) on the learning workload.

@@ -92,6 +92,10 @@ enum Command {
         /// The solver and replanning workloads, without the learners'.
         #[arg(long)]
         no_learners: bool,
+        /// Only the research-scale workload: every learner (or --only's) on
+        /// S=500, A=10, H=50 with 10 successors per row.
+        #[arg(long, conflicts_with_all = ["quick", "no_learners"])]
+        research: bool,
     },
     /// Merge the shard files of one experiment into its results.
     Merge {
@@ -377,7 +381,8 @@ fn dispatch(command: Command) -> Result<(), Failure> {
             quick,
             only,
             no_learners,
-        } => bench(quick, only.as_deref(), no_learners),
+            research,
+        } => bench(quick, only.as_deref(), no_learners, research),
         Command::Plot {
             file,
             output,
@@ -1276,13 +1281,19 @@ fn peak_rss() -> Option<u64> {
     Some(kb * 1024)
 }
 
-fn bench(quick: bool, only: Option<&str>, no_learners: bool) -> Result<(), Failure> {
+fn bench(
+    quick: bool,
+    only: Option<&str>,
+    no_learners: bool,
+    research: bool,
+) -> Result<(), Failure> {
     let start = std::time::Instant::now();
     let now = move || start.elapsed().as_secs_f64();
     let sel = burnin::bench::Selection {
         quick,
         only,
         no_learners,
+        research,
     };
     emit(&(burnin::bench::report("native", &now, &peak_rss, sel) + "\n"))
 }
