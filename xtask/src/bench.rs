@@ -16,6 +16,7 @@ use crate::{Result, browser_dir, build_wasm, cargo, chromium, output, root, step
 /// As `burnin::bench` (xtask has no dependency on the core).
 const RESEARCH_EPISODES: u64 = 1000;
 const RESEARCH_SECONDS: f64 = 15.0;
+const RESEARCH_MIN_SECONDS: f64 = 2.0;
 
 /// Finds a figure by the start of its name in `burnin bench` JSON: its
 /// best and median values and its note.
@@ -457,7 +458,7 @@ pub fn bench(quick: bool) -> Result<()> {
     // Research scale: each learner in its own process and its own page.
     let _ = writeln!(
         md,
-        "\n## Research scale (S=500, A=10, H=50, 10 successors per row, a table per step, one seed; episodes/s)\n\nEach learner ran its first {RESEARCH_EPISODES} episodes, or as many as it did in {RESEARCH_SECONDS} s, natively in a process of its own (`burnin bench --research --only KEY`) and then in a page of its own; set-up (the sampler's tables and V*) is not timed. Memory is the native process's peak RSS and the page's wasm heap.\n\n| learner | native | native peak RSS | wasm | wasm heap | native/wasm | episodes timed (native; wasm) |\n|---|---|---|---|---|---|---|"
+        "\n## Research scale (S=500, A=10, H=50, 10 successors per row, a table per step, one seed; episodes/s)\n\nEach learner ran its first {RESEARCH_EPISODES} episodes, or as many as it did in {RESEARCH_SECONDS} s, natively in a process of its own (`burnin bench --research --only KEY`) and then in a page of its own; a learner done in under {RESEARCH_MIN_SECONDS} s ran again, up to 5 runs, and its best run counts; set-up (the sampler's tables and V*) is not timed. Memory is the native process's peak RSS and the page's wasm heap.\n\n| learner | native | native peak RSS | wasm | wasm heap | native/wasm | episodes timed (native; wasm) |\n|---|---|---|---|---|---|---|"
     );
     for row in research.lines().filter(|l| !l.is_empty()) {
         let r: Vec<&str> = row.split('\t').collect();
