@@ -51,18 +51,29 @@ fn figure(name: &str, unit: &str, mut rates: Vec<f64>, note: String) -> Figure {
     }
 }
 
-/// The solver workload's model.
-pub fn solve_model() -> crate::Mdp {
+/// A random sparse model of the benchmarks, Bernoulli rewards, seed 1.
+fn garnet(
+    states: usize,
+    actions: usize,
+    successors: usize,
+    horizon: usize,
+    time_dependent: bool,
+) -> crate::Mdp {
     Garnet {
-        states: 2000,
-        actions: 8,
-        successors: 10,
-        horizon: 50,
-        time_dependent: true,
+        states,
+        actions,
+        successors,
+        horizon,
+        time_dependent,
         bernoulli: true,
     }
     .generate(1)
     .expect("valid parameters")
+}
+
+/// The solver workload's model.
+pub fn solve_model() -> crate::Mdp {
+    garnet(2000, 8, 10, 50, true)
 }
 
 /// Solver throughput (entries/s), the streaming rate (bytes/s) of a plain
@@ -142,16 +153,7 @@ fn run_in_chunks(ctx: &Arc<Point>) -> Vec<RunRecord> {
 
 /// The learning workload's experiment: one learner, one seed, K episodes.
 pub fn learn_experiment(algorithm: Algorithm, episodes: u64) -> Experiment {
-    let model = Garnet {
-        states: 20,
-        actions: 4,
-        successors: 5,
-        horizon: 20,
-        time_dependent: false,
-        bernoulli: true,
-    }
-    .generate(1)
-    .expect("valid parameters");
+    let model = garnet(20, 4, 5, 20, false);
     Experiment {
         name: "bench".into(),
         model,
@@ -268,16 +270,7 @@ pub fn floor_figures(now: &dyn Fn() -> f64, episodes: u64) -> Vec<Figure> {
 /// Bernoulli rewards (`burnin generate random --states 500 --actions 10
 /// --successors 10 --horizon 50 --time-dependent --seed 1` writes it).
 pub fn research_model() -> crate::Mdp {
-    Garnet {
-        states: 500,
-        actions: 10,
-        successors: 10,
-        horizon: 50,
-        time_dependent: true,
-        bernoulli: true,
-    }
-    .generate(1)
-    .expect("valid parameters")
+    garnet(500, 10, 10, 50, true)
 }
 
 /// Episodes of each research-scale run …

@@ -596,26 +596,9 @@ mod tests {
         assert_eq!(tick_label(100.0), "100");
     }
 
-    #[test]
-    fn pixels_and_data_map_back_and_forth() {
-        for log in [false, true] {
-            let f = Frame {
-                x0: 50.0,
-                x1: 450.0,
-                y0: 20.0,
-                y1: 300.0,
-                lx0: 0.0,
-                lx1: 3.0,
-                ly0: 0.0,
-                ly1: 2.0,
-                log,
-            };
-            for x in [1.0, 2.5, 30.0, 999.0] {
-                let back = f.x_at(f.px(x));
-                assert!((back - x).abs() < 1e-9 * x, "{log} {x} {back}");
-            }
-        }
-        let f = Frame {
+    /// A frame of 400×280 pixels showing 10⁰…10³ by 10⁰…10² (or 0…3 by 0…2).
+    fn frame(log: bool) -> Frame {
+        Frame {
             x0: 50.0,
             x1: 450.0,
             y0: 20.0,
@@ -624,8 +607,20 @@ mod tests {
             lx1: 3.0,
             ly0: 0.0,
             ly1: 2.0,
-            log: true,
-        };
+            log,
+        }
+    }
+
+    #[test]
+    fn pixels_and_data_map_back_and_forth() {
+        for log in [false, true] {
+            let f = frame(log);
+            for x in [1.0, 2.5, 30.0, 999.0] {
+                let back = f.x_at(f.px(x));
+                assert!((back - x).abs() < 1e-9 * x, "{log} {x} {back}");
+            }
+        }
+        let f = frame(true);
         assert_eq!(f.px(1.0), 50.0);
         assert_eq!(f.px(1000.0), 450.0);
         assert_eq!(f.py(100.0), 20.0);
