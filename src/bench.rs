@@ -230,6 +230,11 @@ pub fn floor_figures(now: &dyn Fn() -> f64, episodes: u64) -> Vec<Figure> {
     let m = learn_experiment(Algorithm::new(AlgorithmKind::Uniform), episodes).model;
     let sampler = Sampler::new(&m);
     let (s_n, a_n, h_n) = (m.n_states(), m.n_actions(), m.horizon());
+    // A fixed policy that still visits every action, read from a table as
+    // a learner's greedy policy is.
+    let policy: Vec<u32> = (0..h_n * s_n)
+        .map(|i| ((i / s_n + i % s_n) % a_n) as u32)
+        .collect();
     let (mut rates, mut spent, mut check) = (Vec::new(), 0.0, 0.0);
     while rates.is_empty() || (spent < LEARN_SECONDS && rates.len() < LEARN_REPS) {
         let mut rng = LearnRng::seed_from_u64(1);
@@ -239,8 +244,7 @@ pub fn floor_figures(now: &dyn Fn() -> f64, episodes: u64) -> Vec<Figure> {
         for _ in 0..episodes {
             let mut s = sampler.start(&mut rng);
             for h in 0..h_n {
-                // A fixed policy that still visits every action.
-                let a = (h + s) % a_n;
+                let a = policy[h * s_n + s] as usize;
                 let row = s * a_n + a;
                 total += reward(&mut rng, m.step(h).reward(row));
                 visits[h * s_n + s] += 1;

@@ -27,26 +27,30 @@ use crate::model::{Mdp, Reward};
 pub struct Sampler {
     tables: Vec<AliasTable>,
     stationary: bool,
-    start: AliasRow,
+    start: Vec<Slot>,
 }
 
-/// All rows of one step table, in the model's CSR layout.
+/// All rows of one step table, in the model's CSR layout: row r's columns
+/// are `slots[offsets[r]..offsets[r + 1]]`.
 #[derive(Debug, Clone)]
 struct AliasTable {
     offsets: Vec<u32>,
-    next: Vec<u32>,
-    /// Probability of keeping column i (else its alias).
-    keep: Vec<f64>,
-    /// Index (within the row) of column i's alias.
-    alias: Vec<u32>,
+    slots: Vec<Slot>,
 }
 
-/// One distribution over a small set of outcomes.
-#[derive(Debug, Clone)]
-struct AliasRow {
-    outcome: Vec<u32>,
-    keep: Vec<f64>,
-    alias: Vec<u32>,
+/// One column of an alias row, with both of its outcomes resolved: a draw
+/// reads one 16-byte slot and picks between two values already loaded, so
+/// the pick is a conditional move rather than a branch the processor must
+/// guess (which of the two it is, is a coin flip for every row whose
+/// probabilities are not all equal) followed by a second, dependent load.
+#[derive(Debug, Clone, Copy)]
+struct Slot {
+    /// Probability of keeping the column's own outcome (else its alias's).
+    keep: f64,
+    /// The column's own outcome.
+    own: u32,
+    /// The outcome of the column's alias.
+    alias: u32,
 }
 
 /// Vose's construction for probabilities `p` (summing to 1 up to rounding):
@@ -80,16 +84,30 @@ fn build(p: &[f64]) -> (Vec<f64>, Vec<u32>) {
     (keep, alias)
 }
 
-#[inline]
-fn pick<R: Rng>(rng: &mut R, keep: &[f64], alias: &[u32]) -> usize {
-    let n = keep.len();
+/// The slots of one row over `outcomes` with probabilities `p`.
+fn slots(outcomes: &[u32], p: &[f64]) -> impl Iterator<Item = Slot> {
+    let (keep, alias) = build(p);
+    keep.into_iter()
+        .zip(alias)
+        .enumerate()
+        .map(|(i, (keep, a))| Slot {
+            keep,
+            own: outcomes[i],
+            alias: outcomes[a as usize],
+        })
+}
+
+/// One draw from a row: column ⌊u·n⌋ of a uniform u, kept when the
+/// fraction is below its keep probability.
+#[inline(always)]
+fn pick<R: Rng>(rng: &mut R, row: &[Slot]) -> usize {
+    let n = row.len();
     let u = rng.random::<f64>() * n as f64;
     let i = (u as usize).min(n - 1);
-    if u - (i as f64) < keep[i] {
-        i
-    } else {
-        alias[i] as usize
-    }
+    let slot = row[i];
+    let kept = u - (i as f64) < slot.keep;
+    // Both outcomes are loaded: a select, not a branch.
+    (if kept { slot.own } else { slot.alias }) as usize
 }
 
 impl Sampler {
@@ -99,19 +117,14 @@ impl Sampler {
             .iter()
             .map(|st| {
                 let (offsets, next, prob) = st.csr();
-                let mut keep = Vec::with_capacity(prob.len());
-                let mut alias = Vec::with_capacity(prob.len());
+                let mut table = Vec::with_capacity(prob.len());
                 for r in 0..offsets.len() - 1 {
                     let (lo, hi) = (offsets[r] as usize, offsets[r + 1] as usize);
-                    let (k, a) = build(&prob[lo..hi]);
-                    keep.extend(k);
-                    alias.extend(a);
+                    table.extend(slots(&next[lo..hi], &prob[lo..hi]));
                 }
                 AliasTable {
                     offsets: offsets.to_vec(),
-                    next: next.to_vec(),
-                    keep,
-                    alias,
+                    slots: table,
                 }
             })
             .collect();
@@ -119,32 +132,25 @@ impl Sampler {
             .filter(|&s| m.start()[s as usize] > 0.0)
             .collect();
         let p: Vec<f64> = support.iter().map(|&s| m.start()[s as usize]).collect();
-        let (keep, alias) = build(&p);
         Sampler {
             tables,
             stationary: m.is_stationary(),
-            start: AliasRow {
-                outcome: support,
-                keep,
-                alias,
-            },
+            start: slots(&support, &p).collect(),
         }
     }
 
     /// A start state drawn from ρ.
     #[inline]
     pub fn start<R: Rng>(&self, rng: &mut R) -> usize {
-        let i = pick(rng, &self.start.keep, &self.start.alias);
-        self.start.outcome[i] as usize
+        pick(rng, &self.start)
     }
 
     /// A next state drawn from P_h(·|row), row = s·A + a.
-    #[inline]
+    #[inline(always)]
     pub fn next<R: Rng>(&self, rng: &mut R, h: usize, row: usize) -> usize {
         let t = &self.tables[if self.stationary { 0 } else { h }];
         let (lo, hi) = (t.offsets[row] as usize, t.offsets[row + 1] as usize);
-        let i = pick(rng, &t.keep[lo..hi], &t.alias[lo..hi]);
-        t.next[lo + i] as usize
+        pick(rng, &t.slots[lo..hi])
     }
 }
 
@@ -336,13 +342,9 @@ fn ln_gamma_draw<R: Rng>(rng: &mut R, shape: f64) -> f64 {
 pub fn reward<R: Rng>(rng: &mut R, r: &Reward) -> f64 {
     match *r {
         Reward::Fixed(x) => x,
-        Reward::Bernoulli(p) => {
-            if rng.random::<f64>() < p {
-                1.0
-            } else {
-                0.0
-            }
-        }
+        // As a number, not a branch: whether a draw is a success is a coin
+        // flip no branch predictor can learn.
+        Reward::Bernoulli(p) => f64::from(u8::from(rng.random::<f64>() < p)),
         Reward::Uniform(lo, hi) => lo + (hi - lo) * rng.random::<f64>(),
         Reward::Beta(a, b) => beta(rng, a, b),
     }
