@@ -289,10 +289,25 @@ pub fn solution_json(m: &Mdp, sol: &Solution) -> String {
 
 /// Exact start values Σ_s ρ(s)·V^π_0(s) of the policies learners follow,
 /// with reusable buffers (no allocation per call).
+///
+/// A learner's next policy usually differs from its last in a few states,
+/// so the values of the last policy that follows a greedy table (with or
+/// without ε) are kept, V_h for every step, and a new one is evaluated
+/// from them: step h is recomputed only where the greedy action changed,
+/// or wholly when some V_{h+1} changed. Every recomputed value is the same
+/// arithmetic on the same inputs as a full backward induction, and every
+/// kept one is a value such a pass would recompute from unchanged inputs,
+/// so the result is bit for bit the full pass's.
 #[derive(Debug, Clone)]
 pub struct Evaluator {
     v: Vec<f64>,
     v_next: Vec<f64>,
+    /// V_h(s) of the last greedy policy evaluated, `[h·S + s]`, h ≤ H (V_H = 0).
+    values: Vec<f64>,
+    /// That policy's greedy table and its ε (`None` before the first).
+    last: Option<(Vec<u32>, f64)>,
+    /// States recomputed and states a full pass would compute, since made.
+    work: (u64, u64),
 }
 
 impl Evaluator {
@@ -300,6 +315,9 @@ impl Evaluator {
         Evaluator {
             v: vec![0.0; m.n_states()],
             v_next: vec![0.0; m.n_states()],
+            values: vec![0.0; (m.horizon() + 1) * m.n_states()],
+            last: None,
+            work: (0, 0),
         }
     }
 
@@ -308,10 +326,19 @@ impl Evaluator {
     /// deterministic; `greedy` = None: uniform, ε ignored).
     pub fn value(&mut self, m: &Mdp, greedy: Option<&[u32]>, epsilon: f64) -> f64 {
         match greedy {
-            Some(g) if epsilon == 0.0 => self.deterministic(m, g),
-            Some(g) => self.mixed(m, Some(g), 1.0 - epsilon, epsilon),
-            None => self.mixed(m, None, 0.0, 1.0),
+            Some(g) => self.greedy(m, g, epsilon),
+            None => {
+                let w_each = 1.0 / m.n_actions() as f64;
+                self.backward(m, |_, _, q| mixture(q, None, 0.0, w_each))
+            }
         }
+    }
+
+    /// (states recomputed, states a full backward pass would have computed)
+    /// over every greedy evaluation so far: what keeping the last policy's
+    /// values saves.
+    pub fn work(&self) -> (u64, u64) {
+        self.work
     }
 
     /// V^π of any Markov policy, `probs[(h·S + s)·A + a]` = π_h(a|s); an
@@ -330,33 +357,58 @@ impl Evaluator {
         })
     }
 
-    /// V^π of a deterministic policy: one sparse row per (h, s).
-    fn deterministic(&mut self, m: &Mdp, g: &[u32]) -> f64 {
-        let s_n = m.n_states();
-        self.backward(m, |h, s, q| q.of(g[h * s_n + s] as usize))
-    }
-
-    /// V^π of the mixture that takes `greedy` with weight `w_greedy` and each
-    /// action with weight `w_random`/A: every action's Q once per (h, s).
-    fn mixed(&mut self, m: &Mdp, greedy: Option<&[u32]>, w_greedy: f64, w_random: f64) -> f64 {
-        let (s_n, a_n) = (m.n_states(), m.n_actions());
-        let w_each = w_random / a_n as f64;
-        self.backward(m, |h, s, q| {
-            let mut acc = 0.0;
-            let mut q_greedy = 0.0;
-            let g = greedy.map(|g| g[h * s_n + s] as usize);
-            for a in 0..a_n {
-                let qa = q.of(a);
-                acc += w_each * qa;
-                if Some(a) == g {
-                    q_greedy = qa;
+    /// V^π of the policy that follows `g` with probability 1 − ε, from the
+    /// values of the last such policy where they still hold.
+    fn greedy(&mut self, m: &Mdp, g: &[u32], epsilon: f64) -> f64 {
+        let (h_n, s_n, a_n) = (m.horizon(), m.n_states(), m.n_actions());
+        let gamma = m.discount();
+        let (w_greedy, w_each) = (1.0 - epsilon, epsilon / a_n as f64);
+        let last = match self.last.take() {
+            // The same ε: the kept values are this family's.
+            Some((last, e)) if e.to_bits() == epsilon.to_bits() => Some(last),
+            _ => None,
+        };
+        let mut below_moved = last.is_none();
+        for h in (0..h_n).rev() {
+            let step = m.step(h);
+            let (offsets, next, prob) = step.csr();
+            let (now, later) = self.values.split_at_mut((h + 1) * s_n);
+            let q = RowValues {
+                rewards: step.mean_rewards(),
+                offsets,
+                next,
+                prob,
+                v_next: &later[..s_n],
+                gamma,
+                actions: a_n,
+                base: 0,
+            };
+            let v_h = &mut now[h * s_n..];
+            let g_h = &g[h * s_n..(h + 1) * s_n];
+            let mut moved = false;
+            let mut done = 0;
+            for (s, (x, &a)) in v_h.iter_mut().zip(g_h).enumerate() {
+                if below_moved || last.as_ref().is_none_or(|l| l[h * s_n + s] != a) {
+                    let q = RowValues { base: s * a_n, ..q };
+                    let y = if epsilon == 0.0 {
+                        q.of(a as usize)
+                    } else {
+                        mixture(&q, Some(a as usize), w_greedy, w_each)
+                    };
+                    moved |= y.to_bits() != x.to_bits();
+                    *x = y;
+                    done += 1;
                 }
             }
-            if g.is_some() && w_greedy > 0.0 {
-                acc += w_greedy * q_greedy;
-            }
-            acc
-        })
+            self.work.0 += done;
+            below_moved = moved;
+        }
+        self.work.1 += (h_n * s_n) as u64;
+        let mut kept = last.unwrap_or_default();
+        kept.clear();
+        kept.extend_from_slice(g);
+        self.last = Some((kept, epsilon));
+        start_value(m, &self.values[..s_n])
     }
 
     /// Backward induction of a policy's value: V_h(s) = `value_of(h, s, q)`,
@@ -381,6 +433,7 @@ impl Evaluator {
                 prob,
                 v_next: &self.v_next,
                 gamma,
+                actions: a_n,
                 base: 0,
             };
             for (s, x) in self.v.iter_mut().enumerate() {
@@ -391,6 +444,25 @@ impl Evaluator {
         }
         start_value(m, &self.v_next)
     }
+}
+
+/// The value of the mixture that takes action `greedy` with weight
+/// `w_greedy` and each action with weight `w_each`: every action's Q once.
+#[inline]
+fn mixture(q: &RowValues, greedy: Option<usize>, w_greedy: f64, w_each: f64) -> f64 {
+    let mut acc = 0.0;
+    let mut q_greedy = 0.0;
+    for a in 0..q.actions() {
+        let qa = q.of(a);
+        acc += w_each * qa;
+        if Some(a) == greedy {
+            q_greedy = qa;
+        }
+    }
+    if greedy.is_some() && w_greedy > 0.0 {
+        acc += w_greedy * q_greedy;
+    }
+    acc
 }
 
 /// The action values of one state at one step, from the next step's values.
@@ -481,11 +553,19 @@ struct RowValues<'a> {
     prob: &'a [f64],
     v_next: &'a [f64],
     gamma: f64,
+    /// A, the rows of a state.
+    actions: usize,
     /// The state's first row, s·A.
     base: usize,
 }
 
 impl RowValues<'_> {
+    /// A.
+    #[inline]
+    fn actions(&self) -> usize {
+        self.actions
+    }
+
     /// Q(s, a) = r̄(s,a) + γ·P(·|s,a)·V_{h+1}.
     #[inline]
     fn of(&self, a: usize) -> f64 {
