@@ -775,3 +775,42 @@ fn the_version_names_the_build_that_results_record() {
     let v: serde_json::Value = serde_json::from_str(&out.stdout).unwrap();
     assert_eq!(v["build"], build.as_str());
 }
+
+/// `burnin run` times each learner's first run while its other threads
+/// start on the rest, and continues the timed runs rather than starting
+/// them again: the results (every learner, seed and sweep point, 1 and 2
+/// threads) are the bytes of a run that skips the estimate (`--no-budget`),
+/// the build stamp aside. Same file and seed, same numbers: the project's
+/// reproducibility rule.
+#[test]
+fn timing_a_run_before_it_goes_on_changes_none_of_its_numbers() {
+    let d = Scratch::new("calibrated");
+    let f = d.file(
+        "sweep.json",
+        r#"{"format": "burnin-experiment", "version": 1, "episodes": 3000, "seeds": 3, "seed": 9,
+            "generator": {"kind": "random", "states": 6, "actions": 3, "successors": 3, "horizon": 5},
+            "sweep": {"parameter": "states", "values": [4, 8]},
+            "learners": [{"algorithm": "mvp"}, {"algorithm": "ucbvi-hoeffding"}, {"algorithm": "q-ucb-hoeffding"}]}"#,
+    );
+    let strip = |s: &str| -> serde_json::Value {
+        let mut v: serde_json::Value = serde_json::from_str(s).unwrap();
+        v["build"] = serde_json::Value::Null;
+        v
+    };
+    let plain = burnin(&["run", "--json", "--no-budget", "--threads", "1", p(&f)]);
+    assert_eq!(plain.code, 0, "{}", plain.stderr);
+    let plain = strip(&plain.stdout);
+    for threads in ["1", "2"] {
+        let r = burnin(&[
+            "run",
+            "--json",
+            "--budget",
+            "60",
+            "--threads",
+            threads,
+            p(&f),
+        ]);
+        assert_eq!(r.code, 0, "{}", r.stderr);
+        assert_eq!(strip(&r.stdout), plain, "{threads} threads");
+    }
+}

@@ -73,12 +73,33 @@ pub fn calibrate(
     per_run: f64,
     stop: &dyn Fn() -> bool,
 ) -> Calibration {
+    calibrate_keeping(points, now, per_run, stop).0
+}
+
+/// The first run of learner `li` at a point: the run calibration times.
+pub fn calibration_run(points: &[Arc<Point>], li: usize) -> usize {
+    li * points[0].exp.seeds as usize
+}
+
+/// A run calibration timed, with its (point, run index).
+pub type TimedRun = ((usize, usize), super::Run);
+
+/// [`calibrate`], keeping the runs it timed as they are, `((point, run
+/// index), run)`: a run continued from there gives the bits the same run
+/// started afresh gives, so a front end that goes on to run the experiment
+/// loses none of the calibration's episodes.
+pub fn calibrate_keeping(
+    points: &[Arc<Point>],
+    now: &dyn Fn() -> f64,
+    per_run: f64,
+    stop: &dyn Fn() -> bool,
+) -> (Calibration, Vec<TimedRun>) {
     let learners = points[0].exp.learners.len();
     let mut per_point = vec![vec![None; learners]; points.len()];
     let mut shown = Vec::new();
+    let mut runs = Vec::new();
     for (rank, &p) in by_weight(points).iter().enumerate() {
         let ctx = &points[p];
-        let seeds = ctx.exp.seeds as usize;
         for (li, spec) in ctx.exp.learners.iter().enumerate() {
             let mut cost = LearnerCost {
                 label: spec.label.clone(),
@@ -86,7 +107,8 @@ pub fn calibrate(
                 episodes: 0,
             };
             if spec.guest().is_none() && !stop() {
-                let mut run = super::Run::new(Arc::clone(ctx), li * seeds);
+                let index = calibration_run(points, li);
+                let mut run = super::Run::new(Arc::clone(ctx), index);
                 let start = now();
                 let mut chunk = 1;
                 loop {
@@ -102,6 +124,7 @@ pub fn calibrate(
                     }
                     chunk *= 2;
                 }
+                runs.push(((p, index), run));
             }
             per_point[p][li] = cost.seconds_per_episode;
             if rank == 0 {
@@ -109,10 +132,11 @@ pub fn calibrate(
             }
         }
     }
-    Calibration {
+    let cal = Calibration {
         per_point,
         learners: shown,
-    }
+    };
+    (cal, runs)
 }
 
 /// The time and memory of the runs `jobs` ((point, run) pairs, as

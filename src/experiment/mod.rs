@@ -19,7 +19,8 @@ mod spec;
 
 pub use draws::draw_stream;
 pub use estimate::{
-    Calibration, Estimate, LearnerCost, bytes_words, calibrate, duration_words, estimate,
+    Calibration, Estimate, LearnerCost, TimedRun, bytes_words, calibrate, calibrate_keeping,
+    calibration_run, duration_words, estimate,
 };
 pub use shard::{MAX_SHARDS, SHARD_FORMAT, SHARD_VERSION, ShardFile, merge, text_digest};
 

@@ -660,22 +660,30 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     let threads = threads
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
         .clamp(1, jobs.len().max(1));
-    if !matches!(o.budget, Budget::Unchecked) {
+    let over_budget = |e: &burnin::experiment::Estimate, m: f64| {
+        Failure::Io(format!(
+            "this run is estimated to take {}, over the budget of {m} min; give a larger --budget, split it with --shard (docs/array-jobs.md), or --no-budget to run it anyway",
+            e.words()
+        ))
+    };
+    if let Budget::EstimateOnly = o.budget {
         let e = estimate_jobs(&points, &jobs, threads);
-        let line = format!("estimate: {}", e.words());
-        match o.budget {
-            Budget::EstimateOnly if o.json => {
-                return emit(&(serde_json::to_string_pretty(&e).expect("finite estimate") + "\n"));
-            }
-            Budget::EstimateOnly => return emit(&format!("{line}\n")),
-            Budget::Minutes(m) if e.seconds > 60.0 * m => {
-                return Err(Failure::Io(format!(
-                    "this run is estimated to take {}, over the budget of {m} min; give a larger --budget, split it with --shard (docs/array-jobs.md), or --no-budget to run it anyway",
-                    e.words()
-                )));
-            }
-            _ => {}
+        if o.json {
+            return emit(&(serde_json::to_string_pretty(&e).expect("finite estimate") + "\n"));
         }
+        return emit(&format!("estimate: {}\n", e.words()));
+    }
+    let budget = match o.budget {
+        Budget::Minutes(m) => Some(m),
+        _ => None,
+    };
+    if budget.is_some() {
+        // Memory is counted from sizes, before anything runs.
+        let unmeasured = burnin::experiment::Calibration {
+            per_point: vec![Vec::new(); points.len()],
+            learners: Vec::new(),
+        };
+        let e = burnin::experiment::estimate(&points, &jobs, &unmeasured, threads);
         if let Some(free) = free_memory().filter(|&free| e.bytes > free) {
             return Err(Failure::Io(format!(
                 "this run is estimated to need {}, more than the {} of memory free; run it in shards (--shard) or with fewer seeds, or --no-budget to try anyway",
@@ -683,52 +691,143 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
                 burnin::experiment::bytes_words(free)
             )));
         }
-        if e.seconds >= 10.0 {
-            let _ = writeln!(std::io::stderr(), "{line}");
-        }
     }
+    // With a budget, the time is measured while the run starts: one thread
+    // times each learner's first run (`calibrate_keeping`) while the others
+    // take the rest, and the timed runs are then continued, not started
+    // again; a run over the budget is stopped before anything is written.
+    // The jobs calibration times are set aside for it.
+    let reserved: Vec<bool> = jobs
+        .iter()
+        .map(|&(p, i)| {
+            let e = &points[p].exp;
+            let li = i / e.seeds as usize;
+            budget.is_some()
+                && e.learners[li].guest().is_none()
+                && i == burnin::experiment::calibration_run(&points, li)
+        })
+        .collect();
+    let calibrating = AtomicBool::new(reserved.iter().any(|&r| r));
+    let started = Mutex::new(Vec::<(usize, usize, Run)>::new());
+    let refused = Mutex::new(None::<Failure>);
     let next = AtomicUsize::new(0);
     let done_episodes = AtomicU64::new(0);
     let records = Mutex::new(Vec::with_capacity(jobs.len()));
     let fault = Mutex::new(None);
     let stop = AtomicBool::new(false);
     let progress = Progress::new(jobs.iter().map(|&(p, _)| points[p].exp.episodes).sum());
-    std::thread::scope(|scope| {
-        for _ in 0..threads {
-            scope.spawn(|| {
-                'jobs: while !stop.load(Ordering::Relaxed) {
-                    let j = next.fetch_add(1, Ordering::Relaxed);
-                    let Some(&(p, i)) = jobs.get(j) else { break };
-                    let mut r = Run::new(Arc::clone(&points[p]), i);
-                    const CHUNK: u64 = 512;
-                    loop {
-                        let before = r.episodes_done();
-                        let finished = match r.advance(CHUNK) {
-                            Ok(f) => f,
-                            Err(f) => {
-                                stop.store(true, Ordering::Relaxed);
-                                fault.lock().expect("no thread panicked").get_or_insert(f);
-                                break 'jobs;
-                            }
-                        };
-                        let step = r.episodes_done() - before;
-                        progress.show(done_episodes.fetch_add(step, Ordering::Relaxed) + step);
-                        if finished {
-                            break;
-                        }
-                        if stop.load(Ordering::Relaxed) {
-                            break 'jobs;
-                        }
-                    }
-                    records
-                        .lock()
-                        .expect("no thread panicked")
-                        .push((j, p, r.finish()));
+    // The next run to work on: one calibration started or set aside, else
+    // a job nobody has taken; None when there is none left (waiting while
+    // calibration may still hand runs over).
+    let take = || -> Option<(usize, usize, Run)> {
+        loop {
+            if let Some(r) = started.lock().expect("no thread panicked").pop() {
+                return Some(r);
+            }
+            loop {
+                let j = next.fetch_add(1, Ordering::Relaxed);
+                let Some(&(p, i)) = jobs.get(j) else { break };
+                if !reserved[j] {
+                    return Some((j, p, Run::new(Arc::clone(&points[p]), i)));
                 }
+            }
+            // No fresh job left: wait for the runs calibration hands over.
+            if !calibrating.load(Ordering::Acquire) {
+                return started.lock().expect("no thread panicked").pop();
+            }
+            if stop.load(Ordering::Relaxed) {
+                return None;
+            }
+            std::thread::sleep(std::time::Duration::from_millis(1));
+        }
+    };
+    let work = || {
+        'jobs: while !stop.load(Ordering::Relaxed) {
+            let Some((j, p, mut r)) = take() else { break };
+            const CHUNK: u64 = 512;
+            loop {
+                let before = r.episodes_done();
+                let finished = match r.advance(CHUNK) {
+                    Ok(f) => f,
+                    Err(f) => {
+                        stop.store(true, Ordering::Relaxed);
+                        fault.lock().expect("no thread panicked").get_or_insert(f);
+                        break 'jobs;
+                    }
+                };
+                let step = r.episodes_done() - before;
+                progress.show(done_episodes.fetch_add(step, Ordering::Relaxed) + step);
+                if finished {
+                    break;
+                }
+                if stop.load(Ordering::Relaxed) {
+                    break 'jobs;
+                }
+            }
+            records
+                .lock()
+                .expect("no thread panicked")
+                .push((j, p, r.finish()));
+        }
+    };
+    let (tx, rx) = std::sync::mpsc::channel();
+    std::thread::scope(|scope| {
+        let calibrate = calibrating.load(Ordering::Relaxed);
+        if calibrate {
+            scope.spawn(|| {
+                let (cal, runs) = calibrate_timed(&points);
+                let _ = tx.send(cal);
+                let mut mine = Vec::new();
+                let mut timed = runs;
+                for (j, &(p, i)) in jobs.iter().enumerate() {
+                    if !reserved[j] {
+                        continue;
+                    }
+                    let run = match timed.iter().position(|(k, _)| *k == (p, i)) {
+                        Some(at) => timed.swap_remove(at).1,
+                        // Not reached before the deadline.
+                        None => Run::new(Arc::clone(&points[p]), i),
+                    };
+                    let step = run.episodes_done();
+                    progress.show(done_episodes.fetch_add(step, Ordering::Relaxed) + step);
+                    mine.push((j, p, run));
+                }
+                started.lock().expect("no thread panicked").extend(mine);
+                calibrating.store(false, Ordering::Release);
+                work();
             });
+        }
+        for _ in 0..threads - usize::from(calibrate) {
+            scope.spawn(work);
+        }
+        if calibrate {
+            let cal = rx.recv_timeout(CALIBRATION_DEADLINE + std::time::Duration::from_secs(1));
+            let e = match cal {
+                Ok(cal) => burnin::experiment::estimate(&points, &jobs, &cal, threads),
+                Err(_) => slow_estimate(
+                    &points,
+                    &jobs,
+                    threads,
+                    (CALIBRATION_DEADLINE + std::time::Duration::from_secs(1)).as_secs_f64(),
+                ),
+            };
+            match budget {
+                Some(m) if e.seconds > 60.0 * m => {
+                    stop.store(true, Ordering::Relaxed);
+                    *refused.lock().expect("no thread panicked") = Some(over_budget(&e, m));
+                }
+                _ if e.seconds >= 10.0 => {
+                    progress.clear();
+                    let _ = writeln!(std::io::stderr(), "estimate: {}", e.words());
+                }
+                _ => {}
+            }
         }
     });
     progress.clear();
+    if let Some(f) = refused.into_inner().expect("no thread panicked") {
+        return Err(f);
+    }
     if let Some(f) = fault.into_inner().expect("no thread panicked") {
         return Err(Failure::Guest(format!(
             "{f}\nno results were written; the other runs were stopped"
@@ -777,43 +876,61 @@ enum Budget {
     Minutes(f64),
 }
 
-/// Measures the learners (at most ~2 s in all; a learner whose first
-/// episode outlasts that is counted at the time it has taken, and the
-/// estimate says "at least") and estimates the `jobs` on `threads` threads.
+/// How long calibration may take before the estimate is made without
+/// the learners it has not reached (at their nearest heavier point's cost).
+const CALIBRATION_DEADLINE: std::time::Duration = std::time::Duration::from_secs(2);
+
+/// Times the learners (`calibrate_keeping`, at most ~[`CALIBRATION_DEADLINE`]
+/// in all, a learner's first episode excepted), keeping the runs it timed.
+fn calibrate_timed(
+    points: &[std::sync::Arc<burnin::experiment::Point>],
+) -> (
+    burnin::experiment::Calibration,
+    Vec<burnin::experiment::TimedRun>,
+) {
+    let pairs = points.len() * points[0].exp.learners.len();
+    let per_run = (1.0 / pairs as f64).clamp(0.01, 0.1);
+    let start = std::time::Instant::now();
+    let now = || start.elapsed().as_secs_f64();
+    let stop = || start.elapsed() > CALIBRATION_DEADLINE;
+    burnin::experiment::calibrate_keeping(points, &now, per_run, &stop)
+}
+
+/// The estimate when one episode alone outlasted calibration's deadline:
+/// every learner counted at `spent` seconds per episode, a lower bound for
+/// the one being measured ("at least").
+fn slow_estimate(
+    points: &[std::sync::Arc<burnin::experiment::Point>],
+    jobs: &[(usize, usize)],
+    threads: usize,
+    spent: f64,
+) -> burnin::experiment::Estimate {
+    let n = points[0].exp.learners.len();
+    let cal = burnin::experiment::Calibration {
+        per_point: vec![vec![Some(spent); n]; points.len()],
+        learners: Vec::new(),
+    };
+    let mut e = burnin::experiment::estimate(points, jobs, &cal, threads);
+    e.at_least = true;
+    e
+}
+
+/// Measures the learners and estimates the `jobs` on `threads` threads
+/// (`--estimate`: nothing else runs).
 fn estimate_jobs(
     points: &[std::sync::Arc<burnin::experiment::Point>],
     jobs: &[(usize, usize)],
     threads: usize,
 ) -> burnin::experiment::Estimate {
-    use burnin::experiment::{Calibration, calibrate, estimate};
-    use std::time::{Duration, Instant};
-    const DEADLINE: Duration = Duration::from_secs(2);
-    let pairs = points.len() * points[0].exp.learners.len();
-    let per_run = (1.0 / pairs as f64).clamp(0.01, 0.1);
     let (tx, rx) = std::sync::mpsc::channel();
     let pts = points.to_vec();
-    let start = Instant::now();
+    let start = std::time::Instant::now();
     std::thread::spawn(move || {
-        let now = || start.elapsed().as_secs_f64();
-        let stop = || start.elapsed() > DEADLINE;
-        let _ = tx.send(calibrate(&pts, &now, per_run, &stop));
+        let _ = tx.send(calibrate_timed(&pts).0);
     });
-    match rx.recv_timeout(DEADLINE + Duration::from_secs(1)) {
-        Ok(cal) => estimate(points, jobs, &cal, threads),
-        Err(_) => {
-            // One episode alone took longer than the deadline: every
-            // learner is counted at that time per episode, a lower bound
-            // for the one being measured.
-            let spent = start.elapsed().as_secs_f64();
-            let n = points[0].exp.learners.len();
-            let cal = Calibration {
-                per_point: vec![vec![Some(spent); n]; points.len()],
-                learners: Vec::new(),
-            };
-            let mut e = estimate(points, jobs, &cal, threads);
-            e.at_least = true;
-            e
-        }
+    match rx.recv_timeout(CALIBRATION_DEADLINE + std::time::Duration::from_secs(1)) {
+        Ok(cal) => burnin::experiment::estimate(points, jobs, &cal, threads),
+        Err(_) => slow_estimate(points, jobs, threads, start.elapsed().as_secs_f64()),
     }
 }
 
