@@ -18,6 +18,10 @@
 //                                learner module (examples/uniform.mjs) against the
 //                                built-in uniform learner in the page, in rounds
 //   BURNIN_GUEST_OUT             where to write one TSV line per round: guest rate, built-in rate
+//   BURNIN_POOL_EXPERIMENT       an experiment's text (its model inline): run it with the
+//                                page's own runExperiment on 1 worker and on 2, in
+//                                interleaved pairs after a warm-up run
+//   BURNIN_POOL_OUT              where to write one TSV line per pair: ms on 1, ms on 2
 //   BURNIN_RESEARCH              learners to run at research scale (comma-separated keys),
 //                                each natively (`burnin bench --research --only KEY`, its
 //                                own process) and then in a page of its own (its own heap)
@@ -81,6 +85,25 @@ if (env.BURNIN_GUEST_MODEL) {
     console.error(`guest\t${r.guest}\t${r.builtin}`);
   }
   writeFileSync(env.BURNIN_GUEST_OUT, lines.join('\n') + '\n');
+}
+if (env.BURNIN_POOL_EXPERIMENT) {
+  const text = readFileSync(env.BURNIN_POOL_EXPERIMENT, 'utf8');
+  // From "Run" to the merged results, as the page's own run does it.
+  const timed = (workers) => page.evaluate(async ({ text, workers }) => {
+    const { runExperiment } = await import('./compute.js');
+    const t = performance.now();
+    const r = await runExperiment(text, null, workers).promise;
+    if (!r.json) throw new Error(`the pool's run failed: ${JSON.stringify(r).slice(0, 300)}`);
+    return performance.now() - t;
+  }, { text, workers });
+  await timed(2);
+  const lines = [];
+  for (let i = 0; i < Number(env.BURNIN_POOL_PAIRS || 5); i++) {
+    const row = [await timed(1), await timed(2)];
+    lines.push(row.join('\t'));
+    console.error(`pool\t${row.join('\t')}`);
+  }
+  writeFileSync(env.BURNIN_POOL_OUT, lines.join('\n') + '\n');
 }
 if (env.BURNIN_RESEARCH) {
   const lines = [];
