@@ -33,7 +33,7 @@ pub struct Ucbvi {
     counts: Vec<RowCounts>,
     /// 7·H·L·√(1/n) of each row, kept up to date as it is visited.
     hoeffding: Vec<f64>,
-    /// N'_h(y): visits to state y at step h, `[h·S + y]`.
+    /// N'_h(y): visits to state y at step h, `[h·S + y]` (Bernstein only).
     state_visits: Vec<u32>,
     q_prev: Vec<f64>,
     plan: Plan,
@@ -133,11 +133,13 @@ impl Learner for Ucbvi {
         self.stale.count(&mut self.counts[row], h, s, a, r, next);
         let n = self.counts[row].n as f64;
         self.hoeffding[row] = 7.0 * self.set.horizon as f64 * self.l * (1.0 / n).sqrt();
-        self.state_visits[h * self.set.states + s] += 1;
-        // The Bernstein bonus of the rows of step h − 1 that lead to s reads
-        // this count.
-        if self.bernstein && h > 0 {
-            self.stale.mark_users(h - 1, s);
+        if self.bernstein {
+            self.state_visits[h * self.set.states + s] += 1;
+            // The Bernstein bonus of the rows of step h − 1 that lead to s
+            // reads this count.
+            if h > 0 {
+                self.stale.mark_users(h - 1, s);
+            }
         }
     }
 
