@@ -20,7 +20,7 @@
 use rand::Rng;
 
 use super::{LearnRng, Learner, Plan, PolicyView, Setting};
-use crate::sample::{beta, gamma};
+use crate::sample::{Exponential, beta, gamma};
 
 pub struct Psrl {
     set: Setting,
@@ -33,7 +33,6 @@ pub struct Psrl {
     dense: Vec<u32>,
     successes: Vec<f64>,
     trials: Vec<f64>,
-    weights: Vec<f64>,
     plan: Plan,
 }
 
@@ -46,7 +45,6 @@ impl Psrl {
             dense: vec![0; set.states],
             successes: vec![0.0; set.rows()],
             trials: vec![0.0; set.rows()],
-            weights: vec![0.0; set.states],
             plan: Plan::new(&set),
         }
     }
@@ -57,7 +55,8 @@ impl Learner for Psrl {
         let set = self.set;
         let (counts, successes, trials, prior) =
             (&self.counts, &self.successes, &self.trials, self.prior);
-        let (weights, dense) = (&mut self.weights, &mut self.dense);
+        let dense = &mut self.dense;
+        let (exp, unit) = (Exponential::new(), prior == 1.0);
         // The sampled model is drawn row by row as the planner needs it; the
         // planner's own tie-breaking draws interleave with these, in a fixed order.
         self.plan.replan(&set, rng, |h, s, a, v_next, draw| {
@@ -67,10 +66,18 @@ impl Learner for Psrl {
             for &(next, k) in &counts[row] {
                 dense[next as usize] = k;
             }
-            let mut total = 0.0;
-            for (w, &k) in weights.iter_mut().zip(dense.iter()) {
-                *w = gamma(draw, prior + k as f64);
-                total += *w;
+            // Σ w and Σ w·V in one pass, each summed in the order of the
+            // next states as two passes would. With the uniform prior an
+            // unseen next state's weight is Gamma(1) = Exp(1), drawn inline.
+            let (mut total, mut pv) = (0.0, 0.0);
+            for (&k, x) in dense.iter().zip(v_next) {
+                let w = if unit && k == 0 {
+                    exp.draw(draw)
+                } else {
+                    gamma(draw, prior + k as f64)
+                };
+                total += w;
+                pv += w * x;
             }
             for &(next, _) in &counts[row] {
                 dense[next as usize] = 0;
@@ -80,10 +87,6 @@ impl Learner for Psrl {
                 1.0 + successes[row],
                 1.0 + trials[row] - successes[row],
             );
-            let mut pv = 0.0;
-            for (w, x) in weights.iter().zip(v_next) {
-                pv += w * x;
-            }
             r + if total > 0.0 { pv / total } else { 0.0 }
         });
     }
