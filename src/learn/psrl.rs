@@ -111,9 +111,8 @@ impl Learner for Psrl {
             None => seen.push((next as u32, 1)),
         }
         self.trials[row] += 1.0;
-        if rng.random::<f64>() < r {
-            self.successes[row] += 1.0;
-        }
+        // A count, not a branch: whether the draw succeeds is a coin flip.
+        self.successes[row] += f64::from(u8::from(rng.random::<f64>() < r));
     }
 
     fn model_updates(&self) -> u64 {

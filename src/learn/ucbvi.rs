@@ -35,6 +35,11 @@ pub struct Ucbvi {
     hoeffding: Vec<f64>,
     /// N'_h(y): visits to state y at step h, `[h·S + y]` (Bernstein only).
     state_visits: Vec<u32>,
+    /// (h − 1, s) of each visit of s at a step h > 0 since the last plan
+    /// (Bernstein only): the rows of step h − 1 leading to s are stale. Kept
+    /// for the plan to mark, once per state, rather than marked at every
+    /// visit (the marks are the same; marking twice is marking once).
+    visited: Vec<(usize, usize)>,
     q_prev: Vec<f64>,
     plan: Plan,
     /// Rows whose inputs changed since the last plan.
@@ -52,6 +57,7 @@ impl Ucbvi {
             counts: vec![RowCounts::default(); set.rows()],
             hoeffding: vec![0.0; set.rows()],
             state_visits: vec![0; set.horizon * set.states],
+            visited: Vec::new(),
             q_prev: vec![set.horizon as f64; set.rows()],
             plan: Plan::new(&set),
             stale: StaleRows::new(&set),
@@ -61,6 +67,9 @@ impl Ucbvi {
 
 impl Learner for Ucbvi {
     fn begin_episode(&mut self, rng: &mut LearnRng) {
+        for (h, s) in self.visited.drain(..) {
+            self.stale.mark_users(h, s);
+        }
         let set = self.set;
         let hh = set.horizon as f64;
         let (s_f, a_f, l) = (set.states as f64, set.actions as f64, self.l);
@@ -136,9 +145,9 @@ impl Learner for Ucbvi {
         if self.bernstein {
             self.state_visits[h * self.set.states + s] += 1;
             // The Bernstein bonus of the rows of step h − 1 that lead to s
-            // reads this count.
+            // reads this count: they are marked stale at the next plan.
             if h > 0 {
-                self.stale.mark_users(h - 1, s);
+                self.visited.push((h - 1, s));
             }
         }
     }

@@ -593,6 +593,7 @@ pub fn bench(quick: bool) -> Result<()> {
         wasm_bytes as f64 / 1e6,
         mark(wasm_bytes < 1_500_000)
     ));
+    step_split(&mut md, &mut targets, quick)?;
     let _ = writeln!(
         md,
         "\n## Targets\n\n| target | measured | status |\n|---|---|---|"
@@ -608,5 +609,133 @@ pub fn bench(quick: bool) -> Result<()> {
     }
     std::fs::write(root().join("BENCHMARKS.md"), md).map_err(|e| e.to_string())?;
     eprintln!("wrote BENCHMARKS.md");
+    Ok(())
+}
+
+/// `cargo xtask bench --split`: the per-step split alone, printed.
+pub fn split_only(quick: bool) -> Result<()> {
+    let (mut md, mut targets) = (String::new(), Vec::new());
+    step_split(&mut md, &mut targets, quick)?;
+    println!("{md}");
+    for t in targets {
+        println!("{t}");
+    }
+    Ok(())
+}
+
+/// Where a step's time goes, from a sampling profile of each workload of
+/// the learning table (`perf record` on the release build with debug
+/// information, `perf script --inline`, split by `benches/step_split.py`):
+/// a section of BENCHMARKS.md and a target row per learner (its own part
+/// without planning within 2× of the floor). Without `perf` on the machine
+/// the section says so and the targets are left out.
+fn step_split(md: &mut String, targets: &mut Vec<String>, quick: bool) -> Result<()> {
+    step("where a step's time goes (perf sampling profiles)");
+    if output(Command::new("perf").arg("--version")).is_none() {
+        let _ = writeln!(
+            md,
+            "\n## Where a step's time goes\n\nNot measured: this machine has no `perf`."
+        );
+        return Ok(());
+    }
+    let dir = root().join("target/profile");
+    crate::run(
+        cargo()
+            .env("CARGO_PROFILE_RELEASE_DEBUG", "2")
+            .args(["build", "--release", "--bin", "burnin", "--target-dir"])
+            .arg(&dir),
+    )?;
+    let cli = dir.join("release/burnin");
+    let tmp = std::env::temp_dir().join(format!("burnin-split-{}", std::process::id()));
+    std::fs::create_dir_all(&tmp).map_err(|e| e.to_string())?;
+    let mut rows = Vec::new();
+    for key in LEARNERS {
+        let data = tmp.join(format!("{key}.data"));
+        let mut record = Command::new("perf");
+        record
+            .args([
+                "record",
+                "-q",
+                "-F",
+                "4000",
+                "-e",
+                "cpu-clock",
+                "--call-graph",
+                "dwarf",
+                "-o",
+            ])
+            .arg(&data)
+            .arg(&cli)
+            .args(["bench", "--only", key]);
+        if quick {
+            record.arg("--quick");
+        }
+        let json = output(&mut record).ok_or(format!("perf record of {key} failed"))?;
+        let rate = figure(&json, if key == "floor" { "floor " } else { "learn " })
+            .ok_or(format!("no figure in the profiled run of {key}"))?
+            .0;
+        let stacks = tmp.join(format!("{key}.txt"));
+        let script = Command::new("perf")
+            .args(["script", "--inline", "-F", "ip,sym", "-i"])
+            .arg(&data)
+            .current_dir(root())
+            .output()
+            .map_err(|e| e.to_string())?;
+        std::fs::write(&stacks, &script.stdout).map_err(|e| e.to_string())?;
+        let split = output(
+            Command::new("python3")
+                .arg(root().join("benches/step_split.py"))
+                .arg(&stacks),
+        )
+        .ok_or(format!("step_split.py failed on {key}"))?;
+        let v: serde_json::Value = serde_json::from_str(&split).map_err(|e| e.to_string())?;
+        let share = |c: &str| v["share"][c].as_f64().unwrap_or(0.0);
+        let ns = 1e9 / (rate * 20.0);
+        // The floor's loop is not a run: all of it is simulating.
+        let (shares, samples) = if key == "floor" {
+            (
+                [0.0, 0.0, 0.0, 1.0],
+                v["samples_outside"].as_u64().unwrap_or(0),
+            )
+        } else {
+            (
+                [
+                    share("planning"),
+                    share("evaluation"),
+                    share("learning"),
+                    share("simulating"),
+                ],
+                v["samples_in_run"].as_u64().unwrap_or(0),
+            )
+        };
+        rows.push((key, ns, shares, samples));
+        let _ = std::fs::remove_file(&data);
+        let _ = std::fs::remove_file(&stacks);
+    }
+    let floor_ns = rows[0].1;
+    let _ = writeln!(
+        md,
+        "\n## Where a step's time goes (sampling profiles)\n\nEach workload of the learning table ran once more under a sampling profiler (`perf record -F 4000 -e cpu-clock --call-graph dwarf` on the release build with debug information; `perf script --inline`), and `benches/step_split.py` put each sample in the first class whose functions are on its stack, inlined ones included: planning is the learner's `begin_episode` (replanning, posterior draws), evaluation Burnin's exact evaluation of each new policy for its regret, learning the learner's `act`, `observe` and `end_episode`, simulating the rest of the loop (the reward and next-state draws, the visit counts: what the floor does). ns per step is 10⁹ / (episodes/s × H) of the profiled run itself (the profiler slows a run); non-planning is learning plus simulating, the learner's own part without its planning and without the harness's evaluation, and × floor is that over the floor's profiled ns per step ({floor_ns:.1}).\n\n| workload | samples | ns per step | planning | evaluation | learning | simulating | non-planning ns per step | × floor |\n|---|---|---|---|---|---|---|---|---|"
+    );
+    for (key, ns, [plan, eval, learn, sim], samples) in &rows {
+        let own = ns * (learn + sim);
+        let pct = |x: f64| format!("{:.1}%", 100.0 * x);
+        let _ = writeln!(
+            md,
+            "| {key} | {samples} | {ns:.1} | {} | {} | {} | {} | {own:.1} | {:.2} |",
+            pct(*plan),
+            pct(*eval),
+            pct(*learn),
+            pct(*sim),
+            own / floor_ns
+        );
+        if *key != "floor" {
+            targets.push(format!(
+                "| {key}: its own part of a step (non-planning) within 2× of the floor (profiled) | {:.2}× | {} |",
+                own / floor_ns,
+                mark(own / floor_ns <= 2.0)
+            ));
+        }
+    }
     Ok(())
 }

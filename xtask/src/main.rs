@@ -11,6 +11,8 @@
 //!   keeps working offline (`dist.rs`).
 //! - `cargo xtask fuzz [SECONDS]`: each cargo-fuzz target for a bounded time
 //!   (30 s by default; part of `test`).
+//! - `cargo xtask bench --split [--quick]`: only the per-step split from
+//!   sampling profiles, printed (BENCHMARKS.md is not touched).
 //! - `cargo xtask bench [--quick]`: the reference workloads natively, in
 //!   headless Chromium (wasm) and for the numpy peer; writes BENCHMARKS.md.
 //!
@@ -38,6 +40,9 @@ fn main() -> ExitCode {
         Some("test") => test_cmd(),
         Some("wasm") => build_wasm().map(|_| ()),
         Some("dist") => dist::dist_cmd(&args[1..]),
+        Some("bench") if args.iter().any(|a| a == "--split") => {
+            bench::split_only(args.iter().any(|a| a == "--quick"))
+        }
         Some("bench") => bench::bench(args.iter().any(|a| a == "--quick")),
         Some("fuzz") => match args.get(1).map(|s| s.parse::<u32>()) {
             None => fuzz(30),
@@ -46,7 +51,7 @@ fn main() -> ExitCode {
         },
         _ => {
             eprintln!(
-                "usage: cargo xtask serve [--port N] | test | wasm | dist DIR | bench [--quick] | fuzz [SECONDS]"
+                "usage: cargo xtask serve [--port N] | test | wasm | dist DIR | bench [--quick] [--split] | fuzz [SECONDS]"
             );
             return ExitCode::from(2);
         }
