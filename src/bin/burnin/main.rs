@@ -771,6 +771,7 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
         }
     };
     let (tx, rx) = std::sync::mpsc::channel();
+    let started_at = std::time::Instant::now();
     std::thread::scope(|scope| {
         let calibrate = calibrating.load(Ordering::Relaxed);
         if calibrate {
@@ -801,15 +802,11 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
             scope.spawn(work);
         }
         if calibrate {
-            let cal = rx.recv_timeout(CALIBRATION_DEADLINE + std::time::Duration::from_secs(1));
-            let e = match cal {
+            let e = match rx.recv_timeout(CALIBRATION_WAIT) {
                 Ok(cal) => burnin::experiment::estimate(&points, &jobs, &cal, threads),
-                Err(_) => slow_estimate(
-                    &points,
-                    &jobs,
-                    threads,
-                    (CALIBRATION_DEADLINE + std::time::Duration::from_secs(1)).as_secs_f64(),
-                ),
+                Err(_) => {
+                    slow_estimate(&points, &jobs, threads, started_at.elapsed().as_secs_f64())
+                }
             };
             match budget {
                 Some(m) if e.seconds > 60.0 * m => {
@@ -880,6 +877,10 @@ enum Budget {
 /// the learners it has not reached (at their nearest heavier point's cost).
 const CALIBRATION_DEADLINE: std::time::Duration = std::time::Duration::from_secs(2);
 
+/// How long the estimate waits for calibration: its deadline and a second
+/// (one episode may outlast the deadline; the estimate then says "at least").
+const CALIBRATION_WAIT: std::time::Duration = std::time::Duration::from_secs(3);
+
 /// Times the learners (`calibrate_keeping`, at most ~[`CALIBRATION_DEADLINE`]
 /// in all, a learner's first episode excepted), keeping the runs it timed.
 fn calibrate_timed(
@@ -928,7 +929,7 @@ fn estimate_jobs(
     std::thread::spawn(move || {
         let _ = tx.send(calibrate_timed(&pts).0);
     });
-    match rx.recv_timeout(CALIBRATION_DEADLINE + std::time::Duration::from_secs(1)) {
+    match rx.recv_timeout(CALIBRATION_WAIT) {
         Ok(cal) => burnin::experiment::estimate(points, jobs, &cal, threads),
         Err(_) => slow_estimate(points, jobs, threads, start.elapsed().as_secs_f64()),
     }
