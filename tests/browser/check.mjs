@@ -1079,6 +1079,9 @@ await check('canvases are sharp on a high-density screen', async (page, context)
     await p.click('#tab-experiment');
     await p.fill('#exp-episodes', '200');
     await runAndWait(p);
+    // The chart is drawn once the core's typeface has loaded, after the
+    // status line: wait for it as the other chart checks do.
+    await p.waitForFunction(() => Number(document.getElementById('chart').dataset.series) > 0);
     const [w, css] = await p.evaluate(() => { const c = document.getElementById('chart'); return [c.width, c.clientWidth]; });
     assertEqual(w, css * 2, 'backing store at twice the CSS width');
   } finally {
