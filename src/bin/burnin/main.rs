@@ -707,7 +707,8 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
                 && i == burnin::experiment::calibration_run(&points, li)
         })
         .collect();
-    let calibrating = AtomicBool::new(reserved.iter().any(|&r| r));
+    let calibrate = reserved.iter().any(|&r| r);
+    let calibrating = AtomicBool::new(calibrate);
     let started = Mutex::new(Vec::<(usize, usize, Run)>::new());
     let refused = Mutex::new(None::<Failure>);
     let next = AtomicUsize::new(0);
@@ -773,7 +774,6 @@ fn run(path: &Path, o: &RunOptions) -> Result<(), Failure> {
     let (tx, rx) = std::sync::mpsc::channel();
     let started_at = std::time::Instant::now();
     std::thread::scope(|scope| {
-        let calibrate = calibrating.load(Ordering::Relaxed);
         if calibrate {
             scope.spawn(|| {
                 let (cal, runs) = calibrate_timed(&points);
