@@ -31,7 +31,8 @@ pub struct Ucbvi {
     bernstein: bool,
     l: f64,
     counts: Vec<RowCounts>,
-    /// 7·H·L·√(1/n) of each row, kept up to date as it is visited.
+    /// 7·H·L·√(1/n) of each row, kept up to date as it is visited
+    /// (Hoeffding only).
     hoeffding: Vec<f64>,
     /// N'_h(y): visits to state y at step h, `[h·S + y]` (Bernstein only).
     state_visits: Vec<u32>,
@@ -140,8 +141,6 @@ impl Learner for Ucbvi {
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
         let row = self.set.row(h, s, a);
         self.stale.count(&mut self.counts[row], h, s, a, r, next);
-        let n = self.counts[row].n as f64;
-        self.hoeffding[row] = 7.0 * self.set.horizon as f64 * self.l * (1.0 / n).sqrt();
         if self.bernstein {
             self.state_visits[h * self.set.states + s] += 1;
             // The Bernstein bonus of the rows of step h − 1 that lead to s
@@ -149,6 +148,9 @@ impl Learner for Ucbvi {
             if h > 0 {
                 self.visited.push((h - 1, s));
             }
+        } else {
+            let n = self.counts[row].n as f64;
+            self.hoeffding[row] = 7.0 * self.set.horizon as f64 * self.l * (1.0 / n).sqrt();
         }
     }
 
