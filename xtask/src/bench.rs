@@ -18,6 +18,13 @@ const RESEARCH_EPISODES: u64 = 1000;
 const RESEARCH_SECONDS: f64 = 15.0;
 /// How many one-thread/two-thread pairs the thread-scaling row times.
 const THREAD_PAIRS: usize = 7;
+
+/// Rounds of the per-step split's profiles (PSRL's in the first only).
+const SPLIT_ROUNDS: usize = 3;
+
+/// A profiled run: ns per step, shares [planning, evaluation, learning,
+/// simulating], samples, and its non-planning cost over its round's floor.
+type Profiled = (f64, [f64; 4], u64, f64);
 const RESEARCH_MIN_SECONDS: f64 = 2.0;
 
 /// Finds a figure by the start of its name in `burnin bench` JSON: its
@@ -648,8 +655,9 @@ fn step_split(md: &mut String, targets: &mut Vec<String>, quick: bool) -> Result
     let cli = dir.join("release/burnin");
     let tmp = std::env::temp_dir().join(format!("burnin-split-{}", std::process::id()));
     std::fs::create_dir_all(&tmp).map_err(|e| e.to_string())?;
-    let mut rows = Vec::new();
-    for key in LEARNERS {
+    // One profiled run of `key`: its ns per step (of the profiled run),
+    // its shares [planning, evaluation, learning, simulating], its samples.
+    let profile = |key: &str| -> Result<(f64, [f64; 4], u64)> {
         let data = tmp.join(format!("{key}.data"));
         let mut record = Command::new("perf");
         record
@@ -688,17 +696,21 @@ fn step_split(md: &mut String, targets: &mut Vec<String>, quick: bool) -> Result
                 .arg(&stacks),
         )
         .ok_or(format!("step_split.py failed on {key}"))?;
+        let _ = std::fs::remove_file(&data);
+        let _ = std::fs::remove_file(&stacks);
         let v: serde_json::Value = serde_json::from_str(&split).map_err(|e| e.to_string())?;
         let share = |c: &str| v["share"][c].as_f64().unwrap_or(0.0);
         let ns = 1e9 / (rate * 20.0);
         // The floor's loop is not a run: all of it is simulating.
-        let (shares, samples) = if key == "floor" {
+        Ok(if key == "floor" {
             (
+                ns,
                 [0.0, 0.0, 0.0, 1.0],
                 v["samples_outside"].as_u64().unwrap_or(0),
             )
         } else {
             (
+                ns,
                 [
                     share("planning"),
                     share("evaluation"),
@@ -707,33 +719,49 @@ fn step_split(md: &mut String, targets: &mut Vec<String>, quick: bool) -> Result
                 ],
                 v["samples_in_run"].as_u64().unwrap_or(0),
             )
-        };
-        rows.push((key, ns, shares, samples));
-        let _ = std::fs::remove_file(&data);
-        let _ = std::fs::remove_file(&stacks);
+        })
+    };
+    // In rounds, the floor first in each, so that a learner's × floor
+    // divides by the floor profiled moments before it (a drift in the
+    // machine's speed moves both); PSRL's run is long and runs once.
+    let mut runs: Vec<Vec<Profiled>> = vec![Vec::new(); LEARNERS.len()];
+    for round in 0..SPLIT_ROUNDS {
+        let floor = profile("floor")?;
+        runs[0].push((floor.0, floor.1, floor.2, 1.0));
+        for (i, key) in LEARNERS.iter().enumerate().skip(1) {
+            if *key == "psrl" && round > 0 {
+                continue;
+            }
+            let (ns, sh, samples) = profile(key)?;
+            runs[i].push((ns, sh, samples, ns * (sh[2] + sh[3]) / floor.0));
+        }
     }
-    let floor_ns = rows[0].1;
     let _ = writeln!(
         md,
-        "\n## Where a step's time goes (sampling profiles)\n\nEach workload of the learning table ran once more under a sampling profiler (`perf record -F 4000 -e cpu-clock --call-graph dwarf` on the release build with debug information; `perf script --inline`), and `benches/step_split.py` put each sample in the first class whose functions are on its stack, inlined ones included: planning is the learner's `begin_episode` (replanning, posterior draws), evaluation Burnin's exact evaluation of each new policy for its regret, learning the learner's `act`, `observe` and `end_episode`, simulating the rest of the loop (the reward and next-state draws, the visit counts: what the floor does). ns per step is 10⁹ / (episodes/s × H) of the profiled run itself (the profiler slows a run); non-planning is learning plus simulating, the learner's own part without its planning and without the harness's evaluation, and × floor is that over the floor's profiled ns per step ({floor_ns:.1}).\n\n| workload | samples | ns per step | planning | evaluation | learning | simulating | non-planning ns per step | × floor |\n|---|---|---|---|---|---|---|---|---|"
+        "\n## Where a step's time goes (sampling profiles, {SPLIT_ROUNDS} rounds)\n\nEach workload of the learning table ran again under a sampling profiler (`perf record -F 4000 -e cpu-clock --call-graph dwarf` on the release build with debug information; `perf script --inline`), and `benches/step_split.py` put each sample in the first class whose functions are on its stack, inlined ones included: planning is the learner's `begin_episode` (replanning, posterior draws), evaluation Burnin's exact evaluation of each new policy for its regret, learning the learner's `act`, `observe` and `end_episode`, simulating the rest of the loop (the reward and next-state draws, the visit counts: what the floor does). ns per step is 10⁹ / (episodes/s × H) of the profiled run itself (the profiler slows a run); non-planning is learning plus simulating, the learner's own part without its planning and without the harness's evaluation, and × floor is that over the floor's profiled ns per step in the same round. The profiles ran in rounds, the floor first in each and PSRL (a long run) in the first only; a row is the round with the median × floor, the range over the rounds in brackets.\n\n| workload | samples | ns per step | planning | evaluation | learning | simulating | non-planning ns per step | × floor |\n|---|---|---|---|---|---|---|---|---|"
     );
-    for (key, ns, [plan, eval, learn, sim], samples) in &rows {
+    for (key, mut r) in LEARNERS.iter().zip(runs) {
+        r.sort_by(|a, b| a.3.total_cmp(&b.3).then(a.0.total_cmp(&b.0)));
+        let (ns, [plan, eval, learn, sim], samples, ratio) = r[r.len() / 2];
         let own = ns * (learn + sim);
         let pct = |x: f64| format!("{:.1}%", 100.0 * x);
+        let range = if r.len() > 1 && *key != "floor" {
+            format!(" ({:.2}–{:.2})", r[0].3, r[r.len() - 1].3)
+        } else {
+            String::new()
+        };
         let _ = writeln!(
             md,
-            "| {key} | {samples} | {ns:.1} | {} | {} | {} | {} | {own:.1} | {:.2} |",
-            pct(*plan),
-            pct(*eval),
-            pct(*learn),
-            pct(*sim),
-            own / floor_ns
+            "| {key} | {samples} | {ns:.1} | {} | {} | {} | {} | {own:.1} | {ratio:.2}{range} |",
+            pct(plan),
+            pct(eval),
+            pct(learn),
+            pct(sim),
         );
         if *key != "floor" {
             targets.push(format!(
-                "| {key}: its own part of a step (non-planning) within 2× of the floor (profiled) | {:.2}× | {} |",
-                own / floor_ns,
-                mark(own / floor_ns <= 2.0)
+                "| {key}: its own part of a step (non-planning) within 2× of the floor (profiled; median of rounds) | {ratio:.2}× | {} |",
+                mark(ratio <= 2.0)
             ));
         }
     }
