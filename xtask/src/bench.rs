@@ -16,6 +16,8 @@ use crate::{Result, browser_dir, build_wasm, cargo, chromium, output, root, step
 /// As `burnin::bench` (xtask has no dependency on the core).
 const RESEARCH_EPISODES: u64 = 1000;
 const RESEARCH_SECONDS: f64 = 15.0;
+const RESEARCH_MIN_SECONDS: f64 = 2.0;
+
 /// How many one-thread/two-thread pairs the thread-scaling row times.
 const THREAD_PAIRS: usize = 7;
 
@@ -25,7 +27,6 @@ const SPLIT_ROUNDS: usize = 3;
 /// A profiled run: ns per step, shares [planning, evaluation, learning,
 /// simulating], samples, and its non-planning cost over its round's floor.
 type Profiled = (f64, [f64; 4], u64, f64);
-const RESEARCH_MIN_SECONDS: f64 = 2.0;
 
 /// Finds a figure by the start of its name in `burnin bench` JSON: its
 /// best and median values and its note.
