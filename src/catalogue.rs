@@ -62,7 +62,7 @@ pub const GLOSSARY: &[Term] = &[
     Term {
         key: "burn_in",
         name: "burn-in",
-        meaning: "The first episode (on the grid 10^(j/16)) from which the log-log slope over every later quarter decade of the mean curve stays ≤ 0.6, with a bootstrap interval over seeds; \"not settled\" if the curve never settles by K.",
+        meaning: "Where the mean curve bends from linear growth into its √K regime: the break k₀ of a two-regime least-squares fit on log-log axes (slope 1 up to k₀, a fitted tail slope after it), read on the fixed grid 10^(j/16) so the recording density does not move it. Settled when the tail slope is ≤ 0.6 and at least a quarter decade of the run lies after k₀, and no seed still grows linearly at K (local slope ≥ 0.9 over its last quarter decade); with a bootstrap interval over seeds. 1 for a learner that pays no regret after its first episode; \"not settled\" otherwise.",
     },
     Term {
         key: "model_updates",
@@ -139,7 +139,11 @@ mod tests {
         }
         let settled = crate::experiment::SETTLED_SLOPE;
         assert!(meaning("burn_in").contains(&format!("≤ {settled}")));
-        assert_eq!(crate::experiment::SLOPE_WINDOW_DECADES, 0.25);
+        let linear = crate::experiment::LINEAR_SLOPE;
+        assert!(meaning("burn_in").contains(&format!("≥ {linear}")));
+        assert_eq!(crate::experiment::SETTLED_SPAN_DECADES, 0.25);
+        assert_eq!(crate::experiment::GRID_PER_DECADE, 16.0);
         assert!(meaning("burn_in").contains("quarter decade"));
+        assert!(meaning("burn_in").contains("10^(j/16)"));
     }
 }

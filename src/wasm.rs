@@ -455,6 +455,7 @@ pub fn read_document(text: &str) -> JsValue {
                 set(&obj, "summaryCsv", out.summary_csv());
                 set(&obj, "seedsCsv", out.seeds_csv());
                 set(&obj, "chartText", crate::chart::chart_text(&out));
+                set(&obj, "readings", to_js(&out.reading_texts()));
             }
             Err(p) => return problems_value(&p),
         },
@@ -518,6 +519,7 @@ pub fn merge_shards(shards: Vec<String>) -> JsValue {
             set(&obj, "summaryCsv", out.summary_csv());
             set(&obj, "seedsCsv", out.seeds_csv());
             set(&obj, "chartText", crate::chart::chart_text(&out));
+            set(&obj, "readings", to_js(&out.reading_texts()));
             obj.into()
         }
         Err(p) => problems_value(&p),

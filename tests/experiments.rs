@@ -126,7 +126,8 @@ fn slope_and_burn_in_of_synthetic_curves() {
     // last-decade slope ½.
     let ks = checkpoints(100_000, 41);
     let r = kinked(1000.0, &ks);
-    assert_eq!(burn_in(&ks, &r), Some(1000));
+    let b = burn_in(&ks, &r).unwrap();
+    assert!((990..=1010).contains(&b), "{b}");
     assert!((tail_slope(&ks, &r).unwrap() - 0.5).abs() < 1e-9);
     // Linear regret never burns in.
     let lin: Vec<f64> = ks.iter().map(|&k| 0.3 * k as f64).collect();
@@ -526,33 +527,20 @@ fn results_carry_paired_comparisons_with_a_verdict() {
     );
 }
 
-/// Burn-in is read on a fixed grid over fixed quarter-decade windows, so it
-/// does not move with the density of the checkpoints (derived by hand: for
-/// R = k up to k₀ and R = k₀·√(k/k₀) after, the window [g, g·10^¼] has slope
-/// ½ + ½·log₁₀(k₀/g)/¼ while it straddles k₀, at most 0.6 once
-/// g ≥ k₀·10^(−0.05); the first grid point 10^(j/16) past 3000·10^(−0.05) =
-/// 2673.8 is 10^(55/16) = 2738.4).
+/// Burn-in does not move with the density of the checkpoints (derived by
+/// hand: R = k up to k₀ and R = k₀·√(k/k₀) after is the two-regime model
+/// itself, so its fit breaks at k₀; recorded at the checkpoints alone the
+/// kink is rounded off between them, hence the 1%).
 #[test]
 fn burn_in_does_not_move_with_checkpoint_density() {
     let curve = kinked;
-    for n in [81, 161, 401, 2000] {
+    for n in [32, 81, 161, 401, 2000] {
         let ks = checkpoints(100_000, n);
-        assert_eq!(
-            burn_in(&ks, &curve(3000.0, &ks)),
-            Some(2738),
-            "{n} checkpoints"
-        );
-        assert_eq!(
-            burn_in(&ks, &curve(1000.0, &ks)),
-            Some(1000),
-            "{n} checkpoints"
-        );
+        for k0 in [1000.0, 3000.0] {
+            let b = burn_in(&ks, &curve(k0, &ks)).unwrap() as f64;
+            assert!((b / k0 - 1.0).abs() < 0.01, "{n} checkpoints: {b}");
+        }
     }
-    // Eight per decade (the least we state): within one grid step.
-    let ks = checkpoints(100_000, 41);
-    let b = burn_in(&ks, &curve(3000.0, &ks)).unwrap() as f64;
-    // (Grid points are rounded to whole episodes, hence the 10⁻³.)
-    assert!((b / 2738.0).log10().abs() <= 1.0 / 16.0 + 1e-3, "{b}");
 }
 
 /// The bootstrap interval of the burn-in: identical seeds give an interval

@@ -35,21 +35,15 @@ function medianText(xs) {
   return got.length === xs.length ? `median ${grouped(got[Math.floor(got.length / 2)])}` : `not in ${xs.length - got.length} of ${xs.length} seeds`;
 }
 
-/** Burn-in with its bootstrap interval: "1,773 [1,200, 2,400]". */
-function burnInText(l) {
-  const k = (x) => (x === null ? 'not settled' : grouped(x));
-  const iv = l.burn_in_interval;
-  if (l.burn_in === null && (!iv || (iv[0] === null && iv[1] === null))) return 'not settled';
-  return iv ? `${k(l.burn_in)} [${k(iv[0])}, ${k(iv[1])}]` : k(l.burn_in);
-}
-
 /**
  * Results as the view keeps them, from the core's reading of a results
- * file or a merge ({json, csv, cellsCsv, summaryCsv, seedsCsv, chartText}),
- * with the experiment file that made them (or null).
+ * file or a merge ({json, csv, cellsCsv, summaryCsv, seedsCsv, chartText,
+ * readings}: `readings[point][learner]` holds the core's texts of the slope
+ * and the burn-in, as the CLI prints them), with the experiment file that
+ * made them (or null).
  */
 export const resultsOf = (doc, experiment = null) => ({
-  text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, chartText: doc.chartText, experiment,
+  text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, chartText: doc.chartText, readings: doc.readings, experiment,
 });
 
 /** Resolves in a later task (after the browser has had its turn). */
@@ -697,24 +691,30 @@ export class ExperimentView {
     const body = table.createTBody();
     if (d.format === 'burnin-sweep') {
       head.append(el('th', 'learner'), ...d.values.map((v) => el('th', `${d.parameter} = ${v}`)));
-      for (const l of d.learners) {
+      for (const [li, l] of d.learners.entries()) {
         const tr = el('tr');
         tr.append(el('th', l.label));
-        l.regret_mean.forEach((m, i) => tr.append(el('td', `${short(m)} ${interval(d, l.regret_lo[i], l.regret_hi[i])}`, { 'data-value': String(m) })));
+        l.regret_mean.forEach((m, i) => {
+          const td = el('td', `${short(m)} ${interval(d, l.regret_lo[i], l.regret_hi[i])}`, { 'data-value': String(m) });
+          const r = this.results.readings?.[i]?.[li];
+          if (r) td.append(el('div', `slope ${r.slope} · burn-in ${r.burn_in}`, { class: 'reading' }));
+          tr.append(td);
+        });
         body.append(tr);
       }
     } else {
       const eps = d.learners[0].episodes_to_eps;
       // Each header says what its number is, from the core's glossary.
       const hint = (text, ...keys) => el('th', text, { title: keys.map((k) => this.meaning(k)).join(' ') });
-      head.append(el('th', 'learner'), hint('regret at K', 'regret'), hint('95% interval', 'interval'), hint('slope', 'slope'), hint('burn-in [95% bootstrap]', 'burn_in'), hint('model updates', 'model_updates'),
+      head.append(el('th', 'learner'), hint('regret at K', 'regret'), hint('95% interval', 'interval'), hint('slope [95% bootstrap]', 'slope'), hint('burn-in [95% bootstrap]', 'burn_in'), hint('model updates', 'model_updates'),
         ...eps.map((e) => hint(`ε = ${short(e.epsilon)}: first ε-optimal episode (PAC order ${short(e.pac_order)}, Zhang et al. 2024) · share ε-optimal · settled within ε after`, 'first_optimal', 'optimal_share', 'settled')));
-      for (const l of d.learners) {
+      const reading = (i) => this.results.readings?.[0]?.[i] ?? { slope: '—', burn_in: '—' };
+      for (const [i, l] of d.learners.entries()) {
         const last = l.regret_mean.length - 1;
         const updates = l.model_updates.reduce((a, b) => a + b, 0) / l.model_updates.length;
         const tr = el('tr');
         tr.append(el('th', l.label), el('td', short(l.regret_mean[last]), { 'data-value': String(l.regret_mean[last]) }), el('td', interval(d, l.regret_lo[last], l.regret_hi[last])),
-          el('td', l.slope === null ? '—' : l.slope.toFixed(3)), el('td', burnInText(l)),
+          el('td', reading(i).slope), el('td', reading(i).burn_in),
           el('td', updates.toFixed(1)));
         for (const e of l.episodes_to_eps) {
           const share = (e.optimal_share || []).reduce((a, b) => a + b, 0) / Math.max(1, (e.optimal_share || []).length);

@@ -13,6 +13,7 @@
 
 mod draws;
 mod estimate;
+mod readings;
 mod results;
 mod shard;
 mod spec;
@@ -24,11 +25,15 @@ pub use estimate::{
 };
 pub use shard::{MAX_SHARDS, SHARD_FORMAT, SHARD_VERSION, ShardFile, merge, text_digest};
 
+pub use readings::{
+    BOOTSTRAP_RESAMPLES, BurnIn, GRID_PER_DECADE, LINEAR_SLOPE, SETTLED_SLOPE,
+    SETTLED_SPAN_DECADES, SeedsReading, burn_in, burn_in_interval, linear_at_end, read_seeds,
+    tail_slope, two_regime_fit,
+};
 pub use results::{
-    BOOTSTRAP_RESAMPLES, Cell, Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS,
-    MAX_SEED_CURVE_VALUES, RESULTS_FORMAT, RESULTS_VERSION, Results, SETTLED_SLOPE,
-    SLOPE_WINDOW_DECADES, SWEEP_FORMAT, SweepLearner, SweepResults, burn_in, burn_in_interval,
-    csv_field, parse_results, summarise, tail_slope, verdict,
+    Cell, Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS, MAX_SEED_CURVE_VALUES,
+    RESULTS_FORMAT, RESULTS_VERSION, Results, SWEEP_FORMAT, SweepLearner, SweepResults, csv_field,
+    parse_results, summarise, verdict,
 };
 pub use spec::{
     DEFAULT_SEEDS, EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary,
@@ -514,7 +519,36 @@ pub enum Output {
     Sweep(SweepResults),
 }
 
+/// What the tables print of one learner's readings at one point (the
+/// CLI's table and the page's, from one rule: [`LearnerResult::slope_text`],
+/// [`LearnerResult::burn_in_text`]).
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct ReadingTexts {
+    pub label: String,
+    pub slope: String,
+    pub burn_in: String,
+}
+
 impl Output {
+    /// The reading texts of every learner, per point (one point when the
+    /// experiment has no sweep).
+    pub fn reading_texts(&self) -> Vec<Vec<ReadingTexts>> {
+        let point = |r: &Results| {
+            r.learners
+                .iter()
+                .map(|l| ReadingTexts {
+                    label: l.label.clone(),
+                    slope: l.slope_text(),
+                    burn_in: l.burn_in_text(),
+                })
+                .collect()
+        };
+        match self {
+            Output::Single(r) => vec![point(r)],
+            Output::Sweep(s) => s.points.iter().map(point).collect(),
+        }
+    }
+
     pub fn to_json(&self) -> String {
         match self {
             Output::Single(r) => r.to_json(),

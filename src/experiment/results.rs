@@ -3,17 +3,14 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::readings::{read_seeds, tail_slope};
 use super::{Point, RunRecord};
 use crate::model::Problems;
-use crate::stats::{Paired, interval95, ls_slope, mean, paired95};
+use crate::stats::{Paired, interval95, mean, paired95};
 use crate::theory::{self, Bound};
 
 pub const RESULTS_FORMAT: &str = "burnin-results";
 pub const RESULTS_VERSION: u64 = 1;
-
-/// The local log-log slope at or below which regret counts as settled into
-/// its √K regime (burn-in; see [`burn_in`]).
-pub const SETTLED_SLOPE: f64 = 0.6;
 
 /// What the runs say about ε-optimal policies, for one ε.
 ///
@@ -54,6 +51,47 @@ pub struct Cell {
 }
 
 impl LearnerResult {
+    /// The burn-in as every table prints it: the value with its bootstrap
+    /// interval ("1773 [1200, 2400]"; "not settled" for a side that did not
+    /// settle), then, when not every seed settled on its own, how many did
+    /// and how many still grow linearly at K ("not settled: 1 of 8 seeds
+    /// still linear at K, 6 of 8 settled").
+    pub fn burn_in_text(&self) -> String {
+        let k = |x: Option<u64>| x.map_or("not settled".to_string(), |x| x.to_string());
+        let mut text = match (self.burn_in, self.burn_in_interval) {
+            (None, None | Some((None, None))) => "not settled".to_string(),
+            (b, Some((lo, hi))) => format!("{} [{}, {}]", k(b), k(lo), k(hi)),
+            (b, None) => k(b),
+        };
+        let n = self.burn_in_by_seed.len();
+        let settled = self.burn_in_by_seed.iter().flatten().count();
+        let linear = self.seeds_linear_at_k.unwrap_or(0) as usize;
+        if linear > 0 {
+            text.push_str(&format!(": {linear} of {n} seeds still linear at K"));
+            if settled > 0 {
+                text.push_str(&format!(", {settled} of {n} settled"));
+            }
+        } else if n > 1 && settled < n {
+            text.push_str(&format!(" ({settled} of {n} seeds settled)"));
+        }
+        text
+    }
+
+    /// The tail slope with its bootstrap interval, to the digits the
+    /// interval supports: "0.52 [0.49, 0.55]" (see [`slope_digits`]).
+    pub fn slope_text(&self) -> String {
+        let Some(s) = self.slope else {
+            return "—".into();
+        };
+        match self.slope_interval {
+            Some((lo, hi)) => {
+                let d = slope_digits(hi - lo);
+                format!("{s:.d$} [{lo:.d$}, {hi:.d$}]")
+            }
+            None => format!("{s:.3}"),
+        }
+    }
+
     /// The `n` cells where most regret was paid, largest first (ties by
     /// position); cells with no regret are left out.
     pub fn top_cells(&self, n: usize) -> Vec<Cell> {
@@ -79,6 +117,18 @@ impl LearnerResult {
         cells.truncate(n);
         cells
     }
+}
+
+/// Decimals a slope is printed with when its interval is `width` wide: the
+/// first decimal place at which the interval's width shows, plus one (width
+/// 0.06 → 3 places: 0.523 [0.494, 0.552]; width 0.4 → 2), between 1 and 4.
+/// Common practice (one more digit than the uncertainty's leading digit).
+pub fn slope_digits(width: f64) -> usize {
+    if width.is_nan() || width <= 0.0 {
+        return 3;
+    }
+    let lead = -libm::floor(libm::log10(width));
+    (lead + 1.0).clamp(1.0, 4.0) as usize
 }
 
 /// Most per-seed curve values a learner's results carry (seeds ×
@@ -115,12 +165,25 @@ pub struct LearnerResult {
     /// Least-squares slope of ln(mean regret) on ln k over the last decade
     /// of checkpoints (k ≥ K/10).
     pub slope: Option<f64>,
-    /// Burn-in of the mean curve (see [`burn_in`]).
+    /// Its 95% bootstrap interval over seeds, `[lo, hi]`; null with one seed
+    /// (and in files written before it was added).
+    #[serde(default)]
+    pub slope_interval: Option<(f64, f64)>,
+    /// Burn-in of the mean curve: null unless it and every seed's curve
+    /// settled (see [`super::read_seeds`]).
     pub burn_in: Option<u64>,
     /// Its 95% bootstrap interval over seeds, `[lo, hi]` (null inside: not
-    /// settled within K); null with one seed (see [`burn_in_interval`]).
+    /// settled within K); null with one seed.
     #[serde(default)]
     pub burn_in_interval: Option<(Option<u64>, Option<u64>)>,
+    /// Each seed's own burn-in (null: that seed had not settled by K); empty
+    /// in files written before it was added.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub burn_in_by_seed: Vec<Option<u64>>,
+    /// How many seeds were still growing linearly at K (any one keeps
+    /// `burn_in` null); null in files written before it was added.
+    #[serde(default)]
+    pub seeds_linear_at_k: Option<u64>,
     pub episodes_to_eps: Vec<EpsResult>,
     /// Mean visits of each (h, s) per run, `[h][s]`.
     pub visits: Vec<Vec<f64>>,
@@ -254,122 +317,6 @@ fn compare(labels: &[&str], runs: &[Vec<&RunRecord>], episodes: u64) -> Vec<Comp
         .collect()
 }
 
-/// Local slopes are measured over windows [k, k·w] with log₁₀ w = this
-/// (a quarter decade).
-pub const SLOPE_WINDOW_DECADES: f64 = 0.25;
-/// Burn-in is read on the fixed grid k = 10^(j/16), whatever the checkpoints.
-const GRID_PER_DECADE: f64 = 16.0;
-/// Resamples of the seeds for the burn-in interval (fewer when seeds ×
-/// checkpoints is large, so that the bootstrap costs at most about
-/// [`BOOTSTRAP_BUDGET`] additions; none below 20).
-pub const BOOTSTRAP_RESAMPLES: usize = 200;
-const BOOTSTRAP_BUDGET: f64 = 2e7;
-
-/// ln R at episode `k`, interpolated linearly in ln k between the
-/// checkpoints around it (None where R is not positive there).
-fn ln_regret_at(ks: &[u64], regret: &[f64], k: f64) -> Option<f64> {
-    let i = ks.partition_point(|&c| (c as f64) < k);
-    let at = |j: usize| (regret[j] > 0.0).then(|| (libm::log(ks[j] as f64), libm::log(regret[j])));
-    if i < ks.len() && ks[i] as f64 == k {
-        return at(i).map(|p| p.1);
-    }
-    if i == 0 || i >= ks.len() {
-        return None;
-    }
-    let ((x0, y0), (x1, y1)) = (at(i - 1)?, at(i)?);
-    let x = libm::log(k);
-    Some(y0 + (y1 - y0) * (x - x0) / (x1 - x0))
-}
-
-/// Burn-in of a cumulative regret curve: the first point k of the grid
-/// 10^(j/16) from which on every local log-log slope, measured over
-/// [k, k·10^¼] on the curve interpolated between checkpoints, is at most
-/// [`SETTLED_SLOPE`]; None when the last window is steeper or no window fits
-/// in 1..=K.
-///
-/// Our operational definition (the papers define burn-in through their
-/// bounds, not through data). Reading slopes over a fixed quarter-decade
-/// window on a fixed grid makes the value independent of how densely the
-/// checkpoints sample the curve, once they are at least about 8 per decade
-/// (the default 64 checkpoints give that up to K = 10⁸); a slope between
-/// neighbouring checkpoints, as before, swung with noise and density.
-pub fn burn_in(ks: &[u64], regret: &[f64]) -> Option<u64> {
-    let k_max = *ks.last()? as f64;
-    let window = SLOPE_WINDOW_DECADES * std::f64::consts::LN_10;
-    let width = libm::exp(window);
-    let mut start = None;
-    let grid: Vec<f64> = (0..)
-        .map(|j| libm::pow(10.0, j as f64 / GRID_PER_DECADE))
-        .take_while(|g| g * width <= k_max * (1.0 + 1e-12))
-        .collect();
-    for &g in grid.iter().rev() {
-        let lo = ln_regret_at(ks, regret, g);
-        let hi = ln_regret_at(ks, regret, (g * width).min(k_max));
-        match (lo, hi) {
-            (Some(a), Some(b)) if (b - a) / window <= SETTLED_SLOPE => {
-                start = Some(libm::round(g) as u64)
-            }
-            _ => break,
-        }
-    }
-    start
-}
-
-/// A 95% percentile-bootstrap interval of the burn-in of the mean curve:
-/// the seeds resampled with replacement (Efron & Tibshirani, An
-/// Introduction to the Bootstrap, Chapman & Hall 1993, ch. 13), each
-/// resample's mean curve read by [`burn_in`]; a resample that never settles
-/// counts as later than any episode (so `hi` is None when 2.5% or more of
-/// them never settle). None with fewer than two seeds or a bootstrap too
-/// large to run. Draws come from ChaCha8 seeded with `seed`, so the interval
-/// is the same everywhere.
-pub fn burn_in_interval(
-    ks: &[u64],
-    runs: &[&[f64]],
-    seed: u64,
-) -> Option<(Option<u64>, Option<u64>)> {
-    use rand::{Rng, SeedableRng};
-    let n = runs.len();
-    let resamples =
-        BOOTSTRAP_RESAMPLES.min((BOOTSTRAP_BUDGET / (n.max(1) * ks.len().max(1)) as f64) as usize);
-    if n < 2 || resamples < 20 {
-        return None;
-    }
-    let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(seed);
-    let mut found: Vec<u64> = (0..resamples)
-        .map(|_| {
-            let mut sum = vec![0.0; ks.len()];
-            for _ in 0..n {
-                let r = runs[rng.random_range(0..n as u32) as usize];
-                sum.iter_mut().zip(r).for_each(|(s, x)| *s += x);
-            }
-            sum.iter_mut().for_each(|s| *s /= n as f64);
-            burn_in(ks, &sum).unwrap_or(u64::MAX)
-        })
-        .collect();
-    found.sort_unstable();
-    let q = |p: f64| found[((p * resamples as f64) as usize).min(resamples - 1)];
-    let some = |x: u64| (x != u64::MAX).then_some(x);
-    Some((some(q(0.025)), some(q(0.975))))
-}
-
-/// Least-squares slope over the last decade of checkpoints (k ≥ K/10) with
-/// positive regret.
-pub fn tail_slope(ks: &[u64], regret: &[f64]) -> Option<f64> {
-    let k_max = *ks.last()? as f64;
-    let (x, y): (Vec<f64>, Vec<f64>) = ks
-        .iter()
-        .zip(regret)
-        .filter(|(k, r)| **k as f64 >= k_max / 10.0 && **r > 0.0)
-        .map(|(&k, &r)| (libm::log(k as f64), libm::log(r)))
-        .unzip();
-    if x.len() < 2 {
-        return None;
-    }
-    let s = ls_slope(&x, &y);
-    s.is_finite().then_some(s)
-}
-
 /// Summarises finished runs (any order) into results.
 pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
     records.sort_by_key(|r| (r.learner, r.seed_index));
@@ -471,6 +418,12 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
             let regret_by_state = (0..if exp.decompose { ss } else { 0 })
                 .map(|s| regret_by_step_state.iter().map(|hs| hs[s]).sum())
                 .collect();
+            let reading = read_seeds(
+                ks,
+                &runs.iter().map(|r| r.regret.as_slice()).collect::<Vec<_>>(),
+                &mean_r,
+                super::run_seed(exp.seed, li, u64::MAX),
+            );
             LearnerResult {
                 regret_by_cell,
                 regret_by_step_state,
@@ -480,12 +433,11 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
                 guest: spec.guest().map(str::to_owned),
                 checkpoints: ks.clone(),
                 slope: tail_slope(ks, &mean_r),
-                burn_in: burn_in(ks, &mean_r),
-                burn_in_interval: burn_in_interval(
-                    ks,
-                    &runs.iter().map(|r| r.regret.as_slice()).collect::<Vec<_>>(),
-                    super::run_seed(exp.seed, li, u64::MAX),
-                ),
+                slope_interval: reading.slope_interval,
+                burn_in: reading.burn_in,
+                burn_in_interval: reading.interval,
+                seeds_linear_at_k: Some(reading.seeds_linear as u64),
+                burn_in_by_seed: reading.by_seed,
                 regret_mean: mean_r,
                 regret_lo: lo,
                 regret_hi: hi,
@@ -912,6 +864,9 @@ fn check_results(r: &Results, at: &str, problems: &mut Problems) {
         len(&lp("final_regret"), l.final_regret.len(), n);
         len(&lp("model_updates"), l.model_updates.len(), n);
         len(&lp("run_seeds"), l.run_seeds.len(), n);
+        if !l.burn_in_by_seed.is_empty() {
+            len(&lp("burn_in_by_seed"), l.burn_in_by_seed.len(), n);
+        }
         if !l.regret_by_seed.is_empty() {
             len(&lp("regret_by_seed"), l.regret_by_seed.len(), n);
             for (j, xs) in l.regret_by_seed.iter().enumerate() {

@@ -242,6 +242,14 @@ await check('an experiment run in the page gives the same regret as `burnin run`
   const shown = await page.locator('#results-table tbody td[data-value]').evaluateAll((tds) => tds.map((t) => Number(t.dataset.value)));
   assertEqual(shown.length, ferryCli.learners.length, 'one row per learner');
   ferryCli.learners.forEach((l, i) => assertEqual(shown[i], l.regret_mean[l.regret_mean.length - 1], `${l.label}: regret at K (all bits)`));
+  // The burn-in cell is the core's reading of the same runs (the number
+  // `burnin run --json` wrote, or "not settled"), with how many seeds settled.
+  const cells = await page.locator('#results-table tbody tr').evaluateAll((trs) => trs.map((tr) => [...tr.cells].map((c) => c.textContent)));
+  ferryCli.learners.forEach((l, i) => {
+    const b = cells[i][4];
+    assert(l.burn_in === null ? b.startsWith('not settled') : b.startsWith(`${l.burn_in} [`), `${l.label}: burn-in cell "${b}" against ${l.burn_in}`);
+    if (l.seeds_linear_at_k > 0) assert(b.includes(`${l.seeds_linear_at_k} of ${l.burn_in_by_seed.length} seeds still linear at K`), `${l.label}: ${b}`);
+  });
   // The chart is drawn: the canvas holds many colours.
   const colours = await page.evaluate(() => {
     const c = document.getElementById('chart');
@@ -522,7 +530,7 @@ await check('the numbers are explained where they are shown, from the core\'s gl
   await page.fill('#exp-episodes', '300');
   await runAndWait(page);
   const hints = await page.locator('#results-table thead th').evaluateAll((ths) => ths.map((t) => [t.textContent, t.title]));
-  for (const name of ['regret at K', 'slope', 'burn-in [95% bootstrap]', 'model updates']) {
+  for (const name of ['regret at K', 'slope [95% bootstrap]', 'burn-in [95% bootstrap]', 'model updates']) {
     const h = hints.find(([t]) => t === name);
     assert(h && h[1].length > 20, `"${name}" has a definition: ${JSON.stringify(h)}`);
   }

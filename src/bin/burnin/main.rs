@@ -1258,8 +1258,8 @@ fn results_table(r: &burnin::experiment::Results) -> String {
     let lw = label_width(r.learners.iter().map(|l| l.label.as_str()));
     let _ = writeln!(
         o,
-        "\n{:<lw$}  {:>12}  {:>21}  {:>6}  {:>24}  {:>10}",
-        "learner", "regret at K", "95% interval", "slope", "burn-in [95% bootstrap]", "updates"
+        "\n{:<lw$}  {:>12}  {:>21}  {:>22}  {:>10}  burn-in [95% bootstrap]",
+        "learner", "regret at K", "95% interval", "slope [95% bootstrap]", "updates"
     );
     for l in &r.learners {
         let last = l.regret_mean.len() - 1;
@@ -1271,7 +1271,7 @@ fn results_table(r: &burnin::experiment::Results) -> String {
         );
         let _ = writeln!(
             o,
-            "{:<lw$}  {:>12.3}  {:>21}  {:>6}  {:>24}  {:>10.1}",
+            "{:<lw$}  {:>12.3}  {:>21}  {:>22}  {:>10.1}  {}",
             l.label,
             l.regret_mean[last],
             if r.seeds < 2 {
@@ -1279,9 +1279,9 @@ fn results_table(r: &burnin::experiment::Results) -> String {
             } else {
                 format!("[{:.3}, {:.3}]", l.regret_lo[last], l.regret_hi[last])
             },
-            l.slope.map_or("—".into(), |s| format!("{s:.3}")),
-            burn_in_text(l.burn_in, l.burn_in_interval),
-            upd
+            l.slope_text(),
+            upd,
+            l.burn_in_text(),
         );
     }
     let _ = writeln!(
@@ -1369,16 +1369,6 @@ fn results_table(r: &burnin::experiment::Results) -> String {
         }
     }
     o
-}
-
-/// A burn-in and its interval: "1773 [1200, 2400]", "— (not settled)".
-fn burn_in_text(b: Option<u64>, interval: Option<(Option<u64>, Option<u64>)>) -> String {
-    let k = |x: Option<u64>| x.map_or("not settled".to_string(), |x| x.to_string());
-    match (b, interval) {
-        (None, None | Some((None, None))) => "not settled".to_string(),
-        (b, Some((lo, hi))) => format!("{} [{}, {}]", k(b), k(lo), k(hi)),
-        (b, None) => k(b),
-    }
 }
 
 /// The median of per-seed episode numbers, or how many seeds never got there.
