@@ -711,3 +711,72 @@ fn results_with_any_list_cut_short_are_refused_or_read_never_a_panic() {
         }
     }
 }
+
+fn output_of(e: Value) -> burnin::experiment::Output {
+    let exp = parse_experiment(&e.to_string(), None).unwrap();
+    let mut q = burnin::experiment::RunQueue::new(exp);
+    while !q.advance(u64::MAX) {}
+    q.output()
+}
+
+/// The summary CSV of a sweep that changes H (#33): the default ε targets
+/// are H/10 and H/20 (docs/formats.md), so each row carries its own —
+/// 0.4 and 0.2 at H = 4, 0.8 and 0.4 at H = 8 (derived by hand) — in
+/// columns eps_1, eps_2, not in a header written for the first point.
+#[test]
+fn the_summary_csv_of_a_sweep_over_h_names_each_rows_own_eps() {
+    let csv = output_of(sweep_experiment(
+        json!({"parameter": "horizon", "values": [4, 8]}),
+    ))
+    .summary_csv();
+    let mut lines = csv.lines();
+    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let col = |name: &str| head.iter().position(|h| *h == name).unwrap();
+    assert!(!head.iter().any(|h| h.contains("0.4")), "{head:?}");
+    let rows: Vec<Vec<&str>> = lines.map(|l| l.split(',').collect()).collect();
+    assert_eq!(rows.len(), 4, "two learners × two values");
+    for r in rows {
+        let h: f64 = r[col("horizon")].parse().unwrap();
+        assert_eq!(r[col("eps_1")].parse::<f64>().unwrap(), h / 10.0);
+        assert_eq!(r[col("eps_2")].parse::<f64>().unwrap(), h / 20.0);
+        assert_eq!(r[col("seeds")], "2");
+    }
+}
+
+/// Numbers that say only what the data says (#33): with one seed there is
+/// no interval, so the CSVs leave lo and hi empty (never lo = hi = mean);
+/// a median of an even count is the mean of the middle two (the textbook
+/// definition, e.g. Freedman, Pisani & Purves, Statistics, ch. 4, from memory).
+#[test]
+fn one_seed_leaves_intervals_empty_and_medians_are_medians() {
+    use burnin::experiment::{median_of, median_text};
+    assert_eq!(median_of(&[4, 1, 3, 2]), Some(2.5));
+    assert_eq!(median_of(&[5, 1, 3]), Some(3.0));
+    assert_eq!(median_of(&[]), None);
+    assert_eq!(median_text(&[Some(10), Some(20)]), "15");
+    assert_eq!(median_text(&[Some(10), None]), "not in 1 of 2");
+    let mut e = base();
+    e["seeds"] = json!(1);
+    let out = output_of(e);
+    let summary = out.summary_csv();
+    let head: Vec<&str> = summary.lines().next().unwrap().split(',').collect();
+    let col = |name: &str| head.iter().position(|h| *h == name).unwrap();
+    for row in summary.lines().skip(1) {
+        let r: Vec<&str> = row.split(',').collect();
+        for name in [
+            "regret_lo",
+            "regret_hi",
+            "slope_lo",
+            "slope_hi",
+            "burn_in_lo",
+            "burn_in_hi",
+        ] {
+            assert_eq!(r[col(name)], "", "{name} in {row}");
+        }
+    }
+    let curves = out.to_csv();
+    for row in curves.lines().skip(1) {
+        let r: Vec<&str> = row.split(',').collect();
+        assert_eq!((r[4], r[5]), ("", ""), "{row}");
+    }
+}

@@ -29,12 +29,6 @@ export const DEFAULT_SETUP = {
 
 const $ = (id) => document.getElementById(id);
 
-/** The median of per-seed episode numbers, or in how many seeds none came. */
-function medianText(xs) {
-  const got = xs.filter((x) => x !== null).sort((a, b) => a - b);
-  return got.length === xs.length ? `median ${grouped(got[Math.floor(got.length / 2)])}` : `not in ${xs.length - got.length} of ${xs.length} seeds`;
-}
-
 /**
  * Results as the view keeps them, from the core's reading of a results
  * file or a merge ({json, csv, cellsCsv, summaryCsv, seedsCsv, chartText,
@@ -571,7 +565,9 @@ export class ExperimentView {
     $('export-summary').disabled = !this.results.summaryCsv;
     $('export-seeds').disabled = !this.results.seedsCsv;
     const decomposed = !sweep && data.learners.some((l) => l.regret_by_cell?.length);
-    $('export-cells').disabled = !decomposed || !this.results.cellsCsv;
+    // A sweep's cells CSV holds every point's cells, the swept value first.
+    const anyCells = decomposed || (sweep && data.points.some((p) => p.learners.some((l) => l.regret_by_cell?.length)));
+    $('export-cells').disabled = !anyCells || !this.results.cellsCsv;
     for (const o of $('heat-view').options) if (o.value !== 'visits') o.disabled = !decomposed || (o.value === 'regret-diff' && data.learners.length < 2);
     if ($('heat-view').selectedOptions[0]?.disabled) $('heat-view').value = 'visits';
     $('save-results').disabled = !r.experiment;
@@ -716,11 +712,11 @@ export class ExperimentView {
         tr.append(el('th', l.label), el('td', short(l.regret_mean[last]), { 'data-value': String(l.regret_mean[last]) }), el('td', interval(d, l.regret_lo[last], l.regret_hi[last])),
           el('td', reading(i).slope), el('td', reading(i).burn_in),
           el('td', updates.toFixed(1)));
-        for (const e of l.episodes_to_eps) {
+        l.episodes_to_eps.forEach((e, j) => {
           const share = (e.optimal_share || []).reduce((a, b) => a + b, 0) / Math.max(1, (e.optimal_share || []).length);
-          const first = e.first_optimal ? medianText(e.first_optimal) : '—';
-          tr.append(el('td', `${first} · ${(100 * share).toFixed(1)}% · ${medianText(e.episodes)}`));
-        }
+          const first = reading(i).first_optimal?.[j] ?? '—';
+          tr.append(el('td', `${first} · ${(100 * share).toFixed(1)}% · ${reading(i).settled_within?.[j] ?? '—'}`));
+        });
         body.append(tr);
       }
     }

@@ -33,7 +33,7 @@ pub use readings::{
 pub use results::{
     Cell, Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS, MAX_SEED_CURVE_VALUES,
     RESULTS_FORMAT, RESULTS_VERSION, Results, SWEEP_FORMAT, SweepLearner, SweepResults, csv_field,
-    parse_results, summarise, verdict,
+    median_of, median_text, parse_results, slope_digits, summarise, verdict,
 };
 pub use spec::{
     DEFAULT_SEEDS, EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary,
@@ -527,6 +527,10 @@ pub struct ReadingTexts {
     pub label: String,
     pub slope: String,
     pub burn_in: String,
+    /// Per ε target: the median first ε-optimal episode and the median
+    /// episode after which it stayed within ε ([`median_text`]).
+    pub first_optimal: Vec<String>,
+    pub settled_within: Vec<String>,
 }
 
 impl Output {
@@ -540,6 +544,16 @@ impl Output {
                     label: l.label.clone(),
                     slope: l.slope_text(),
                     burn_in: l.burn_in_text(),
+                    first_optimal: l
+                        .episodes_to_eps
+                        .iter()
+                        .map(|e| median_text(&e.first_optimal))
+                        .collect(),
+                    settled_within: l
+                        .episodes_to_eps
+                        .iter()
+                        .map(|e| median_text(&e.episodes))
+                        .collect(),
                 })
                 .collect()
         };

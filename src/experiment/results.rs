@@ -131,6 +131,30 @@ pub fn slope_digits(width: f64) -> usize {
     (lead + 1.0).clamp(1.0, 4.0) as usize
 }
 
+/// The median of whole numbers: the middle one, or for an even count the
+/// mean of the middle two (the textbook definition); None when empty.
+pub fn median_of(xs: &[u64]) -> Option<f64> {
+    let mut v = xs.to_vec();
+    v.sort_unstable();
+    let n = v.len();
+    match n {
+        0 => None,
+        _ if n % 2 == 1 => Some(v[n / 2] as f64),
+        _ => Some((v[n / 2 - 1] as f64 + v[n / 2] as f64) / 2.0),
+    }
+}
+
+/// The median of per-seed episode numbers as the tables print it ("1250",
+/// "1250.5" for an even count), or in how many seeds none came ("not in 2
+/// of 8").
+pub fn median_text(xs: &[Option<u64>]) -> String {
+    let got: Vec<u64> = xs.iter().flatten().copied().collect();
+    if got.len() < xs.len() {
+        return format!("not in {} of {}", xs.len() - got.len(), xs.len());
+    }
+    median_of(&got).map_or("—".into(), |m| m.to_string())
+}
+
 /// Most per-seed curve values a learner's results carry (seeds ×
 /// checkpoints): 100 000, so a results file stays a few megabytes.
 pub const MAX_SEED_CURVE_VALUES: usize = 100_000;
@@ -511,41 +535,74 @@ impl Results {
     /// seeds reached one) and the mean share of ε-optimal episodes.
     pub fn summary_csv(&self) -> String {
         let mut o = String::from(
-            "learner,algorithm,regret_at_k,regret_lo,regret_hi,slope,burn_in,burn_in_lo,burn_in_hi,model_updates",
+            "learner,algorithm,regret_at_k,regret_lo,regret_hi,slope,slope_lo,slope_hi,burn_in,burn_in_lo,burn_in_hi,seeds,seeds_settled,seeds_linear_at_k,model_updates_mean,bound_at_k,bound_applies",
         );
-        let eps: Vec<f64> = self.learners.first().map_or(Vec::new(), |l| {
-            l.episodes_to_eps.iter().map(|e| e.epsilon).collect()
-        });
-        for e in &eps {
-            o.push_str(&format!(",first_optimal_eps_{e},optimal_share_eps_{e}"));
+        let targets = self
+            .learners
+            .iter()
+            .map(|l| l.episodes_to_eps.len())
+            .max()
+            .unwrap_or(0);
+        for i in 1..=targets {
+            o.push_str(&format!(
+                ",eps_{i},first_optimal_median_{i},optimal_share_mean_{i}"
+            ));
         }
         o.push('\n');
         let opt = |x: Option<u64>| x.map_or(String::new(), |x| x.to_string());
+        let one_seed = self.seeds < 2;
         for l in &self.learners {
             let k = l.regret_mean.len() - 1;
             let (blo, bhi) = l.burn_in_interval.unwrap_or((None, None));
+            let (slo, shi) = l
+                .slope_interval
+                .map_or((String::new(), String::new()), |(a, b)| {
+                    (a.to_string(), b.to_string())
+                });
+            let (rlo, rhi) = if one_seed {
+                (String::new(), String::new())
+            } else {
+                (l.regret_lo[k].to_string(), l.regret_hi[k].to_string())
+            };
             let updates =
                 l.model_updates.iter().sum::<u64>() as f64 / l.model_updates.len().max(1) as f64;
+            let (settled, linear) = if l.burn_in_by_seed.is_empty() {
+                (String::new(), String::new())
+            } else {
+                (
+                    l.burn_in_by_seed.iter().flatten().count().to_string(),
+                    opt(l.seeds_linear_at_k),
+                )
+            };
+            let (bound, applies) = l
+                .bound
+                .as_ref()
+                .map_or((String::new(), String::new()), |b| {
+                    (b.values[k].to_string(), b.applies.to_string())
+                });
             o.push_str(&format!(
-                "{},{},{},{},{},{},{},{},{},{updates}",
+                "{},{},{},{rlo},{rhi},{},{slo},{shi},{},{},{},{},{settled},{linear},{updates},{bound},{applies}",
                 csv_field(&l.label),
                 l.algorithm,
                 l.regret_mean[k],
-                l.regret_lo[k],
-                l.regret_hi[k],
                 l.slope.map_or(String::new(), |s| s.to_string()),
                 opt(l.burn_in),
                 opt(blo),
                 opt(bhi),
+                l.run_seeds.len(),
             ));
             for e in &l.episodes_to_eps {
-                let mut firsts: Vec<u64> = e.first_optimal.iter().filter_map(|x| *x).collect();
-                firsts.sort_unstable();
-                let median = (firsts.len() == e.first_optimal.len() && !firsts.is_empty())
-                    .then(|| firsts[firsts.len() / 2]);
+                let firsts: Vec<u64> = e.first_optimal.iter().filter_map(|x| *x).collect();
+                let median = (firsts.len() == e.first_optimal.len())
+                    .then(|| median_of(&firsts))
+                    .flatten();
                 let share =
                     e.optimal_share.iter().sum::<f64>() / e.optimal_share.len().max(1) as f64;
-                o.push_str(&format!(",{},{share}", opt(median)));
+                o.push_str(&format!(
+                    ",{},{},{share}",
+                    e.epsilon,
+                    median.map_or(String::new(), |m| m.to_string())
+                ));
             }
             o.push('\n');
         }
@@ -585,9 +642,21 @@ impl Results {
     /// One row per (learner, checkpoint).
     pub fn to_csv(&self) -> String {
         let mut o = String::from(
-            "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,return_mean,bound,lower_bound\n",
+            "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,return_mean,bound,bound_applies,lower_bound\n",
         );
+        let one_seed = self.seeds < 2;
+        let iv = |x: f64| {
+            if one_seed {
+                String::new()
+            } else {
+                x.to_string()
+            }
+        };
         for l in &self.learners {
+            let applies = l
+                .bound
+                .as_ref()
+                .map_or(String::new(), |b| b.applies.to_string());
             for (c, k) in l.checkpoints.iter().enumerate() {
                 let bound = l
                     .bound
@@ -595,12 +664,12 @@ impl Results {
                     .map(|b| b.values[c].to_string())
                     .unwrap_or_default();
                 o.push_str(&format!(
-                    "{},{},{k},{},{},{},{},{},{bound},{}\n",
+                    "{},{},{k},{},{},{},{},{},{bound},{applies},{}\n",
                     csv_field(&l.label),
                     l.algorithm,
                     l.regret_mean[c],
-                    l.regret_lo[c],
-                    l.regret_hi[c],
+                    iv(l.regret_lo[c]),
+                    iv(l.regret_hi[c]),
                     l.episode_regret_mean[c],
                     l.return_mean[c],
                     self.lower_bound.values[c],

@@ -1138,6 +1138,19 @@ fn sweep_table(r: &burnin::experiment::SweepResults) -> String {
         }
         o.push('\n');
     }
+    // Every reading per point, as the one-point table prints it.
+    let _ = writeln!(
+        o,
+        "\nslope [95% bootstrap] and burn-in [95% bootstrap] at each {}",
+        r.parameter
+    );
+    let texts = burnin::experiment::Output::Sweep(r.clone()).reading_texts();
+    for (v, point) in r.values.iter().zip(&texts) {
+        let _ = writeln!(o, "{} = {v}", r.parameter);
+        for t in point {
+            let _ = writeln!(o, "  {:<lw$}  {:>22}  {}", t.label, t.slope, t.burn_in);
+        }
+    }
     o
 }
 
@@ -1318,10 +1331,10 @@ fn results_table(r: &burnin::experiment::Results) -> String {
                     "{:<lw$}  {:>8.4}  {:>16}  {:>12.4e}  {:>8.1}%  {:>22}",
                     l.label,
                     e.epsilon,
-                    median_text(&e.first_optimal),
+                    burnin::experiment::median_text(&e.first_optimal),
                     e.pac_order,
                     100.0 * share,
-                    median_text(&e.episodes)
+                    burnin::experiment::median_text(&e.episodes)
                 );
             }
         }
@@ -1369,16 +1382,6 @@ fn results_table(r: &burnin::experiment::Results) -> String {
         }
     }
     o
-}
-
-/// The median of per-seed episode numbers, or how many seeds never got there.
-fn median_text(xs: &[Option<u64>]) -> String {
-    let mut got: Vec<u64> = xs.iter().flatten().copied().collect();
-    if got.len() < xs.len() {
-        return format!("not in {} of {}", xs.len() - got.len(), xs.len());
-    }
-    got.sort_unstable();
-    got.get(got.len() / 2).map_or("—".into(), |m| m.to_string())
 }
 
 /// Peak resident memory of this process (Linux), in bytes.
