@@ -167,6 +167,7 @@ pub fn learn_experiment(algorithm: Algorithm, episodes: u64) -> Experiment {
         delta: 0.05,
         checkpoints: 64,
         decompose: false,
+        shared_draws: false,
         learners: vec![LearnerSpec {
             label: algorithm.key().into(),
             source: Source::Builtin(algorithm),

@@ -780,3 +780,94 @@ fn one_seed_leaves_intervals_empty_and_medians_are_medians() {
         assert_eq!((r[4], r[5]), ("", ""), "{row}");
     }
 }
+
+/// Common random numbers (#33, docs/formats.md `shared_draws`): two
+/// identical deterministic learners (UCBVI at the same parameters) differ
+/// by exactly 0 under shared draws — the same environment draws and the
+/// same stream for their own tie-breaks — and the paired interval is [0, 0];
+/// with independent draws (the default) they differ (common practice: the
+/// defining property of common random numbers, Glasserman & Yao 1992).
+#[test]
+fn shared_draws_make_identical_learners_identical() {
+    use burnin::experiment::Output;
+    let run = |shared: bool| {
+        let mut e = base();
+        e["episodes"] = json!(500);
+        e["seeds"] = json!(4);
+        e["shared_draws"] = json!(shared);
+        e["learners"] = json!([
+            {"algorithm": "ucbvi-hoeffding", "bonus_scale": 0.05, "label": "a"},
+            {"algorithm": "ucbvi-hoeffding", "bonus_scale": 0.05, "label": "b"}
+        ]);
+        let Output::Single(r) = output_of(e) else {
+            panic!("no sweep")
+        };
+        r
+    };
+    let shared = run(true);
+    assert!(shared.shared_draws);
+    assert_eq!(
+        shared.learners[0].regret_by_seed,
+        shared.learners[1].regret_by_seed
+    );
+    let c = &shared.comparisons[0];
+    assert_eq!((c.at_k.mean, c.at_k.lo, c.at_k.hi), (0.0, 0.0, 0.0));
+    assert_eq!(c.p_value, Some(1.0));
+    let independent = run(false);
+    assert!(!independent.shared_draws);
+    assert_ne!(
+        independent.learners[0].regret_by_seed,
+        independent.learners[1].regret_by_seed
+    );
+}
+
+/// Shared draws narrow the paired interval of two close learners (UCBVI
+/// at bonus scales 0.05 and 0.07 on the reef, 8 seeds, K = 1000): much of
+/// the difference between independent runs is the environment's noise
+/// (measured when written: see README's comparison section for the
+/// ratio on the ready experiments).
+#[test]
+fn shared_draws_narrow_the_paired_interval() {
+    use burnin::experiment::Output;
+    let width = |shared: bool| {
+        let mut e = base();
+        e["seeds"] = json!(8);
+        e["shared_draws"] = json!(shared);
+        e["learners"] = json!([
+            {"algorithm": "ucbvi-hoeffding", "bonus_scale": 0.05},
+            {"algorithm": "ucbvi-hoeffding", "bonus_scale": 0.07}
+        ]);
+        let Output::Single(r) = output_of(e) else {
+            panic!("no sweep")
+        };
+        let c = &r.comparisons[0];
+        c.at_k.hi - c.at_k.lo
+    };
+    let (shared, independent) = (width(true), width(false));
+    assert!(shared < independent, "{shared} against {independent}");
+}
+
+/// With more than one comparison the verdict gives the paired t-test's
+/// p-value and Holm's adjustment over all of them (stats::holm, checked
+/// against statsmodels); the adjusted values are Holm's of the raw ones.
+#[test]
+fn verdicts_say_how_many_comparisons_were_made() {
+    use burnin::experiment::Output;
+    let mut e = base();
+    e["seeds"] = json!(6);
+    e["learners"] =
+        json!([{"algorithm": "uniform"}, {"algorithm": "psrl"}, {"algorithm": "eps-greedy"}]);
+    let Output::Single(r) = output_of(e) else {
+        panic!("no sweep")
+    };
+    let raw: Vec<f64> = r.comparisons.iter().map(|c| c.p_value.unwrap()).collect();
+    let adjusted = burnin::stats::holm(&raw);
+    for (c, want) in r.comparisons.iter().zip(adjusted) {
+        assert_eq!(c.p_holm, Some(want));
+        assert!(
+            c.verdict.contains("Holm-adjusted over 3 comparisons p = "),
+            "{}",
+            c.verdict
+        );
+    }
+}

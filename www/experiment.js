@@ -328,6 +328,7 @@ export class ExperimentView {
       episodes: Number($('exp-episodes').value), seeds: Number($('exp-seeds').value),
       seed: Number($('exp-seed').value), delta: Number($('exp-delta').value),
       decompose: $('exp-decompose').checked,
+      sharedDraws: $('exp-shared').checked,
       learners: [...this.rows.children].map((tr) => {
         const [use, alg, param, label] = tr.querySelectorAll('input, select');
         if (alg.value.startsWith('guest:')) return { use: use.checked, guest: alg.value.slice(6), value: null, label: label.value };
@@ -344,6 +345,7 @@ export class ExperimentView {
     $('exp-seed').value = String(d.seed);
     $('exp-delta').value = String(d.delta);
     $('exp-decompose').checked = Boolean(d.decompose);
+    $('exp-shared').checked = Boolean(d.sharedDraws);
     this.rows.replaceChildren();
     for (const l of Array.isArray(d.learners) ? d.learners : DEFAULT_SETUP.learners) {
       if (l && (this.algorithms.has(l.algorithm) || (typeof l.guest === 'string' && l.guest))) this.addRow(l);
@@ -379,6 +381,7 @@ export class ExperimentView {
     });
     const exp = { format: 'burnin-experiment', version: 1, name: `${m.name} experiment`, episodes: s.episodes, seeds: s.seeds, seed: s.seed, delta: s.delta, learners };
     if (s.decompose) exp.decompose = true;
+    if (s.sharedDraws) exp.shared_draws = true;
     if (s.sweep.parameter) {
       exp.sweep = { parameter: s.sweep.parameter, values: s.sweep.values.split(/[,\s]+/).filter(Boolean).map(Number) };
       // Learners the sweep could apply to, and those the user left it on for.

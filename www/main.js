@@ -145,7 +145,7 @@ function setupFromSummary(e) {
   return {
     episodes: e.episodes, seeds: e.seeds, seed: e.seed, delta: e.delta,
     learners: e.learners.map((l) => ({ use: true, algorithm: l.algorithm, guest: l.guest ?? undefined, value: l.param, label: l.default_label ? '' : l.label, swept: !e.sweep?.learners || e.sweep.learners.includes(l.label) })),
-    decompose: e.decompose,
+    decompose: e.decompose, sharedDraws: e.shared_draws,
     sweep: e.sweep ? { parameter: e.sweep.parameter, values: e.sweep.values.join(', ') } : { parameter: '', values: '' },
   };
 }

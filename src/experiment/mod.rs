@@ -68,6 +68,30 @@ pub fn run_seed(base: u64, learner: usize, seed: u64) -> u64 {
         & ((1 << 53) - 1)
 }
 
+/// Seeds of runs with common random numbers (an experiment's
+/// `shared_draws`): every learner's run j gets the learner seed
+/// `shared_seeds(base, j).0` for its own randomness (53 bits, as
+/// [`run_seed`]) and the environment base `.1`, from which each episode's
+/// start state and each step's reward and next state are drawn by a
+/// generator of their own ([`draw_seed`]). Two learners in the same state
+/// taking the same action at the same (episode, step) therefore see the
+/// same reward and next state, and two identical learners the same run
+/// (common random numbers: Glasserman & Yao, "Some guidelines and
+/// guarantees for common random numbers", Management Science 38(6), 1992).
+pub fn shared_seeds(base: u64, seed: u64) -> (u64, u64) {
+    let learner =
+        splitmix(splitmix(base ^ splitmix(seed)) ^ 0x5EED_5EED_0000_0001) & ((1 << 53) - 1);
+    let env = splitmix(splitmix(base ^ splitmix(seed)) ^ 0x5EED_5EED_0000_0002);
+    (learner, env)
+}
+
+/// The seed of the generator that draws step `step` of episode `episode`
+/// (0-based; step H draws the episode's start state) from an environment
+/// base of [`shared_seeds`].
+pub fn draw_seed(env: u64, episode: u64, step: u64) -> u64 {
+    splitmix(env ^ splitmix(episode.wrapping_mul(0x1_0000_0001).wrapping_add(step)))
+}
+
 /// The largest seed [`fresh_seed`] gives (nine digits: easy to read out and
 /// type back).
 pub const FRESH_SEED_MAX: u64 = 999_999_999;
@@ -241,6 +265,9 @@ pub struct Run {
 struct RunState {
     ctx: Arc<Point>,
     rng: LearnRng,
+    /// With shared draws, the environment base of [`shared_seeds`]: the
+    /// environment then draws from generators of its own, not from `rng`.
+    env: Option<u64>,
     eval: Evaluator,
     done: u64,
     cum_regret: f64,
@@ -261,7 +288,12 @@ impl Run {
     pub fn new(ctx: Arc<Point>, index: usize) -> Run {
         let seeds = ctx.exp.seeds as usize;
         let (li, si) = (index / seeds, (index % seeds) as u64);
-        let seed = run_seed(ctx.exp.seed, li, si);
+        let (seed, env) = if ctx.exp.shared_draws {
+            let (seed, env) = shared_seeds(ctx.exp.seed, si);
+            (seed, Some(env))
+        } else {
+            (run_seed(ctx.exp.seed, li, si), None)
+        };
         let spec = &ctx.exp.learners[li];
         let m = &ctx.exp.model;
         let learner = match &spec.source {
@@ -304,6 +336,7 @@ impl Run {
             state: RunState {
                 eval: Evaluator::new(m),
                 rng: LearnRng::seed_from_u64(seed),
+                env,
                 done: 0,
                 cum_regret: 0.0,
                 cum_return: 0.0,
@@ -387,14 +420,30 @@ impl RunState {
                 }
             };
             self.policy_episodes += 1;
-            let mut s = ctx.sampler.start(&mut self.rng);
+            let episode = self.done;
+            let env = self.env;
+            let draws = |step: usize| {
+                env.map(|e| LearnRng::seed_from_u64(draw_seed(e, episode, step as u64)))
+            };
+            let mut s = match draws(h_n) {
+                Some(mut g) => ctx.sampler.start(&mut g),
+                None => ctx.sampler.start(&mut self.rng),
+            };
             let mut ret = 0.0;
             for h in 0..h_n {
                 let a = learner.act(h, s, &mut self.rng);
                 debug_assert!(a < a_n);
                 let row = s * a_n + a;
-                let r = sample::reward(&mut self.rng, m.step(h).reward(row));
-                let next = ctx.sampler.next(&mut self.rng, h, row);
+                let (r, next) = match draws(h) {
+                    Some(mut g) => (
+                        sample::reward(&mut g, m.step(h).reward(row)),
+                        ctx.sampler.next(&mut g, h, row),
+                    ),
+                    None => (
+                        sample::reward(&mut self.rng, m.step(h).reward(row)),
+                        ctx.sampler.next(&mut self.rng, h, row),
+                    ),
+                };
                 learner.observe(h, s, a, r, next, &mut self.rng);
                 self.record.visits[h * s_n + s] += 1;
                 ret += r;

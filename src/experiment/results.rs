@@ -6,7 +6,7 @@ use serde::{Deserialize, Serialize};
 use super::readings::{read_seeds, tail_slope};
 use super::{Point, RunRecord};
 use crate::model::Problems;
-use crate::stats::{Paired, interval95, mean, paired95};
+use crate::stats::{Paired, holm, interval95, mean, paired_p_value, paired95};
 use crate::theory::{self, Bound};
 
 pub const RESULTS_FORMAT: &str = "burnin-results";
@@ -255,6 +255,10 @@ pub struct Results {
     /// The minimax lower-bound shape at the checkpoints.
     pub lower_bound: Bound,
     pub learners: Vec<LearnerResult>,
+    /// Whether the runs used common random numbers (the experiment's
+    /// `shared_draws`); false in files written before it was added.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub shared_draws: bool,
     /// Paired comparisons of learners (see [`compare`]); absent in files
     /// written before they were added.
     #[serde(default)]
@@ -282,8 +286,48 @@ pub struct Comparison {
     pub difference_hi: Vec<f64>,
     /// The same at K.
     pub at_k: Paired,
-    /// One line that says it: "A below B at K = …, 95% paired interval […]".
+    /// One line that says it: "A below B at K = …, 95% paired interval […]",
+    /// with the p-values when more than one comparison was made.
     pub verdict: String,
+    /// Two-sided p-value of the paired t-test at K (null with one seed, and
+    /// in files written before it was added).
+    #[serde(default)]
+    pub p_value: Option<f64>,
+    /// That p-value adjusted by Holm's procedure over all the comparisons
+    /// of the results ([`crate::stats::holm`]).
+    #[serde(default)]
+    pub p_holm: Option<f64>,
+}
+
+/// A p-value as the verdict prints it: three decimals, or two significant
+/// digits below 0.001.
+fn p_text(p: f64) -> String {
+    if p < 0.001 {
+        format!("{p:.1e}")
+    } else {
+        format!("{p:.3}")
+    }
+}
+
+/// The verdict line of a comparison at K, followed, when `of` > 1
+/// comparisons were made, by its p-value and the Holm-adjusted one.
+pub fn verdict_of(
+    a: &str,
+    b: &str,
+    k: u64,
+    p: &Paired,
+    pv: Option<(f64, f64)>,
+    of: usize,
+) -> String {
+    let mut v = verdict(a, b, k, p);
+    if let (Some((raw, adjusted)), true) = (pv, of > 1) {
+        v.push_str(&format!(
+            "; p = {}, Holm-adjusted over {of} comparisons p = {}",
+            p_text(raw),
+            p_text(adjusted)
+        ));
+    }
+    v
 }
 
 /// The verdict line of a comparison at K.
@@ -318,27 +362,44 @@ fn compare(labels: &[&str], runs: &[Vec<&RunRecord>], episodes: u64) -> Vec<Comp
     } else {
         (1..n).map(|j| (0, j)).collect()
     };
-    pairs
+    let mut out: Vec<Comparison> = pairs
         .into_iter()
         .map(|(i, j)| {
-            let at = |c: usize| {
-                let col = |l: usize| runs[l].iter().map(|r| r.regret[c]).collect::<Vec<f64>>();
-                paired95(&col(i), &col(j))
-            };
+            let col =
+                |l: usize, c: usize| runs[l].iter().map(|r| r.regret[c]).collect::<Vec<f64>>();
             let cps = runs[i].first().map_or(0, |r| r.regret.len());
-            let curve: Vec<Paired> = (0..cps).map(at).collect();
+            let curve: Vec<Paired> = (0..cps).map(|c| paired95(&col(i, c), &col(j, c))).collect();
             let at_k = *curve.last().expect("at least one checkpoint");
+            let d: Vec<f64> = col(i, cps - 1)
+                .iter()
+                .zip(col(j, cps - 1))
+                .map(|(x, y)| x - y)
+                .collect();
             Comparison {
                 a: labels[i].to_owned(),
                 b: labels[j].to_owned(),
                 difference_mean: curve.iter().map(|p| p.mean).collect(),
                 difference_lo: curve.iter().map(|p| p.lo).collect(),
                 difference_hi: curve.iter().map(|p| p.hi).collect(),
-                verdict: verdict(labels[i], labels[j], episodes, &at_k),
+                verdict: String::new(),
                 at_k,
+                p_value: paired_p_value(&d),
+                p_holm: None,
             }
         })
-        .collect()
+        .collect();
+    let raw: Vec<f64> = out.iter().filter_map(|c| c.p_value).collect();
+    if raw.len() == out.len() {
+        for (c, adjusted) in out.iter_mut().zip(holm(&raw)) {
+            c.p_holm = Some(adjusted);
+        }
+    }
+    let of = out.len();
+    for c in &mut out {
+        let pv = c.p_value.zip(c.p_holm);
+        c.verdict = verdict_of(&c.a, &c.b, episodes, &c.at_k, pv, of);
+    }
+    out
 }
 
 /// Summarises finished runs (any order) into results.
@@ -499,6 +560,7 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
         delta: exp.delta,
         lower_bound: theory::lower_bound(&set, ks),
         comparisons: compare(&labels, &by_learner, exp.episodes),
+        shared_draws: exp.shared_draws,
         learners,
         failed: Vec::new(),
     }

@@ -207,6 +207,13 @@ pub struct Experiment {
     /// by default, since it costs a forward pass per policy change (1.7–2.3×
     /// the run time of learners that change policy often; BENCHMARKS.md).
     pub decompose: bool,
+    /// Common random numbers: seed index j gives every learner the same
+    /// environment draws (start states, rewards and transitions, from a
+    /// stream of their own per (episode, step)) and the same stream for the
+    /// learner's own randomness, so paired differences cancel the
+    /// environment's noise (see [`super::shared_seeds`]). Off by default:
+    /// each run then draws from its own generator, as before.
+    pub shared_draws: bool,
     /// The ε of the empirical sample complexity (default H/10 and H/20).
     pub eps_targets: Vec<f64>,
     pub learners: Vec<LearnerSpec>,
@@ -223,6 +230,7 @@ pub struct ExperimentSummary {
     pub delta: f64,
     pub checkpoints: u64,
     pub decompose: bool,
+    pub shared_draws: bool,
     pub learners: Vec<LearnerSummary>,
     /// `{"parameter": key, "values": […]}`, when the experiment sweeps.
     pub sweep: Option<serde_json::Value>,
@@ -267,6 +275,7 @@ impl Experiment {
             delta: self.delta,
             checkpoints: self.checkpoints,
             decompose: self.decompose,
+            shared_draws: self.shared_draws,
             learners: self
                 .learners
                 .iter()
@@ -313,6 +322,7 @@ lax_object! {
         delta: Lax<f64>,
         checkpoints: Lax<f64>,
         decompose: Lax<bool>,
+        shared_draws: Lax<bool>,
         eps_targets: Lax<List<Lax<f64>, MAX_EPS_TARGETS>>,
         learners: Lax<List<Lax<RawLearner>, MAX_LEARNERS>>,
         sweep: crate::format::Bounded,
@@ -711,6 +721,10 @@ fn convert(
         None => Some(false),
         Some(v) => r.take("decompose", v, "true or false"),
     };
+    let shared_draws = match e.shared_draws {
+        None => Some(false),
+        Some(v) => r.take("shared_draws", v, "true or false"),
+    };
     let eps_targets = match e.eps_targets {
         None => Some(None),
         Some(v) => r
@@ -791,6 +805,7 @@ fn convert(
         delta: delta?,
         checkpoints: checkpoints?,
         decompose: decompose?,
+        shared_draws: shared_draws?,
         learners: specs,
     };
     if sweep_value.is_some() {
