@@ -2,7 +2,7 @@
 //! covers our learners (statistics per step, so every stationary theorem is
 //! read with S → S·H), and marked as not applying when the bonus is scaled.
 
-use burnin::learn::{Algorithm, AlgorithmKind, Setting};
+use burnin::learn::{Algorithm, AlgorithmKind, MvpSamples, Setting};
 
 fn setting() -> Setting {
     Setting {
@@ -58,6 +58,7 @@ fn ucbvi_hoeffding_terms_use_the_same_translation() {
 fn a_scaled_bonus_marks_the_bound_as_not_applying() {
     for kind in [
         AlgorithmKind::Mvp,
+        AlgorithmKind::Mvp2021,
         AlgorithmKind::UcbviHoeffding,
         AlgorithmKind::UcbviBernstein,
         AlgorithmKind::QUcbHoeffding,
@@ -100,11 +101,25 @@ fn mvp_marks_where_its_bonus_falls_below_h() {
     };
     assert!((burnin::learn::mvp_log_factor(&set) - 43.302_829_664).abs() < 1e-8);
     assert!((burnin::learn::mvp_largest_bonus(&set, 32_768.0) - 2.069_176_338).abs() < 1e-8);
-    assert_eq!(burnin::learn::mvp_visits_for_bonus_below_h(&set), 131_072.0);
-    let b = Algorithm::new(AlgorithmKind::Mvp)
-        .bound(&set, &[1, 10])
-        .unwrap();
-    assert_eq!(b.bonus_below_h, Some(524_288.0));
+    // The first MVP reads all 2^i samples at the rebuild at count 2^i, so
+    // the 65 536 samples of b(65 536) < 2 are read from 65 536 visits on:
+    // K* = 4·65 536 = 262 144.
+    for (kind, samples, n, k) in [
+        (
+            AlgorithmKind::Mvp,
+            MvpSamples::LatestBatch,
+            131_072.0,
+            524_288.0,
+        ),
+        (AlgorithmKind::Mvp2021, MvpSamples::All, 65_536.0, 262_144.0),
+    ] {
+        assert_eq!(
+            burnin::learn::mvp_visits_for_bonus_below_h(&set, samples),
+            n
+        );
+        let b = Algorithm::new(kind).bound(&set, &[1, 10]).unwrap();
+        assert_eq!(b.bonus_below_h, Some(k), "{kind:?}");
+    }
     // Not for a scaled bonus, nor for other learners.
     assert_eq!(
         Algorithm::with(AlgorithmKind::Mvp, 0.1)
@@ -117,4 +132,23 @@ fn mvp_marks_where_its_bonus_falls_below_h() {
         bound(AlgorithmKind::UcbviBernstein, 1.0).bonus_below_h,
         None
     );
+}
+
+/// The first MVP as Table 1 of arXiv:2307.13586 lists it: √(S·A·H³·K) +
+/// S²·A·H², minimax from K ≥ S³·A·H (derived by hand for S = 3, A = 2,
+/// H = 4: lower term 9·2·16 = 288, burn-in 27·2·4 = 216, and at K = 10⁴
+/// √(3·2·64·10⁴) + 288).
+#[test]
+fn mvp_2021_bound_is_table_1s_row() {
+    let b = bound(AlgorithmKind::Mvp2021, 1.0);
+    assert_eq!(b.burn_in, Some(216.0));
+    assert_eq!(b.values[0], 4.0, "capped at H·K for K = 1");
+    let want = (3.0f64 * 2.0 * 64.0 * 1e4).sqrt() + 288.0;
+    assert!(
+        (b.values[1] - want).abs() < 1e-9,
+        "{} vs {want}",
+        b.values[1]
+    );
+    assert!(b.formula.contains("S²·A·H²"), "{}", b.formula);
+    assert!(b.source.contains("Table 1"), "{}", b.source);
 }

@@ -12,8 +12,8 @@
 use serde::Serialize;
 
 use super::{
-    EpsGreedy, LearnRng, Learner, Mvp, PolicyView, Psrl, QUcbHoeffding, Setting, Ucb1, Ucbvi,
-    Uniform,
+    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcbHoeffding, Setting, Ucb1,
+    Ucbvi, Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -21,6 +21,7 @@ use crate::theory::{self, Bound};
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum AlgorithmKind {
     Mvp,
+    Mvp2021,
     UcbviHoeffding,
     UcbviBernstein,
     QUcbHoeffding,
@@ -151,6 +152,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bandit_only: false,
         has_bound: true,
         bound: Some(theory::mvp),
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::Mvp2021,
+        key: "mvp-2021",
+        name: "MVP (2021)",
+        param: Some(&BONUS),
+        reference: "Zhang, Ji & Du, Is Reinforcement Learning More Difficult Than Bandits? A Near-optimal Algorithm Escaping the Curse of Horizon, COLT 2021, arXiv:2009.13503 (as Remark 1 of arXiv:2307.13586 describes it)",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::mvp_2021),
     },
     AlgorithmInfo {
         kind: AlgorithmKind::UcbviHoeffding,
@@ -339,6 +350,7 @@ impl Algorithm {
         let (set, x) = (*set, self.param);
         Ok(match self.kind {
             AlgorithmKind::Mvp => AnyLearner::Mvp(Mvp::new(set, x)),
+            AlgorithmKind::Mvp2021 => AnyLearner::Mvp(Mvp::with_samples(set, x, MvpSamples::All)),
             AlgorithmKind::UcbviHoeffding => AnyLearner::Ucbvi(Ucbvi::new(set, x, false)),
             AlgorithmKind::UcbviBernstein => AnyLearner::Ucbvi(Ucbvi::new(set, x, true)),
             AlgorithmKind::QUcbHoeffding => AnyLearner::QUcbHoeffding(QUcbHoeffding::new(set, x)),
