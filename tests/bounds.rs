@@ -62,6 +62,7 @@ fn a_scaled_bonus_marks_the_bound_as_not_applying() {
         AlgorithmKind::UcbviHoeffding,
         AlgorithmKind::UcbviBernstein,
         AlgorithmKind::QUcbHoeffding,
+        AlgorithmKind::QUcbBernstein,
     ] {
         assert!(bound(kind, 1.0).applies, "{kind:?} at scale 1");
         let b = bound(kind, 0.05);
@@ -151,4 +152,23 @@ fn mvp_2021_bound_is_table_1s_row() {
     );
     assert!(b.formula.contains("S²·A·H²"), "{}", b.formula);
     assert!(b.source.contains("Table 1"), "{}", b.source);
+}
+
+/// Q-learning with the Bernstein bonus: Jin et al. (2018), Theorem 2,
+/// √(H³·S·A·T) + √(H⁹·S³·A³) with T = K·H, log factors dropped:
+/// √(S·A·H⁴·K) + √(S³·A³·H⁹), the √K term dominating from K = S²·A²·H⁵
+/// (derived by hand for S = 3, A = 2, H = 4: burn-in 9·4·1024 = 36 864,
+/// lower term √(27·8·4⁹) = √56 623 104, and at K = 10⁶ √(6·256·10⁶) plus it).
+#[test]
+fn q_ucb_bernstein_bound_is_theorem_2() {
+    let b = bound(AlgorithmKind::QUcbBernstein, 1.0);
+    assert_eq!(b.burn_in, Some(36_864.0));
+    let want = (6.0f64 * 256.0 * 1e6).sqrt() + 56_623_104f64.sqrt();
+    assert!(
+        (b.values[2] - want).abs() < 1e-6,
+        "{} vs {want}",
+        b.values[2]
+    );
+    assert_eq!(b.values[0], 4.0, "capped at H·K for K = 1");
+    assert!(b.source.contains("Theorem 2"), "{}", b.source);
 }

@@ -6,7 +6,7 @@ use std::sync::Arc;
 
 use burnin::experiment::{Point, Results, parse_experiment, run_all, summarise};
 use burnin::generate::{Bandit, Garnet};
-use burnin::learn::{LearnRng, Learner, Mvp, MvpSamples, Setting};
+use burnin::learn::{BERNSTEIN_C2, LearnRng, Learner, Mvp, MvpSamples, QUcb, Setting};
 use burnin::solve::{Policy, evaluate, solve};
 use burnin::{Mdp, write_model};
 use ndarray::Array3;
@@ -465,13 +465,15 @@ fn optimism_failures<L: Learner>(
 }
 
 /// Optimism, Q^k_h ≥ Q*_h for every k, h, s, a with probability 1 − δ,
-/// on which MVP's analysis rests (Zhang, Chen, Lee & Du 2024 and Zhang, Ji
-/// & Du 2021; from memory): at the start of each episode the learner's
+/// on which each analysis rests (Jin et al. 2018: Lemma 4.3 for the
+/// Hoeffding bonus and its counterpart in Appendix C for the Bernstein one;
+/// Zhang, Chen, Lee & Du 2024 and Zhang, Ji & Du 2021 for MVP; the lemma
+/// numbers from memory): at the start of each episode the learner's
 /// V₁(s) is at least the solver's exact V*₁(s) at every state, in all but a
 /// δ share of the (run, episode) checks. With the bonus scaled down the
-/// same check fails often, so it can fail; MVP's constants are large
-/// (c₁·√L ≈ 51·√28 ≈ 270), so at 0.01 its plan is still optimistic here and
-/// it takes 10⁻⁴.
+/// same check fails often, so it can fail: at 0.01 for Q-learning; MVP's
+/// constants are some 100× larger (c₁·√L ≈ 51·√28 ≈ 270 against c = 1), so
+/// at 0.01 its plan is still optimistic here and it takes 10⁻⁴.
 #[test]
 fn optimistic_values_stay_above_the_exact_optimum() {
     const K: u64 = 3000;
@@ -488,5 +490,208 @@ fn optimistic_values_stay_above_the_exact_optimum() {
         let (published, scaled) = (share(1.0), share(1e-4));
         assert!(published <= DELTA, "MVP {samples:?}: {published}");
         assert!(scaled > 0.25, "MVP {samples:?} at 10⁻⁴: {scaled}");
+    }
+    for bernstein in [false, true] {
+        let share = |scale: f64| {
+            optimism_failures(
+                K,
+                DELTA,
+                |set| QUcb::new(set, scale, bernstein),
+                |l, s| l.value(0, s),
+            )
+        };
+        let (published, scaled) = (share(1.0), share(0.01));
+        assert!(
+            published <= DELTA,
+            "Q-learning, Bernstein {bernstein}: {published}"
+        );
+        assert!(
+            scaled > 0.25,
+            "Q-learning, Bernstein {bernstein}, at 0.01: {scaled}"
+        );
+    }
+}
+
+/// Jin, Allen-Zhu, Bubeck & Jordan (2018), Appendix C, Algorithm 2, worked
+/// by hand on a two-state model with one action, H = 2, K = 1, δ = ½:
+/// T = K·H = 2, ι = ln(S·A·T/δ) = ln 8, √(H⁷·S·A) = √(128·2) = 16, our
+/// c₁ = c₂ = 1, and a bonus scale c = 1/10. Q and V start at H = 2.
+///
+/// Episode 1. (h=1, s₀) with r = ½ to s₁, where V₂(s₁) = 2: t = 1, α₁ = 1,
+/// μ = 2, σ = 4, W₁ = 4 − 2² = 0; β₁ = min(√(2·2·ι) + 16ι, √(8ι)) = √(8ι)
+/// (16ι > (√8 − 2)·√ι for ι ≥ 0.003); b₁ = β₁/2 = √(2ι); so
+/// Q₁(s₀) = ½ + 2 + x with x = c·√(2ι), and V₁(s₀) = min(2, ·) = 2.
+/// (h=2, s₁) with r = 1 (V₃ = 0): the same β₁ and b₁, so Q₂(s₁) = 1 + x and
+/// V₂(s₁) = 1 + x.
+///
+/// Episode 2. (h=1, s₀) with r = ½ to s₁, now V₂(s₁) = 1 + x: t = 2,
+/// α₂ = 3/4, W₂ = the variance of {2, 1 + x} = ((1 − x)/2)²;
+/// β₂ = min(√((W₂ + 2)·ι) + 8ι, √(4ι)) = 2√ι; b₂ = (2√ι − ¼·√(8ι))/(3/2)
+/// = (4 − √2)·√ι/3; Q₁(s₀) = ¼·(5/2 + x) + ¾·(½ + 1 + x + c·b₂)
+/// = 7/4 + (1/10 + 3√2/40)·√ι. (h=2, s₁) with r = 0: W = 0, the same β₂
+/// and b₂, Q₂(s₁) = ¼·(1 + x) + ¾·c·b₂ = ¼ + √ι/10.
+///
+/// The variance branch of the min binds only from t ≈ 373·ι on; so a second
+/// learner sees (h=2, s₁) with r = 1 once (V₂(s₁) = 1 + x, as above) and then
+/// (h=1, s₀) 2000 times, to s₁ and s₀ in turn (V₂(s₀) = 2, never updated):
+/// at t = 2000, W = the variance of 1000 × {1 + x, 2} = ((1 − x)/2)², and
+/// β = min(√((2/2000)·(W + 2)·ι) + 16ι/2000, √(8ι/2000)); at ι = ln 8
+/// (x ≈ 0.204) that is 0.0836 against the cap 0.0912: the first branch.
+#[test]
+fn q_learning_bernstein_first_updates_are_the_hand_derived_ones() {
+    let set = Setting {
+        states: 2,
+        actions: 1,
+        horizon: 2,
+        episodes: 1,
+        delta: 0.5,
+    };
+    let iota = 8f64.ln();
+    let ri = iota.sqrt();
+    let x = 0.1 * (2.0 * iota).sqrt();
+    let close = |a: f64, b: f64| (a - b).abs() < 1e-12 * b.abs().max(1.0);
+    let mut q = QUcb::new(set, 0.1, true);
+    let mut rng = LearnRng::seed_from_u64(3);
+    q.begin_episode(&mut rng);
+    q.observe(0, 0, 0, 0.5, 1, &mut rng);
+    let (beta, b) = q.bernstein_bonus(0, 0, 0).unwrap();
+    assert!(close(beta, (8.0 * iota).sqrt()) && close(b, (2.0 * iota).sqrt()));
+    assert!(close(q.q(0, 0, 0), 2.5 + x));
+    assert_eq!(q.value(0, 0), 2.0);
+    q.observe(1, 1, 0, 1.0, 0, &mut rng);
+    assert!(close(q.q(1, 1, 0), 1.0 + x));
+    assert!(close(q.value(1, 1), 1.0 + x));
+    q.end_episode(&mut rng);
+    q.begin_episode(&mut rng);
+    q.observe(0, 0, 0, 0.5, 1, &mut rng);
+    let b2 = (4.0 - 2f64.sqrt()) * ri / 3.0;
+    let (beta, b) = q.bernstein_bonus(0, 0, 0).unwrap();
+    assert!(close(beta, 2.0 * ri) && close(b, b2), "β {beta}, b {b}");
+    assert!(close(
+        q.q(0, 0, 0),
+        1.75 + (0.1 + 3.0 * 2f64.sqrt() / 40.0) * ri
+    ));
+    q.observe(1, 1, 0, 0.0, 1, &mut rng);
+    assert!(close(q.q(1, 1, 0), 0.25 + ri / 10.0), "{}", q.q(1, 1, 0));
+    assert!(close(q.value(1, 1), 0.25 + ri / 10.0));
+
+    let mut q = QUcb::new(set, 0.1, true);
+    q.begin_episode(&mut rng);
+    q.observe(1, 1, 0, 1.0, 0, &mut rng);
+    for t in 1..=2000 {
+        q.observe(0, 0, 0, 0.5, t % 2, &mut rng);
+    }
+    let w = ((1.0 - x) / 2.0).powi(2);
+    let variance_branch = (2.0 / 2000.0 * (w + 2.0) * iota).sqrt() + 16.0 * iota / 2000.0;
+    let cap = (8.0 * iota / 2000.0).sqrt();
+    assert!(variance_branch < cap);
+    let (beta, _) = q.bernstein_bonus(0, 0, 0).unwrap();
+    assert!(
+        close(beta, variance_branch),
+        "β {beta} vs {variance_branch}"
+    );
+}
+
+/// Jin et al. (2018), Appendix C, Algorithm 2: β_t is a min whose second
+/// branch is c₂·√(H³·ι/t), so it never exceeds that cap; and b_t is chosen
+/// so that Σᵢ α_t^i·b_i = β_t/2 (B_t = (1 − α_t)·B_{t−1} + α_t·b_t, B_0 = 0;
+/// derived by hand from the definitions), which here is also checked to
+/// keep b_t ≥ 0 (derived by hand: t·W_t never decreases, see
+/// `src/learn/qlearn.rs`). Along runs on the small random models, after
+/// every update, with c₂ = 1 and ι = ln(S·A·T/δ) computed here.
+#[test]
+fn q_learning_bernstein_beta_stays_under_its_cap_and_telescopes() {
+    const K: u64 = 20_000;
+    // Besides the small models, one with S·A·H = 4, on which the variance
+    // branch binds from about 5 000 visits on.
+    let tiny = Garnet {
+        states: 2,
+        actions: 1,
+        successors: 2,
+        horizon: 2,
+        time_dependent: true,
+        bernoulli: true,
+    }
+    .generate(24)
+    .unwrap();
+    let mut below_cap = 0;
+    for m in small_models().into_iter().chain([tiny]) {
+        let set = setting_of(&m, K, 0.1);
+        let hh = set.horizon as f64;
+        let iota = (set.states as f64 * set.actions as f64 * (K as f64 * hh) / 0.1).ln();
+        let mut learner = QUcb::new(set, 1.0, true);
+        let mut visits = vec![0u32; set.rows()];
+        let mut accumulated = vec![0.0f64; set.rows()];
+        play(&m, &mut learner, K as usize, 8, |l, at| {
+            let Moment::Saw((h, s, a, _, _)) = at else {
+                return;
+            };
+            let row = set.row(h, s, a);
+            visits[row] += 1;
+            let t = visits[row] as f64;
+            let alpha = (hh + 1.0) / (hh + t);
+            let (beta, b) = l.bernstein_bonus(h, s, a).unwrap();
+            let cap = BERNSTEIN_C2 * (hh.powi(3) * iota / t).sqrt();
+            assert!(
+                beta <= cap * (1.0 + 1e-12),
+                "β {beta} above {cap} at t = {t}"
+            );
+            below_cap += (beta < cap) as u32;
+            assert!(b >= -1e-12 * beta, "b_t = {b} < 0 at t = {t}");
+            accumulated[row] = (1.0 - alpha) * accumulated[row] + alpha * b;
+            assert!(
+                (accumulated[row] - beta / 2.0).abs() <= 1e-9 * beta,
+                "Σ α_t^i b_i = {} vs β_t/2 = {}",
+                accumulated[row],
+                beta / 2.0
+            );
+        });
+    }
+    assert!(below_cap > 0, "the variance branch binds somewhere");
+}
+
+/// α_t = (H + 1)/(H + t) (Jin et al. 2018, Section 3, the learning rate of
+/// both algorithms), read back from Q: with the bonus off (scale 0) the
+/// last step's update is Q ← (1 − α_t)·Q + α_t·r, so α_t = (Q_t − Q_{t−1})/
+/// (r_t − Q_{t−1}). With H = 4 and rewards 1, 0, 1, 0, …: α₁ = 1, α₂ = 5/6,
+/// α₃ = 5/7, α₁₀ = 5/14, α₁₀₀ = 5/104, and Q₁ = 1, Q₂ = 1/6,
+/// Q₃ = (2/7)·(1/6) + 5/7 = 16/21 (derived by hand).
+#[test]
+fn q_learning_rate_is_h_plus_one_over_h_plus_t() {
+    let set = Setting {
+        states: 1,
+        actions: 1,
+        horizon: 4,
+        episodes: 100,
+        delta: 0.1,
+    };
+    let want = [
+        (1, 1.0),
+        (2, 5.0 / 6.0),
+        (3, 5.0 / 7.0),
+        (10, 5.0 / 14.0),
+        (100, 5.0 / 104.0),
+    ];
+    for bernstein in [false, true] {
+        let mut q = QUcb::new(set, 0.0, bernstein);
+        let mut rng = LearnRng::seed_from_u64(1);
+        q.begin_episode(&mut rng);
+        let mut alphas = vec![f64::NAN];
+        for t in 1..=100u32 {
+            let before = q.q(3, 0, 0);
+            let r = (t % 2) as f64;
+            q.observe(3, 0, 0, r, 0, &mut rng);
+            alphas.push((q.q(3, 0, 0) - before) / (r - before));
+            if t == 3 {
+                assert!((q.q(3, 0, 0) - 16.0 / 21.0).abs() < 1e-15);
+            }
+        }
+        for (t, a) in want {
+            assert!(
+                (alphas[t] - a).abs() < 1e-12,
+                "α_{t} = {} vs {a}",
+                alphas[t]
+            );
+        }
     }
 }

@@ -12,8 +12,8 @@
 use serde::Serialize;
 
 use super::{
-    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcbHoeffding, Setting, Ucb1,
-    Ucbvi, Uniform,
+    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcb, Setting, Ucb1, Ucbvi,
+    Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -25,6 +25,7 @@ pub enum AlgorithmKind {
     UcbviHoeffding,
     UcbviBernstein,
     QUcbHoeffding,
+    QUcbBernstein,
     Psrl,
     Ucb1,
     EpsGreedy,
@@ -194,6 +195,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bound: Some(theory::q_ucb_hoeffding),
     },
     AlgorithmInfo {
+        kind: AlgorithmKind::QUcbBernstein,
+        key: "q-ucb-bernstein",
+        name: "Q-learning, UCB-Bernstein",
+        param: Some(&BONUS),
+        reference: "Jin, Allen-Zhu, Bubeck & Jordan, Is Q-learning Provably Efficient?, NeurIPS 2018, arXiv:1807.03765, Appendix C",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::q_ucb_bernstein),
+    },
+    AlgorithmInfo {
         kind: AlgorithmKind::Psrl,
         key: "psrl",
         name: "PSRL (posterior sampling)",
@@ -353,7 +364,8 @@ impl Algorithm {
             AlgorithmKind::Mvp2021 => AnyLearner::Mvp(Mvp::with_samples(set, x, MvpSamples::All)),
             AlgorithmKind::UcbviHoeffding => AnyLearner::Ucbvi(Ucbvi::new(set, x, false)),
             AlgorithmKind::UcbviBernstein => AnyLearner::Ucbvi(Ucbvi::new(set, x, true)),
-            AlgorithmKind::QUcbHoeffding => AnyLearner::QUcbHoeffding(QUcbHoeffding::new(set, x)),
+            AlgorithmKind::QUcbHoeffding => AnyLearner::QUcb(QUcb::new(set, x, false)),
+            AlgorithmKind::QUcbBernstein => AnyLearner::QUcb(QUcb::new(set, x, true)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
             AlgorithmKind::Ucb1 => AnyLearner::Ucb1(Ucb1::new(set.actions, x)),
             AlgorithmKind::EpsGreedy => AnyLearner::EpsGreedy(EpsGreedy::new(set, x)),
@@ -368,7 +380,7 @@ impl Algorithm {
 pub enum AnyLearner {
     Mvp(Mvp),
     Ucbvi(Ucbvi),
-    QUcbHoeffding(QUcbHoeffding),
+    QUcb(QUcb),
     Psrl(Psrl),
     Ucb1(Ucb1),
     EpsGreedy(EpsGreedy),
@@ -387,7 +399,7 @@ macro_rules! with_learner {
         match $any {
             $crate::learn::AnyLearner::Mvp($l) => $body,
             $crate::learn::AnyLearner::Ucbvi($l) => $body,
-            $crate::learn::AnyLearner::QUcbHoeffding($l) => $body,
+            $crate::learn::AnyLearner::QUcb($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
             $crate::learn::AnyLearner::Ucb1($l) => $body,
             $crate::learn::AnyLearner::EpsGreedy($l) => $body,

@@ -43,5 +43,5 @@ pub use mvp::{
 };
 pub use plan::{Plan, StaleRows, argmax_random};
 pub use psrl::Psrl;
-pub use qlearn::QUcbHoeffding;
+pub use qlearn::{BERNSTEIN_C1, BERNSTEIN_C2, QUcb, learning_rate};
 pub use ucbvi::Ucbvi;
