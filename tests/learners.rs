@@ -650,10 +650,10 @@ fn q_learning_bernstein_beta_stays_under_its_cap_and_telescopes() {
     assert!(below_cap > 0, "the variance branch binds somewhere");
 }
 
-/// α_t = (H + 1)/(H + t) (Jin et al. 2018, Section 3, the learning rate of
-/// both algorithms), read back from Q: with the bonus off (scale 0) the
-/// last step's update is Q ← (1 − α_t)·Q + α_t·r, so α_t = (Q_t − Q_{t−1})/
-/// (r_t − Q_{t−1}). With H = 4 and rewards 1, 0, 1, 0, …: α₁ = 1, α₂ = 5/6,
+/// α_t = (H + 1)/(H + t), the learning rate of both bonuses (Jin et al.
+/// 2018, Algorithms 1 and 2), read back from Q: with the bonus off (scale
+/// 0) the last step's update is Q ← (1 − α_t)·Q + α_t·r, so
+/// α_t = (Q_t − Q_{t−1})/(r_t − Q_{t−1}). With H = 4 and rewards 1, 0, 1, 0, …: α₁ = 1, α₂ = 5/6,
 /// α₃ = 5/7, α₁₀ = 5/14, α₁₀₀ = 5/104, and Q₁ = 1, Q₂ = 1/6,
 /// Q₃ = (2/7)·(1/6) + 5/7 = 16/21 (derived by hand).
 #[test]
