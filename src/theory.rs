@@ -13,7 +13,9 @@
 //! state): every learner here keeps its statistics per step, so it *is* the
 //! stationary algorithm run on that layered MDP, and the theorem applies to
 //! it with S → S·H in every term, H and A unchanged — a translation that is
-//! itself a theorem, not a guess. Table 1 of Zhang, Chen, Lee & Du
+//! itself a theorem, not a guess. A bound proved for a total reward at most
+//! 1 per episode is multiplied by H (our values reach H; dividing our
+//! rewards by H puts a model in that setting). Table 1 of Zhang, Chen, Lee & Du
 //! (arXiv:2307.13586) translates some rows otherwise (it lists UCBVI's
 //! lower-order term as S²·A·H³ where S → S·H gives S²·A·H⁴); a bound's note
 //! says so where it differs. Burn-in thresholds are derived by hand from the
@@ -25,6 +27,7 @@
 //! - Z. Zhang, Y. Chen, J. D. Lee and S. S. Du, "Settling the Sample
 //!   Complexity of Online Reinforcement Learning", COLT 2024, arXiv:2307.13586.
 //! - M. G. Azar, I. Osband and R. Munos, ICML 2017, arXiv:1703.05449.
+//! - Z. Zhang, X. Ji and S. S. Du, COLT 2021, arXiv:2009.13503.
 //! - C. Jin, Z. Allen-Zhu, S. Bubeck and M. I. Jordan, NeurIPS 2018, arXiv:1807.03765.
 //! - I. Osband, D. Russo and B. Van Roy, NeurIPS 2013, arXiv:1306.0940.
 //! - P. Auer, N. Cesa-Bianchi and P. Fischer, *Machine Learning* 47, 2002.
@@ -32,7 +35,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::learn::Setting;
+use crate::learn::{MvpSamples, Setting};
 
 /// A published regret bound, as an order in K.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -54,11 +57,11 @@ pub struct Bound {
     /// Why it does not apply, when it does not.
     #[serde(default)]
     pub note: String,
-    /// MVP only: the episode by which every (h, s, a) would have the visits
-    /// after which its bonus is below H whatever the data, were visits
-    /// spread evenly over the S·A pairs of each step (S·A·n*, n* of
-    /// `learn::mvp::visits_for_bonus_below_h`): where, with the published
-    /// constants, the curve can first bend.
+    /// MVP (both versions) only: the episode by which every (h, s, a)
+    /// would have the visits after which its bonus is below H whatever the
+    /// data, were visits spread evenly over the S·A pairs of each step
+    /// (S·A·n*, n* of `learn::mvp::visits_for_bonus_below_h`): where, with
+    /// the published constants, the curve can first bend.
     #[serde(default)]
     pub bonus_below_h: Option<f64>,
 }
@@ -128,8 +131,37 @@ pub fn mvp(set: &Setting, ks: &[u64]) -> Bound {
         None,
         curve(set, ks, |k| minimax(set, k), |_| 0.0),
     );
-    let n = crate::learn::mvp_visits_for_bonus_below_h(set);
+    mark_bonus_below_h(&mut b, set, MvpSamples::LatestBatch);
+    b
+}
+
+/// Marks on `b` the episode by which MVP's bonus is below H whatever the
+/// data (see [`Bound::bonus_below_h`]).
+fn mark_bonus_below_h(b: &mut Bound, set: &Setting, samples: MvpSamples) {
+    let n = crate::learn::mvp_visits_for_bonus_below_h(set, samples);
     b.bonus_below_h = Some(set.states as f64 * set.actions as f64 * n);
+}
+
+/// The first MVP (Zhang, Ji & Du 2021): the paper states Õ(√(S·A·K) + S²·A)
+/// for a stationary kernel and a total reward at most 1 (its abstract; the
+/// theorem itself not read). By the one rule (module doc): values scaled by
+/// H, and S → S·H on the layered MDP: H·√(S·H·A·K) + H·(S·H)²·A =
+/// √(S·A·H³·K) + S²·A·H³, the √K term overtaking from K = (S²·A·H³)² /
+/// (S·A·H³) = S³·A·H³ (derived by hand). Table 1 of arXiv:2307.13586 prints
+/// the lower-order term as S²·A·H² (burn-in S³·A·H, PAC S·A·H³/ε² +
+/// S²·A·H²/ε): a factor H below, which the bound's note says.
+pub fn mvp_2021(set: &Setting, ks: &[u64]) -> Bound {
+    let (s, a, h) = sah(set);
+    let lower = s * s * a * h * h * h;
+    let mut b = bound(
+        "Zhang, Ji & Du, COLT 2021, arXiv:2009.13503 (abstract), values × H and S → S·H",
+        "√(S·A·H³·K) + S²·A·H³",
+        "polylog(S·A·H·K) factors",
+        Some(lower * lower / (s * a * h * h * h)),
+        curve(set, ks, |k| minimax(set, k), |_| lower),
+    );
+    b.note = "Table 1 of arXiv:2307.13586 lists the lower-order term as S²·A·H² (burn-in S³·A·H), a factor H below the stationary bound read with values × H and S → S·H".into();
+    mark_bonus_below_h(&mut b, set, MvpSamples::All);
     b
 }
 
@@ -181,6 +213,26 @@ pub fn q_ucb_hoeffding(set: &Setting, ks: &[u64]) -> Bound {
         "ι = ln(S·A·T/δ) inside the root",
         None,
         curve(set, ks, |k| (s * a * h.powi(5) * k).sqrt(), |_| 0.0),
+    )
+}
+
+/// Optimistic Q-learning with the Bernstein bonus: Jin et al. (2018),
+/// Theorem 2, O(√(H³·S·A·T·ι) + √(H⁹·S³·A³)·ι²) with T = K·H, stated for
+/// time-dependent transitions and per-step rewards in [0, 1] (our setting,
+/// no translation): √(S·A·H⁴·K) + H⁴·⁵·S¹·⁵·A¹·⁵. The √K term overtakes the
+/// lower-order one from K = H⁹·S³·A³/(S·A·H⁴) = S²·A²·H⁵ (derived by hand).
+/// The theorem holds for large enough absolute constants c₁, c₂; at
+/// `bonus_scale` 1 it is drawn for ours (c₁ = c₂ = 1, `src/learn/qlearn.rs`),
+/// as Theorem 1 is for the Hoeffding variant's c = 1.
+pub fn q_ucb_bernstein(set: &Setting, ks: &[u64]) -> Bound {
+    let (s, a, h) = sah(set);
+    let lower = (h.powi(9) * (s * a).powi(3)).sqrt();
+    bound(
+        "Jin, Allen-Zhu, Bubeck & Jordan, NeurIPS 2018, Theorem 2",
+        "√(H³·S·A·T) + √(H⁹·S³·A³) = √(S·A·H⁴·K) + √(S³·A³·H⁹)",
+        "ι = ln(S·A·T/δ) inside the first root, ι² on the second term",
+        Some(s * s * a * a * h.powi(5)),
+        curve(set, ks, |k| (s * a * h.powi(4) * k).sqrt(), |_| lower),
     )
 }
 

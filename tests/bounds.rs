@@ -2,7 +2,7 @@
 //! covers our learners (statistics per step, so every stationary theorem is
 //! read with S → S·H), and marked as not applying when the bonus is scaled.
 
-use burnin::learn::{Algorithm, AlgorithmKind, Setting};
+use burnin::learn::{Algorithm, AlgorithmKind, MvpSamples, Setting};
 
 fn setting() -> Setting {
     Setting {
@@ -104,9 +104,11 @@ fn ucbvi_hoeffding_terms_use_the_same_translation() {
 fn a_scaled_bonus_marks_the_bound_as_not_applying() {
     for kind in [
         AlgorithmKind::Mvp,
+        AlgorithmKind::Mvp2021,
         AlgorithmKind::UcbviHoeffding,
         AlgorithmKind::UcbviBernstein,
         AlgorithmKind::QUcbHoeffding,
+        AlgorithmKind::QUcbBernstein,
     ] {
         assert!(bound(kind, 1.0).applies, "{kind:?} at scale 1");
         let b = bound(kind, 0.05);
@@ -146,11 +148,25 @@ fn mvp_marks_where_its_bonus_falls_below_h() {
     };
     assert!((burnin::learn::mvp_log_factor(&set) - 43.302_829_664).abs() < 1e-8);
     assert!((burnin::learn::mvp_largest_bonus(&set, 32_768.0) - 2.069_176_338).abs() < 1e-8);
-    assert_eq!(burnin::learn::mvp_visits_for_bonus_below_h(&set), 131_072.0);
-    let b = Algorithm::new(AlgorithmKind::Mvp)
-        .bound(&set, &[1, 10])
-        .unwrap();
-    assert_eq!(b.bonus_below_h, Some(524_288.0));
+    // The first MVP reads all 2^i samples at the rebuild at count 2^i, so
+    // the 65 536 samples of b(65 536) < 2 are read from 65 536 visits on:
+    // K* = 4·65 536 = 262 144.
+    for (kind, samples, n, k) in [
+        (
+            AlgorithmKind::Mvp,
+            MvpSamples::LatestBatch,
+            131_072.0,
+            524_288.0,
+        ),
+        (AlgorithmKind::Mvp2021, MvpSamples::All, 65_536.0, 262_144.0),
+    ] {
+        assert_eq!(
+            burnin::learn::mvp_visits_for_bonus_below_h(&set, samples),
+            n
+        );
+        let b = Algorithm::new(kind).bound(&set, &[1, 10]).unwrap();
+        assert_eq!(b.bonus_below_h, Some(k), "{kind:?}");
+    }
     // Not for a scaled bonus, nor for other learners.
     assert_eq!(
         Algorithm::with(AlgorithmKind::Mvp, 0.1)
@@ -163,4 +179,49 @@ fn mvp_marks_where_its_bonus_falls_below_h() {
         bound(AlgorithmKind::UcbviBernstein, 1.0).bonus_below_h,
         None
     );
+}
+
+/// The first MVP by the one rule (src/theory.rs): Zhang, Ji & Du (2021)
+/// state √(S·A·K) + S²·A for a total reward at most 1 and a stationary
+/// kernel (abstract); values × H and S → S·H give √(S·A·H³·K) + S²·A·H³,
+/// minimax from K ≥ S³·A·H³ (derived by hand for S = 3, A = 2, H = 4:
+/// lower term 9·2·64 = 1 152, burn-in 27·2·64 = 3 456, and at K = 10⁴
+/// √(3·2·64·10⁴) + 1 152). Table 1 of arXiv:2307.13586 prints S²·A·H²,
+/// which the note says.
+#[test]
+fn mvp_2021_bound_follows_the_one_rule() {
+    let b = bound(AlgorithmKind::Mvp2021, 1.0);
+    assert_eq!(b.burn_in, Some(3_456.0));
+    assert_eq!(b.values[0], 4.0, "capped at H·K for K = 1");
+    let want = (3.0f64 * 2.0 * 64.0 * 1e4).sqrt() + 1_152.0;
+    assert!(
+        (b.values[1] - want).abs() < 1e-9,
+        "{} vs {want}",
+        b.values[1]
+    );
+    assert!(b.formula.contains("S²·A·H³"), "{}", b.formula);
+    assert!(
+        b.note.contains("Table 1") && b.note.contains("S²·A·H²"),
+        "{}",
+        b.note
+    );
+}
+
+/// Q-learning with the Bernstein bonus: Jin et al. (2018), Theorem 2,
+/// √(H³·S·A·T) + √(H⁹·S³·A³) with T = K·H, log factors dropped:
+/// √(S·A·H⁴·K) + √(S³·A³·H⁹), the √K term dominating from K = S²·A²·H⁵
+/// (derived by hand for S = 3, A = 2, H = 4: burn-in 9·4·1024 = 36 864,
+/// lower term √(27·8·4⁹) = √56 623 104, and at K = 10⁶ √(6·256·10⁶) plus it).
+#[test]
+fn q_ucb_bernstein_bound_is_theorem_2() {
+    let b = bound(AlgorithmKind::QUcbBernstein, 1.0);
+    assert_eq!(b.burn_in, Some(36_864.0));
+    let want = (6.0f64 * 256.0 * 1e6).sqrt() + 56_623_104f64.sqrt();
+    assert!(
+        (b.values[2] - want).abs() < 1e-6,
+        "{} vs {want}",
+        b.values[2]
+    );
+    assert_eq!(b.values[0], 4.0, "capped at H·K for K = 1");
+    assert!(b.source.contains("Theorem 2"), "{}", b.source);
 }

@@ -718,10 +718,12 @@ fn a_closed_standard_output_is_an_error() {
         p(&f)
     ));
     assert_eq!(out, "exit 0\n", "{err}");
-    // A reader that is gone before the output is written.
+    // A reader that is gone before the output is written (the writer
+    // starts half a second after the reader has closed its end, so a busy
+    // machine cannot let the output slip into the pipe first).
     let csv = d.0.join("curves.csv");
     let (out, err) = sh(&format!(
-        "{bin} run --json --csv {} {} | (exec 0<&-); echo \"exit ${{PIPESTATUS[0]}}\"",
+        "(sleep 0.5; exec {bin} run --json --csv {} {}) | (exec 0<&-); echo \"exit ${{PIPESTATUS[0]}}\"",
         p(&csv),
         p(&f)
     ));

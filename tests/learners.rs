@@ -6,7 +6,7 @@ use std::sync::Arc;
 
 use burnin::experiment::{Point, Results, parse_experiment, run_all, summarise};
 use burnin::generate::{Bandit, Garnet};
-use burnin::learn::{LearnRng, Learner, Mvp, Setting};
+use burnin::learn::{BERNSTEIN_C2, LearnRng, Learner, Mvp, MvpSamples, QUcb, Setting};
 use burnin::solve::{Policy, evaluate, solve};
 use burnin::{Mdp, write_model};
 use ndarray::Array3;
@@ -67,9 +67,11 @@ fn ucb1_regret_stays_under_the_auer_et_al_theorem_1_bound() {
 
 /// Zhang, Chen, Lee & Du (2024), Algorithm 1: when the visit count of
 /// (h, s, a) reaches 2^i, its estimates are rebuilt from samples
-/// 2^(i−1)+1 … 2^i only; after n visits there have been ⌊log₂ n⌋ + 1 rebuilds.
+/// 2^(i−1)+1 … 2^i only; after n visits there have been ⌊log₂ n⌋ + 1
+/// rebuilds. The first version (Remark 1 of the same paper) rebuilds at the
+/// same counts from samples 1 … 2^i.
 #[test]
-fn mvp_rebuilds_on_doubling_counts_from_the_latest_batch_only() {
+fn mvp_rebuilds_on_doubling_counts_from_the_samples_of_its_version() {
     let set = Setting {
         states: 3,
         actions: 2,
@@ -77,32 +79,123 @@ fn mvp_rebuilds_on_doubling_counts_from_the_latest_batch_only() {
         episodes: 1000,
         delta: 0.1,
     };
-    let mut mvp = Mvp::new(set, 1.0);
-    let mut rng = LearnRng::seed_from_u64(1);
-    mvp.begin_episode(&mut rng);
-    for n in 1..=100u32 {
-        // Sample n has reward n/1000 and goes to state n mod 3.
-        mvp.observe(1, 2, 1, n as f64 / 1000.0, (n % 3) as usize, &mut rng);
-        let want = n.ilog2() + 1;
-        assert_eq!(mvp.rebuilds(1, 2, 1), want, "after {n} visits");
-        let b = mvp.batch(1, 2, 1);
-        // The latest completed batch: samples 2^(i−1)+1 … 2^i with 2^i ≤ n.
-        let top = 1u32 << n.ilog2();
-        let first = if top == 1 { 1 } else { top / 2 + 1 };
-        let samples: Vec<u32> = (first..=top).collect();
-        assert_eq!(
-            b.size as usize,
-            samples.len(),
-            "batch size after {n} visits"
-        );
-        let mean = samples.iter().map(|&k| k as f64 / 1000.0).sum::<f64>() / samples.len() as f64;
-        assert!((b.reward_mean - mean).abs() < 1e-12);
-        let to0 = samples.iter().filter(|&&k| k % 3 == 0).count() as f64 / samples.len() as f64;
-        let p0 = b.next.iter().find(|e| e.0 == 0).map_or(0.0, |e| e.1);
-        assert!((p0 - to0).abs() < 1e-12);
+    for version in [MvpSamples::LatestBatch, MvpSamples::All] {
+        let mut mvp = Mvp::with_samples(set, 1.0, version);
+        let mut rng = LearnRng::seed_from_u64(1);
+        mvp.begin_episode(&mut rng);
+        for n in 1..=100u32 {
+            // Sample n has reward n/1000 and goes to state n mod 3.
+            mvp.observe(1, 2, 1, n as f64 / 1000.0, (n % 3) as usize, &mut rng);
+            let want = n.ilog2() + 1;
+            assert_eq!(mvp.rebuilds(1, 2, 1), want, "{version:?} after {n} visits");
+            let b = mvp.batch(1, 2, 1);
+            // The latest rebuild, at 2^i ≤ n: samples 2^(i−1)+1 … 2^i, or 1 … 2^i.
+            let top = 1u32 << n.ilog2();
+            let first = match version {
+                MvpSamples::LatestBatch if top > 1 => top / 2 + 1,
+                _ => 1,
+            };
+            let samples: Vec<u32> = (first..=top).collect();
+            assert_eq!(
+                b.size as usize,
+                samples.len(),
+                "{version:?}: batch size after {n} visits"
+            );
+            let mean =
+                samples.iter().map(|&k| k as f64 / 1000.0).sum::<f64>() / samples.len() as f64;
+            assert!((b.reward_mean - mean).abs() < 1e-12);
+            let to0 = samples.iter().filter(|&&k| k % 3 == 0).count() as f64 / samples.len() as f64;
+            let p0 = b.next.iter().find(|e| e.0 == 0).map_or(0.0, |e| e.1);
+            assert!((p0 - to0).abs() < 1e-12);
+        }
+        // Other rows are untouched.
+        assert_eq!(mvp.rebuilds(0, 2, 1), 0);
     }
-    // Other rows are untouched.
-    assert_eq!(mvp.rebuilds(0, 2, 1), 0);
+}
+
+/// Remark 1 of arXiv:2307.13586: the first MVP differs from the later one
+/// only in the samples a rebuild reads. On one seed the two are the same
+/// run (the same plans, values and draws) until the first rebuild whose
+/// samples differ: the first row to reach a count of 2, whose estimates are
+/// sample 2 alone in the later version and samples 1–2 in the first (so
+/// their sizes, 1 and 2, always differ). After it their plans part (at
+/// scale 10⁻⁴, where the bonus leaves Q below H, so that a difference in the
+/// estimates shows in Q).
+#[test]
+fn mvp_2021_and_2024_run_alike_until_a_rebuild_reads_different_samples() {
+    use burnin::sample::{self, Sampler};
+    let m = small_models().remove(0);
+    let set = setting_of(&m, 200, 0.1);
+    let mut later = Mvp::with_samples(set, 1e-4, MvpSamples::LatestBatch);
+    let mut first = Mvp::with_samples(set, 1e-4, MvpSamples::All);
+    let sampler = Sampler::new(&m);
+    // One episode of `l`, its steps in order.
+    let episode = |l: &mut Mvp, rng: &mut LearnRng| -> Vec<Step> {
+        l.begin_episode(rng);
+        let mut s = sampler.start(rng);
+        let mut steps = Vec::new();
+        for h in 0..m.horizon() {
+            let a = l.act(h, s, rng);
+            let row = s * m.n_actions() + a;
+            let r = sample::reward(rng, m.step(h).reward(row));
+            let next = sampler.next(rng, h, row);
+            l.observe(h, s, a, r, next, rng);
+            steps.push((h, s, a, r, next));
+            s = next;
+        }
+        steps
+    };
+    let (states, actions) = (m.n_states(), m.n_actions());
+    let rows: Vec<(usize, usize, usize)> = (0..m.horizon())
+        .flat_map(|h| (0..states).flat_map(move |s| (0..actions).map(move |a| (h, s, a))))
+        .collect();
+    let same_plans = |l: &Mvp, f: &Mvp| {
+        rows.iter()
+            .all(|&(h, s, a)| l.planned_q(h, s, a) == f.planned_q(h, s, a))
+            && l.policy_version() == f.policy_version()
+    };
+    let (mut r_later, mut r_first) = (LearnRng::seed_from_u64(5), LearnRng::seed_from_u64(5));
+    let mut seen: Vec<Step> = Vec::new();
+    let mut differs = None;
+    for k in 0..200 {
+        let steps = episode(&mut later, &mut r_later);
+        assert_eq!(steps, episode(&mut first, &mut r_first), "episode {k}");
+        assert_eq!(r_later, r_first, "draws after episode {k}");
+        seen.extend(&steps);
+        // The rows this episode brought to a count of 2, and their samples.
+        for &(h, s, a) in &rows {
+            let mine: Vec<&Step> = seen
+                .iter()
+                .filter(|x| (x.0, x.1, x.2) == (h, s, a))
+                .collect();
+            let (b_later, b_first) = (later.batch(h, s, a), first.batch(h, s, a));
+            match mine.len() {
+                0 | 1 => assert_eq!(b_later, b_first),
+                2 => {
+                    assert_eq!((b_later.size, b_first.size), (1, 2));
+                    assert_eq!(b_later.reward_mean, mine[1].3);
+                    assert_eq!(b_later.next, vec![(mine[1].4 as u32, 1.0)]);
+                    assert_eq!(b_first.reward_mean, (mine[0].3 + mine[1].3) / 2.0);
+                    differs = Some(k);
+                }
+                n => unreachable!("a count of {n} before any of 2"),
+            }
+        }
+        if differs.is_some() {
+            break;
+        }
+        assert!(same_plans(&later, &first), "plans after episode {k}");
+    }
+    let from = differs.expect("a row reached a count of 2");
+    // After it, each plays on with its own draws; their plans part.
+    for _ in from + 1..200 {
+        episode(&mut later, &mut r_later);
+        episode(&mut first, &mut r_first);
+        if !same_plans(&later, &first) {
+            return;
+        }
+    }
+    panic!("the plans never parted after the rebuild of episode {from}");
 }
 
 /// The uniform learner's policy never changes, so its expected regret is
@@ -269,4 +362,336 @@ fn same_file_and_seed_give_identical_results() {
     records.reverse();
     assert_eq!(summarise(&ctx, records), a);
     let _ = Arc::clone(&ctx);
+}
+
+/// When [`play`] calls its check.
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum Moment {
+    /// After `begin_episode`, before the episode is played.
+    Start,
+    /// After `observe(h, s, a, r, next)`.
+    Saw(Step),
+}
+
+/// One observed step: h, s, a, r, next.
+type Step = (usize, usize, usize, f64, usize);
+
+/// Plays `learner` on `m` for `episodes` episodes (the runner's draws: the
+/// start state, then per step the action, the reward and the next state,
+/// from one seeded generator) and calls `check(learner, moment)` at the
+/// start of each episode and after each step.
+fn play<L: Learner>(
+    m: &Mdp,
+    learner: &mut L,
+    episodes: usize,
+    seed: u64,
+    mut check: impl FnMut(&L, Moment),
+) {
+    use burnin::sample::{self, Sampler};
+    let sampler = Sampler::new(m);
+    let mut rng = LearnRng::seed_from_u64(seed);
+    for _ in 0..episodes {
+        learner.begin_episode(&mut rng);
+        check(learner, Moment::Start);
+        let mut s = sampler.start(&mut rng);
+        for h in 0..m.horizon() {
+            let a = learner.act(h, s, &mut rng);
+            let row = s * m.n_actions() + a;
+            let r = sample::reward(&mut rng, m.step(h).reward(row));
+            let next = sampler.next(&mut rng, h, row);
+            learner.observe(h, s, a, r, next, &mut rng);
+            check(learner, Moment::Saw((h, s, a, r, next)));
+            s = next;
+        }
+        learner.end_episode(&mut rng);
+    }
+}
+
+/// The small random models of the optimism checks (Garnet, time-dependent,
+/// Bernoulli rewards).
+fn small_models() -> Vec<Mdp> {
+    [(3, 2, 3, 21), (4, 2, 2, 22), (2, 3, 4, 23)]
+        .iter()
+        .map(|&(states, actions, horizon, seed)| {
+            Garnet {
+                states,
+                actions,
+                successors: 2,
+                horizon,
+                time_dependent: true,
+                bernoulli: true,
+            }
+            .generate(seed)
+            .unwrap()
+        })
+        .collect()
+}
+
+fn setting_of(m: &Mdp, episodes: u64, delta: f64) -> Setting {
+    Setting {
+        states: m.n_states(),
+        actions: m.n_actions(),
+        horizon: m.horizon(),
+        episodes,
+        delta,
+    }
+}
+
+/// The share of (run, episode) checks at which a learner's value at step 1,
+/// `value(learner, s)`, is below the exact V*₁(s) of the solver at some
+/// state s, over [`small_models`] × 3 seeds of `episodes` episodes.
+fn optimism_failures<L: Learner>(
+    episodes: u64,
+    delta: f64,
+    build: impl Fn(Setting) -> L,
+    value: impl Fn(&L, usize) -> f64,
+) -> f64 {
+    let (mut checks, mut failures) = (0u64, 0u64);
+    for m in small_models() {
+        let v_star = solve(&m).v;
+        for seed in 0..3 {
+            let mut learner = build(setting_of(&m, episodes, delta));
+            play(&m, &mut learner, episodes as usize, seed, |l, at| {
+                if at != Moment::Start {
+                    return;
+                }
+                checks += 1;
+                let below = (0..m.n_states()).any(|s| value(l, s) < v_star[[0, s]] - 1e-9);
+                failures += below as u64;
+            });
+        }
+    }
+    failures as f64 / checks as f64
+}
+
+/// Optimism, Q^k_h ≥ Q*_h for every k, h, s, a with probability 1 − δ,
+/// on which each analysis rests (Jin et al. 2018: Lemma 4.3 for the
+/// Hoeffding bonus and its counterpart in Appendix C for the Bernstein one;
+/// Zhang, Chen, Lee & Du 2024 and Zhang, Ji & Du 2021 for MVP; the lemma
+/// numbers from memory): at the start of each episode the learner's
+/// V₁(s) is at least the solver's exact V*₁(s) at every state, in all but a
+/// δ share of the (run, episode) checks. With the bonus scaled down the
+/// same check fails often, so it can fail: at 0.01 for Q-learning; MVP's
+/// constants are some 100× larger (c₁·√L ≈ 51·√28 ≈ 270 against c = 1), so
+/// at 0.01 its plan is still optimistic here and it takes 10⁻⁴.
+#[test]
+fn optimistic_values_stay_above_the_exact_optimum() {
+    const K: u64 = 3000;
+    const DELTA: f64 = 0.1;
+    for samples in [MvpSamples::LatestBatch, MvpSamples::All] {
+        let share = |scale: f64| {
+            optimism_failures(
+                K,
+                DELTA,
+                |set| Mvp::with_samples(set, scale, samples),
+                |l, s| l.value(0, s),
+            )
+        };
+        let (published, scaled) = (share(1.0), share(1e-4));
+        assert!(published <= DELTA, "MVP {samples:?}: {published}");
+        assert!(scaled > 0.25, "MVP {samples:?} at 10⁻⁴: {scaled}");
+    }
+    for bernstein in [false, true] {
+        let share = |scale: f64| {
+            optimism_failures(
+                K,
+                DELTA,
+                |set| QUcb::new(set, scale, bernstein),
+                |l, s| l.value(0, s),
+            )
+        };
+        let (published, scaled) = (share(1.0), share(0.01));
+        assert!(
+            published <= DELTA,
+            "Q-learning, Bernstein {bernstein}: {published}"
+        );
+        assert!(
+            scaled > 0.25,
+            "Q-learning, Bernstein {bernstein}, at 0.01: {scaled}"
+        );
+    }
+}
+
+/// Jin, Allen-Zhu, Bubeck & Jordan (2018), Appendix C, Algorithm 2, worked
+/// by hand on a two-state model with one action, H = 2, K = 1, δ = ½:
+/// T = K·H = 2, ι = ln(S·A·T/δ) = ln 8, √(H⁷·S·A) = √(128·2) = 16, our
+/// c₁ = c₂ = 1, and a bonus scale c = 1/10. Q and V start at H = 2.
+///
+/// Episode 1. (h=1, s₀) with r = ½ to s₁, where V₂(s₁) = 2: t = 1, α₁ = 1,
+/// μ = 2, σ = 4, W₁ = 4 − 2² = 0; β₁ = min(√(2·2·ι) + 16ι, √(8ι)) = √(8ι)
+/// (16ι > (√8 − 2)·√ι for ι ≥ 0.003); b₁ = β₁/2 = √(2ι); so
+/// Q₁(s₀) = ½ + 2 + x with x = c·√(2ι), and V₁(s₀) = min(2, ·) = 2.
+/// (h=2, s₁) with r = 1 (V₃ = 0): the same β₁ and b₁, so Q₂(s₁) = 1 + x and
+/// V₂(s₁) = 1 + x.
+///
+/// Episode 2. (h=1, s₀) with r = ½ to s₁, now V₂(s₁) = 1 + x: t = 2,
+/// α₂ = 3/4, W₂ = the variance of {2, 1 + x} = ((1 − x)/2)²;
+/// β₂ = min(√((W₂ + 2)·ι) + 8ι, √(4ι)) = 2√ι; b₂ = (2√ι − ¼·√(8ι))/(3/2)
+/// = (4 − √2)·√ι/3; Q₁(s₀) = ¼·(5/2 + x) + ¾·(½ + 1 + x + c·b₂)
+/// = 7/4 + (1/10 + 3√2/40)·√ι. (h=2, s₁) with r = 0: W = 0, the same β₂
+/// and b₂, Q₂(s₁) = ¼·(1 + x) + ¾·c·b₂ = ¼ + √ι/10.
+///
+/// The variance branch of the min binds only from t ≈ 373·ι on; so a second
+/// learner sees (h=2, s₁) with r = 1 once (V₂(s₁) = 1 + x, as above) and then
+/// (h=1, s₀) 2000 times, to s₁ and s₀ in turn (V₂(s₀) = 2, never updated):
+/// at t = 2000, W = the variance of 1000 × {1 + x, 2} = ((1 − x)/2)², and
+/// β = min(√((2/2000)·(W + 2)·ι) + 16ι/2000, √(8ι/2000)); at ι = ln 8
+/// (x ≈ 0.204) that is 0.0836 against the cap 0.0912: the first branch.
+#[test]
+fn q_learning_bernstein_first_updates_are_the_hand_derived_ones() {
+    let set = Setting {
+        states: 2,
+        actions: 1,
+        horizon: 2,
+        episodes: 1,
+        delta: 0.5,
+    };
+    let iota = 8f64.ln();
+    let ri = iota.sqrt();
+    let x = 0.1 * (2.0 * iota).sqrt();
+    let close = |a: f64, b: f64| (a - b).abs() < 1e-12 * b.abs().max(1.0);
+    let mut q = QUcb::new(set, 0.1, true);
+    let mut rng = LearnRng::seed_from_u64(3);
+    q.begin_episode(&mut rng);
+    q.observe(0, 0, 0, 0.5, 1, &mut rng);
+    let (beta, b) = q.bernstein_bonus(0, 0, 0).unwrap();
+    assert!(close(beta, (8.0 * iota).sqrt()) && close(b, (2.0 * iota).sqrt()));
+    assert!(close(q.q(0, 0, 0), 2.5 + x));
+    assert_eq!(q.value(0, 0), 2.0);
+    q.observe(1, 1, 0, 1.0, 0, &mut rng);
+    assert!(close(q.q(1, 1, 0), 1.0 + x));
+    assert!(close(q.value(1, 1), 1.0 + x));
+    q.end_episode(&mut rng);
+    q.begin_episode(&mut rng);
+    q.observe(0, 0, 0, 0.5, 1, &mut rng);
+    let b2 = (4.0 - 2f64.sqrt()) * ri / 3.0;
+    let (beta, b) = q.bernstein_bonus(0, 0, 0).unwrap();
+    assert!(close(beta, 2.0 * ri) && close(b, b2), "β {beta}, b {b}");
+    assert!(close(
+        q.q(0, 0, 0),
+        1.75 + (0.1 + 3.0 * 2f64.sqrt() / 40.0) * ri
+    ));
+    q.observe(1, 1, 0, 0.0, 1, &mut rng);
+    assert!(close(q.q(1, 1, 0), 0.25 + ri / 10.0), "{}", q.q(1, 1, 0));
+    assert!(close(q.value(1, 1), 0.25 + ri / 10.0));
+
+    let mut q = QUcb::new(set, 0.1, true);
+    q.begin_episode(&mut rng);
+    q.observe(1, 1, 0, 1.0, 0, &mut rng);
+    for t in 1..=2000 {
+        q.observe(0, 0, 0, 0.5, t % 2, &mut rng);
+    }
+    let w = ((1.0 - x) / 2.0).powi(2);
+    let variance_branch = (2.0 / 2000.0 * (w + 2.0) * iota).sqrt() + 16.0 * iota / 2000.0;
+    let cap = (8.0 * iota / 2000.0).sqrt();
+    assert!(variance_branch < cap);
+    let (beta, _) = q.bernstein_bonus(0, 0, 0).unwrap();
+    assert!(
+        close(beta, variance_branch),
+        "β {beta} vs {variance_branch}"
+    );
+}
+
+/// Jin et al. (2018), Appendix C, Algorithm 2: β_t is a min whose second
+/// branch is c₂·√(H³·ι/t), so it never exceeds that cap; and b_t is chosen
+/// so that Σᵢ α_t^i·b_i = β_t/2 (B_t = (1 − α_t)·B_{t−1} + α_t·b_t, B_0 = 0;
+/// derived by hand from the definitions), which here is also checked to
+/// keep b_t ≥ 0 (derived by hand: t·W_t never decreases, see
+/// `src/learn/qlearn.rs`). Along runs on the small random models, after
+/// every update, with c₂ = 1 and ι = ln(S·A·T/δ) computed here.
+#[test]
+fn q_learning_bernstein_beta_stays_under_its_cap_and_telescopes() {
+    const K: u64 = 20_000;
+    // Besides the small models, one with S·A·H = 4, on which the variance
+    // branch binds from about 5 000 visits on.
+    let tiny = Garnet {
+        states: 2,
+        actions: 1,
+        successors: 2,
+        horizon: 2,
+        time_dependent: true,
+        bernoulli: true,
+    }
+    .generate(24)
+    .unwrap();
+    let mut below_cap = 0;
+    for m in small_models().into_iter().chain([tiny]) {
+        let set = setting_of(&m, K, 0.1);
+        let hh = set.horizon as f64;
+        let iota = (set.states as f64 * set.actions as f64 * (K as f64 * hh) / 0.1).ln();
+        let mut learner = QUcb::new(set, 1.0, true);
+        let mut visits = vec![0u32; set.rows()];
+        let mut accumulated = vec![0.0f64; set.rows()];
+        play(&m, &mut learner, K as usize, 8, |l, at| {
+            let Moment::Saw((h, s, a, _, _)) = at else {
+                return;
+            };
+            let row = set.row(h, s, a);
+            visits[row] += 1;
+            let t = visits[row] as f64;
+            let alpha = (hh + 1.0) / (hh + t);
+            let (beta, b) = l.bernstein_bonus(h, s, a).unwrap();
+            let cap = BERNSTEIN_C2 * (hh.powi(3) * iota / t).sqrt();
+            assert!(
+                beta <= cap * (1.0 + 1e-12),
+                "β {beta} above {cap} at t = {t}"
+            );
+            below_cap += (beta < cap) as u32;
+            assert!(b >= -1e-12 * beta, "b_t = {b} < 0 at t = {t}");
+            accumulated[row] = (1.0 - alpha) * accumulated[row] + alpha * b;
+            assert!(
+                (accumulated[row] - beta / 2.0).abs() <= 1e-9 * beta,
+                "Σ α_t^i b_i = {} vs β_t/2 = {}",
+                accumulated[row],
+                beta / 2.0
+            );
+        });
+    }
+    assert!(below_cap > 0, "the variance branch binds somewhere");
+}
+
+/// α_t = (H + 1)/(H + t), the learning rate of both bonuses (Jin et al.
+/// 2018, Algorithms 1 and 2), read back from Q: with the bonus off (scale
+/// 0) the last step's update is Q ← (1 − α_t)·Q + α_t·r, so
+/// α_t = (Q_t − Q_{t−1})/(r_t − Q_{t−1}). With H = 4 and rewards 1, 0, 1, 0, …: α₁ = 1, α₂ = 5/6,
+/// α₃ = 5/7, α₁₀ = 5/14, α₁₀₀ = 5/104, and Q₁ = 1, Q₂ = 1/6,
+/// Q₃ = (2/7)·(1/6) + 5/7 = 16/21 (derived by hand).
+#[test]
+fn q_learning_rate_is_h_plus_one_over_h_plus_t() {
+    let set = Setting {
+        states: 1,
+        actions: 1,
+        horizon: 4,
+        episodes: 100,
+        delta: 0.1,
+    };
+    let want = [
+        (1, 1.0),
+        (2, 5.0 / 6.0),
+        (3, 5.0 / 7.0),
+        (10, 5.0 / 14.0),
+        (100, 5.0 / 104.0),
+    ];
+    for bernstein in [false, true] {
+        let mut q = QUcb::new(set, 0.0, bernstein);
+        let mut rng = LearnRng::seed_from_u64(1);
+        q.begin_episode(&mut rng);
+        let mut alphas = vec![f64::NAN];
+        for t in 1..=100u32 {
+            let before = q.q(3, 0, 0);
+            let r = (t % 2) as f64;
+            q.observe(3, 0, 0, r, 0, &mut rng);
+            alphas.push((q.q(3, 0, 0) - before) / (r - before));
+            if t == 3 {
+                assert!((q.q(3, 0, 0) - 16.0 / 21.0).abs() < 1e-15);
+            }
+        }
+        for (t, a) in want {
+            assert!(
+                (alphas[t] - a).abs() < 1e-12,
+                "α_{t} = {} vs {a}",
+                alphas[t]
+            );
+        }
+    }
 }

@@ -12,7 +12,7 @@
 use serde::Serialize;
 
 use super::{
-    EpsGreedy, LearnRng, Learner, Mvp, PolicyView, Psrl, QUcbHoeffding, Setting, Ucb1, Ucbvi,
+    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcb, Setting, Ucb1, Ucbvi,
     Uniform,
 };
 use crate::theory::{self, Bound};
@@ -21,9 +21,11 @@ use crate::theory::{self, Bound};
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum AlgorithmKind {
     Mvp,
+    Mvp2021,
     UcbviHoeffding,
     UcbviBernstein,
     QUcbHoeffding,
+    QUcbBernstein,
     Psrl,
     Ucb1,
     EpsGreedy,
@@ -153,6 +155,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bound: Some(theory::mvp),
     },
     AlgorithmInfo {
+        kind: AlgorithmKind::Mvp2021,
+        key: "mvp-2021",
+        name: "MVP (2021)",
+        param: Some(&BONUS),
+        reference: "Zhang, Ji & Du, Is Reinforcement Learning More Difficult Than Bandits? A Near-optimal Algorithm Escaping the Curse of Horizon, COLT 2021, arXiv:2009.13503 (as Remark 1 of arXiv:2307.13586 describes it)",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::mvp_2021),
+    },
+    AlgorithmInfo {
         kind: AlgorithmKind::UcbviHoeffding,
         key: "ucbvi-hoeffding",
         name: "UCBVI, Hoeffding bonus",
@@ -181,6 +193,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bandit_only: false,
         has_bound: true,
         bound: Some(theory::q_ucb_hoeffding),
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::QUcbBernstein,
+        key: "q-ucb-bernstein",
+        name: "Q-learning, UCB-Bernstein",
+        param: Some(&BONUS),
+        reference: "Jin, Allen-Zhu, Bubeck & Jordan, Is Q-learning Provably Efficient?, NeurIPS 2018, arXiv:1807.03765, Appendix C",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::q_ucb_bernstein),
     },
     AlgorithmInfo {
         kind: AlgorithmKind::Psrl,
@@ -339,9 +361,11 @@ impl Algorithm {
         let (set, x) = (*set, self.param);
         Ok(match self.kind {
             AlgorithmKind::Mvp => AnyLearner::Mvp(Mvp::new(set, x)),
+            AlgorithmKind::Mvp2021 => AnyLearner::Mvp(Mvp::with_samples(set, x, MvpSamples::All)),
             AlgorithmKind::UcbviHoeffding => AnyLearner::Ucbvi(Ucbvi::new(set, x, false)),
             AlgorithmKind::UcbviBernstein => AnyLearner::Ucbvi(Ucbvi::new(set, x, true)),
-            AlgorithmKind::QUcbHoeffding => AnyLearner::QUcbHoeffding(QUcbHoeffding::new(set, x)),
+            AlgorithmKind::QUcbHoeffding => AnyLearner::QUcb(QUcb::new(set, x, false)),
+            AlgorithmKind::QUcbBernstein => AnyLearner::QUcb(QUcb::new(set, x, true)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
             AlgorithmKind::Ucb1 => AnyLearner::Ucb1(Ucb1::new(set.actions, x)),
             AlgorithmKind::EpsGreedy => AnyLearner::EpsGreedy(EpsGreedy::new(set, x)),
@@ -356,7 +380,7 @@ impl Algorithm {
 pub enum AnyLearner {
     Mvp(Mvp),
     Ucbvi(Ucbvi),
-    QUcbHoeffding(QUcbHoeffding),
+    QUcb(QUcb),
     Psrl(Psrl),
     Ucb1(Ucb1),
     EpsGreedy(EpsGreedy),
@@ -375,7 +399,7 @@ macro_rules! with_learner {
         match $any {
             $crate::learn::AnyLearner::Mvp($l) => $body,
             $crate::learn::AnyLearner::Ucbvi($l) => $body,
-            $crate::learn::AnyLearner::QUcbHoeffding($l) => $body,
+            $crate::learn::AnyLearner::QUcb($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
             $crate::learn::AnyLearner::Ucb1($l) => $body,
             $crate::learn::AnyLearner::EpsGreedy($l) => $body,

@@ -38,10 +38,10 @@ pub use guest::{
     GuestPolicy, GuestStep, Guests, MAX_BATCH, ROW_SUM_TOLERANCE,
 };
 pub use mvp::{
-    FrozenStats, Mvp, largest_bonus as mvp_largest_bonus, log_factor as mvp_log_factor,
+    FrozenStats, Mvp, MvpSamples, largest_bonus as mvp_largest_bonus, log_factor as mvp_log_factor,
     visits_for_bonus_below_h as mvp_visits_for_bonus_below_h,
 };
 pub use plan::{Plan, StaleRows, argmax_random};
 pub use psrl::Psrl;
-pub use qlearn::QUcbHoeffding;
+pub use qlearn::{BERNSTEIN_C1, BERNSTEIN_C2, QUcb, learning_rate};
 pub use ucbvi::Ucbvi;

@@ -325,6 +325,17 @@ impl Plan {
         &self.policy
     }
 
+    /// V_h(s) as last planned (0 at h = H and before the first plan).
+    pub fn value(&self, h: usize, s: usize) -> f64 {
+        self.v[h * self.states + s]
+    }
+
+    /// Q of row (h, s, a) as last computed by [`Plan::replan_stale`] (NaN
+    /// before it first ran, and for a plan only ever made by [`Plan::replan`]).
+    pub fn q(&self, row: usize) -> f64 {
+        self.q.get(row).copied().unwrap_or(f64::NAN)
+    }
+
     pub fn version(&self) -> u64 {
         self.version
     }
@@ -339,7 +350,7 @@ mod tests {
 
     use super::*;
     use crate::generate::Garnet;
-    use crate::learn::{EpsGreedy, Learner, Mvp, PolicyView, Ucbvi};
+    use crate::learn::{EpsGreedy, Learner, Mvp, MvpSamples, PolicyView, Ucbvi};
     use crate::sample::{self, Sampler};
 
     /// Runs `fast` (recomputing stale rows only) and `full` (recomputing
@@ -417,37 +428,32 @@ mod tests {
     #[test]
     fn replanning_stale_rows_only_equals_full_backward_induction() {
         const K: u64 = 400;
+        /// `make()` as built, against `make()` replanning every row.
+        fn against_full<L: Learner + 'static>(
+            make: impl Fn() -> L,
+            stale: impl Fn(&mut L) -> &mut StaleRows,
+            m: &crate::Mdp,
+        ) {
+            let mut full = make();
+            stale(&mut full).always();
+            check_same_plans(Box::new(make()), Box::new(full), m, K as usize);
+        }
         for td in [false, true] {
             let m = model(td);
             let set = setting(&m, K);
             for scale in [1.0, 0.05, 0.002] {
                 for bernstein in [false, true] {
-                    let mut full = Ucbvi::new(set, scale, bernstein);
-                    full.stale.always();
-                    check_same_plans(
-                        Box::new(Ucbvi::new(set, scale, bernstein)),
-                        Box::new(full),
+                    against_full(|| Ucbvi::new(set, scale, bernstein), |l| &mut l.stale, &m);
+                }
+                for samples in [MvpSamples::LatestBatch, MvpSamples::All] {
+                    against_full(
+                        || Mvp::with_samples(set, scale, samples),
+                        |l| &mut l.stale,
                         &m,
-                        K as usize,
                     );
                 }
-                let mut full = Mvp::new(set, scale);
-                full.stale.always();
-                check_same_plans(
-                    Box::new(Mvp::new(set, scale)),
-                    Box::new(full),
-                    &m,
-                    K as usize,
-                );
             }
-            let mut full = EpsGreedy::new(set, 0.1);
-            full.stale.always();
-            check_same_plans(
-                Box::new(EpsGreedy::new(set, 0.1)),
-                Box::new(full),
-                &m,
-                K as usize,
-            );
+            against_full(|| EpsGreedy::new(set, 0.1), |l| &mut l.stale, &m);
         }
     }
 
