@@ -784,9 +784,10 @@ fn one_seed_leaves_intervals_empty_and_medians_are_medians() {
 }
 
 /// Common random numbers (#33, docs/formats.md `shared_draws`): two
-/// identical deterministic learners (UCBVI at the same parameters) differ
-/// by exactly 0 under shared draws — the same environment draws and the
-/// same stream for their own tie-breaks — and the paired interval is [0, 0];
+/// identical learners (UCBVI at the same parameters, random tie-breaks
+/// included) differ by exactly 0 under shared draws — the same table of
+/// outcomes and the same stream for their own tie-breaks — and the paired
+/// interval is [0, 0];
 /// with independent draws (the default) they differ (common practice: the
 /// defining property of common random numbers, Glasserman & Yao 1992).
 #[test]
@@ -824,10 +825,10 @@ fn shared_draws_make_identical_learners_identical() {
 }
 
 /// Shared draws narrow the paired interval of two close learners (UCBVI
-/// at bonus scales 0.05 and 0.07 on the reef, 8 seeds, K = 1000): much of
+/// at bonus scales 0.05 and 0.07 on the reef, 8 seeds, K = 1000): part of
 /// the difference between independent runs is the environment's noise
-/// (measured when written: see README's comparison section for the
-/// ratio on the ready experiments).
+/// (docs/formats.md, `shared_draws`, gives the ratio measured on the ready
+/// experiments).
 #[test]
 fn shared_draws_narrow_the_paired_interval() {
     use burnin::experiment::Output;

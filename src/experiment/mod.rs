@@ -71,25 +71,30 @@ pub fn run_seed(base: u64, learner: usize, seed: u64) -> u64 {
 /// Seeds of runs with common random numbers (an experiment's
 /// `shared_draws`): every learner's run j gets the learner seed
 /// `shared_seeds(base, j).0` for its own randomness (53 bits, as
-/// [`run_seed`]) and the environment base `.1`, from which each episode's
-/// start state and each step's reward and next state are drawn by a
-/// generator of their own ([`draw_seed`]). Two learners in the same state
-/// taking the same action at the same (episode, step) therefore see the
-/// same reward and next state, and two identical learners the same run
-/// (common random numbers: Glasserman & Yao, "Some guidelines and
+/// [`run_seed`]) and the environment base `.1`. The environment is then a
+/// table of outcomes drawn in advance, as in the "stack of rewards" model of
+/// a bandit (T. Lattimore and C. Szepesvári, Bandit Algorithms, Cambridge
+/// University Press 2020, section 4.6): the n-th visit of (h, s, a) draws
+/// its reward and next state from a generator of its own, seeded by
+/// [`draw_seed`]`(env, cell, n)`, and episode k's start state from one
+/// seeded by `draw_seed(env, H·S·A, k)`. Two learners that have taken
+/// action a in state s at step h n times have seen the same n outcomes
+/// there, whenever they took them — so their estimates agree where their
+/// experience does — and two identical learners make the same run (common
+/// random numbers: P. Glasserman and D. D. Yao, "Some guidelines and
 /// guarantees for common random numbers", Management Science 38(6), 1992).
 pub fn shared_seeds(base: u64, seed: u64) -> (u64, u64) {
-    let learner =
-        splitmix(splitmix(base ^ splitmix(seed)) ^ 0x5EED_5EED_0000_0001) & ((1 << 53) - 1);
-    let env = splitmix(splitmix(base ^ splitmix(seed)) ^ 0x5EED_5EED_0000_0002);
+    let mixed = splitmix(base ^ splitmix(seed));
+    let learner = splitmix(mixed ^ 0x5EED_5EED_0000_0001) & ((1 << 53) - 1);
+    let env = splitmix(mixed ^ 0x5EED_5EED_0000_0002);
     (learner, env)
 }
 
-/// The seed of the generator that draws step `step` of episode `episode`
-/// (0-based; step H draws the episode's start state) from an environment
-/// base of [`shared_seeds`].
-pub fn draw_seed(env: u64, episode: u64, step: u64) -> u64 {
-    splitmix(env ^ splitmix(episode.wrapping_mul(0x1_0000_0001).wrapping_add(step)))
+/// The seed of the generator that draws the `n`-th outcome (0-based) of
+/// `cell` — (h·S + s)·A + a, or H·S·A for start states — from an
+/// environment base of [`shared_seeds`].
+pub fn draw_seed(env: u64, cell: u64, n: u64) -> u64 {
+    splitmix(splitmix(env ^ splitmix(cell)) ^ n)
 }
 
 /// The largest seed [`fresh_seed`] gives (nine digits: easy to read out and
@@ -265,9 +270,10 @@ pub struct Run {
 struct RunState {
     ctx: Arc<Point>,
     rng: LearnRng,
-    /// With shared draws, the environment base of [`shared_seeds`]: the
-    /// environment then draws from generators of its own, not from `rng`.
-    env: Option<u64>,
+    /// With shared draws, the environment base of [`shared_seeds`] and the
+    /// visits so far of each (h, s, a) (the environment then draws from
+    /// generators of its own, not from `rng`).
+    env: Option<(u64, Vec<u64>)>,
     eval: Evaluator,
     done: u64,
     cum_regret: f64,
@@ -290,7 +296,9 @@ impl Run {
         let (li, si) = (index / seeds, (index % seeds) as u64);
         let (seed, env) = if ctx.exp.shared_draws {
             let (seed, env) = shared_seeds(ctx.exp.seed, si);
-            (seed, Some(env))
+            let m = &ctx.exp.model;
+            let cells = m.horizon() * m.n_states() * m.n_actions();
+            (seed, Some((env, vec![0; cells])))
         } else {
             (run_seed(ctx.exp.seed, li, si), None)
         };
@@ -420,13 +428,12 @@ impl RunState {
                 }
             };
             self.policy_episodes += 1;
-            let episode = self.done;
-            let env = self.env;
-            let draws = |step: usize| {
-                env.map(|e| LearnRng::seed_from_u64(draw_seed(e, episode, step as u64)))
-            };
-            let mut s = match draws(h_n) {
-                Some(mut g) => ctx.sampler.start(&mut g),
+            let cells = (h_n * s_n * a_n) as u64;
+            let mut s = match &self.env {
+                Some((e, _)) => {
+                    let mut g = LearnRng::seed_from_u64(draw_seed(*e, cells, self.done));
+                    ctx.sampler.start(&mut g)
+                }
                 None => ctx.sampler.start(&mut self.rng),
             };
             let mut ret = 0.0;
@@ -434,11 +441,17 @@ impl RunState {
                 let a = learner.act(h, s, &mut self.rng);
                 debug_assert!(a < a_n);
                 let row = s * a_n + a;
-                let (r, next) = match draws(h) {
-                    Some(mut g) => (
-                        sample::reward(&mut g, m.step(h).reward(row)),
-                        ctx.sampler.next(&mut g, h, row),
-                    ),
+                let (r, next) = match &mut self.env {
+                    Some((e, visits)) => {
+                        let cell = h * s_n * a_n + row;
+                        let n = visits[cell];
+                        visits[cell] += 1;
+                        let mut g = LearnRng::seed_from_u64(draw_seed(*e, cell as u64, n));
+                        (
+                            sample::reward(&mut g, m.step(h).reward(row)),
+                            ctx.sampler.next(&mut g, h, row),
+                        )
+                    }
                     None => (
                         sample::reward(&mut self.rng, m.step(h).reward(row)),
                         ctx.sampler.next(&mut self.rng, h, row),
