@@ -143,15 +143,38 @@ pub struct Paired {
     /// Number of pairs.
     pub n: usize,
     pub mean: f64,
-    /// The interval (equal to the mean when n < 2: no interval exists).
+    /// The interval (NaN in memory and null in a file when n < 2: no
+    /// interval exists).
+    #[serde(with = "nan_as_null")]
     pub lo: f64,
+    #[serde(with = "nan_as_null")]
     pub hi: f64,
+}
+
+/// A number that may not exist: NaN in memory, null in a file.
+mod nan_as_null {
+    use serde::{Deserialize, Deserializer, Serializer};
+
+    pub fn serialize<S: Serializer>(x: &f64, s: S) -> Result<S::Ok, S::Error> {
+        match x.is_nan() {
+            true => s.serialize_none(),
+            false => s.serialize_f64(*x),
+        }
+    }
+
+    pub fn deserialize<'de, D: Deserializer<'de>>(d: D) -> Result<f64, D::Error> {
+        Ok(Option::<f64>::deserialize(d)?.unwrap_or(f64::NAN))
+    }
 }
 
 /// Pairs `a[i]` with `b[i]` (the shorter length counts).
 pub fn paired95(a: &[f64], b: &[f64]) -> Paired {
     let d: Vec<f64> = a.iter().zip(b).map(|(x, y)| x - y).collect();
-    let (lo, hi) = interval95(&d);
+    let (lo, hi) = if d.len() < 2 {
+        (f64::NAN, f64::NAN)
+    } else {
+        interval95(&d)
+    };
     Paired {
         n: d.len(),
         mean: mean(&d),
@@ -228,9 +251,14 @@ mod tests {
         assert!((p.mean - 1.58).abs() < 1e-12, "{p:?}");
         assert!((p.lo - 0.700_114_236_723_017_5).abs() < 1e-9, "{p:?}");
         assert!((p.hi - 2.459_885_763_276_983).abs() < 1e-9, "{p:?}");
-        // One pair has no interval.
+        // One pair has no interval (NaN, written as null), never lo = hi = mean.
         let one = paired95(&[2.0], &[0.5]);
-        assert_eq!((one.n, one.mean, one.lo, one.hi), (1, 1.5, 1.5, 1.5));
+        assert_eq!((one.n, one.mean), (1, 1.5));
+        assert!(one.lo.is_nan() && one.hi.is_nan());
+        let text = serde_json::to_string(&one).unwrap();
+        assert_eq!(text, r#"{"n":1,"mean":1.5,"lo":null,"hi":null}"#);
+        let back: Paired = serde_json::from_str(&text).unwrap();
+        assert!(back.lo.is_nan() && back.n == 1);
     }
 
     /// The paired t-test's two-sided p-value on the same sleep data:

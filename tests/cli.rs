@@ -388,7 +388,7 @@ fn run_prints_a_table_and_writes_csv() {
     let mut lines = text.lines();
     assert_eq!(
         lines.next().unwrap(),
-        "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,return_mean,bound,bound_applies,lower_bound"
+        "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,cumulative_return_mean,bound,bound_applies,lower_bound"
     );
     let first = lines.next().unwrap();
     assert!(first.starts_with("\"coin, flips\",uniform,1,"), "{first}");
@@ -506,6 +506,28 @@ fn merged_shards_equal_a_single_run() {
     let merged = burnin(&args);
     assert_eq!(merged.code, 0, "{}", merged.stderr);
     assert_eq!(merged.stdout, whole.stdout);
+    // With shared draws too: every record's seed is the shared one, and
+    // the merge checks it against the same rule the runs used.
+    d.demo("night-ferry.json", "ferry.json");
+    let shared = d.file(
+        "shared.json",
+        r#"{"format": "burnin-experiment", "version": 1, "model_path": "ferry.json",
+            "episodes": 200, "seeds": 3, "seed": 9, "shared_draws": true,
+            "learners": [{"algorithm": "mvp", "bonus_scale": 0.01}, {"algorithm": "psrl"}]}"#,
+    );
+    let whole_shared = burnin(&["run", "--json", p(&shared)]);
+    assert_eq!(whole_shared.code, 0, "{}", whole_shared.stderr);
+    let parts: Vec<_> = (1..=2)
+        .map(|i| {
+            let r = burnin(&["run", "--shard", &format!("{i}/2"), p(&shared)]);
+            assert_eq!(r.code, 0, "{}", r.stderr);
+            d.file(&format!("shared{i}.json"), &r.stdout)
+        })
+        .collect();
+    let merged = burnin(&["merge", "--json", p(&parts[0]), p(&parts[1])]);
+    assert_eq!(merged.code, 0, "{}", merged.stderr);
+    assert_eq!(merged.stdout, whole_shared.stdout);
+    std::fs::remove_file(d.0.join("ferry.json")).unwrap();
 
     let r = burnin(&[
         "merge",

@@ -255,7 +255,7 @@ fn bad_figure_requests_are_refused_with_what_and_where() {
     let cases: &[(&[&str], &str)] = &[
         (
             &["--view", "sideways"],
-            "--view sideways: expected one of cumulative, episode, difference, sweep",
+            "--view sideways: expected one of cumulative, episode, difference, sweep, sweep-slope, sweep-burn-in",
         ),
         (
             &["--view", "sweep"],
@@ -403,12 +403,47 @@ fn a_sweep_plots_regret_at_k_against_the_swept_value() {
             "learner {i} drawn"
         );
     }
-    // A sweep has only its own view: refused before anything runs.
+    // Every reading per point (#33): slope and burn-in against the swept
+    // value, each learner's points and bars from the results file.
+    let results = dir.0.join("sweep-results.json");
+    let r = burnin(&["run", p(&file), "--json"]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    std::fs::write(&results, &r.stdout).unwrap();
+    for (view, title) in [
+        ("sweep-slope", "Slope of regret against delta"),
+        ("sweep-burn-in", "Burn-in against delta"),
+    ] {
+        let out = dir.0.join(format!("{view}.svg"));
+        let r = burnin(&["plot", p(&results), "-o", p(&out), "--view", view]);
+        assert_eq!(r.code, 0, "{view}: {}", r.stderr);
+        let (texts, _, _) = svg_parts(&std::fs::read_to_string(&out).unwrap());
+        assert!(texts.contains(&title.to_string()), "{view}: {texts:?}");
+    }
+    let v: serde_json::Value = serde_json::from_str(&r.stdout).unwrap();
+    let out = burnin::experiment::parse_results(&r.stdout).unwrap();
+    let opts = burnin::chart::Options {
+        view: Some(burnin::chart::View::SweepSlope),
+        ..Default::default()
+    };
+    let fig = burnin::chart::figure(&out, &opts).unwrap();
+    for (li, series) in fig.series.iter().enumerate() {
+        let slopes: Vec<f64> = v["points"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter_map(|p| p["learners"][li]["slope"].as_f64())
+            .collect();
+        assert_eq!(
+            series.y, slopes,
+            "learner {li}: one point per value with a slope"
+        );
+    }
+    // A sweep has only its own views: refused before anything runs.
     let r = burnin(&["run", p(&file), "--figure", p(&svg), "--view", "episode"]);
     assert_eq!(r.code, 2);
     assert!(
         r.stderr.contains(
-            "--figure: this experiment's results will have no episode view; they will have: sweep"
+            "--figure: this experiment's results will have no episode view; they will have: sweep, sweep-slope, sweep-burn-in"
         ),
         "{}",
         r.stderr

@@ -65,7 +65,7 @@ export class ExperimentView {
     this.running = null;
     this.chart = null;
     this.rows = $('learner-rows');
-    $('add-learner').addEventListener('click', () => { this.addRow({ use: true, algorithm: 'mvp', value: 1, label: '' }); hooks.changed(); });
+    $('add-learner').addEventListener('click', () => { this.addRow({ use: true, algorithm: 'mvp', value: 1, label: '' }); hooks.changed(); this.noteScaled(); });
     // A fresh seed goes into the form, so the experiment saved, shared or
     // run carries it and its results can be computed again.
     $('new-seed').addEventListener('click', async () => {
@@ -91,7 +91,8 @@ export class ExperimentView {
     $('guest-code-cancel').addEventListener('click', () => $('guest-code').close());
     this.renderGuests();
     $('exp-form').addEventListener('submit', (e) => { e.preventDefault(); this.run(); });
-    $('exp-form').addEventListener('input', () => { hooks.changed(); this.recheckSoon(); });
+    $('exp-form').addEventListener('input', () => { hooks.changed(); this.recheckSoon(); this.noteScaled(); });
+    $('exp-form').addEventListener('change', () => this.noteScaled());
     $('exp-form').addEventListener('change', () => this.recheckSoon());
     $('sweep-param').addEventListener('change', () => this.syncSweepPicks());
     $('cancel-exp').addEventListener('click', () => {
@@ -194,7 +195,7 @@ export class ExperimentView {
     };
     alg.addEventListener('change', () => { syncParam(null); rowChanged(); });
     param.addEventListener('input', rowChanged);
-    remove.addEventListener('click', () => { tr.remove(); this.hooks.changed(); });
+    remove.addEventListener('click', () => { tr.remove(); this.hooks.changed(); this.noteScaled(); });
     const td = (c) => { const t = el('td'); t.append(c); return t; };
     const paramCell = td(paramName);
     paramCell.append(param);
@@ -350,6 +351,7 @@ export class ExperimentView {
     for (const l of Array.isArray(d.learners) ? d.learners : DEFAULT_SETUP.learners) {
       if (l && (this.algorithms.has(l.algorithm) || (typeof l.guest === 'string' && l.guest))) this.addRow(l);
     }
+    this.noteScaled();
     $('sweep-param').value = d.sweep?.parameter || '';
     $('sweep-values').value = d.sweep?.values || '';
     this.syncSweepPicks();
@@ -434,6 +436,24 @@ export class ExperimentView {
    * a moment after each edit: problems that are fixed disappear, and the box
    * closes when none is left.
    */
+  /**
+   * Says plainly which used rows carry a scaled bonus: their published
+   * bounds do not apply, and a comparison with a row at scale 1 compares
+   * two different things (the rows carry over when another model opens).
+   */
+  noteScaled() {
+    const scaled = [...this.rows.children].filter((tr) => {
+      const [use, alg, param] = tr.querySelectorAll('input, select');
+      return use.checked && this.algorithms.get(alg.value)?.param?.key === 'bonus_scale' && Number(param.value) !== 1;
+    }).map((tr) => {
+      const [, alg, param, label] = tr.querySelectorAll('input, select');
+      return label.value.trim() || `${alg.value} ×${param.value}`;
+    });
+    const note = $('scaled-note');
+    note.hidden = scaled.length === 0;
+    note.textContent = scaled.length ? `Scaled bonus (not the published constants; their bounds do not apply): ${scaled.join(', ')}. Set the scale to 1 for the algorithm as published.` : '';
+  }
+
   recheckSoon() {
     if ($('exp-problems').hidden) return;
     clearTimeout(this.recheckTimer);
@@ -510,6 +530,7 @@ export class ExperimentView {
       } else {
         const secs = (performance.now() - t0) / 1000;
         this.setResults(resultsOf(r, file.text));
+        this.hooks.resultsReplaced?.();
         /** Whether these results are saved somewhere (library or a file): only then may opening another model clear them unasked. */
         this.resultsKept = false;
         $('exp-status').textContent = `Done in ${secs.toFixed(1)} s on ${job.workers} worker${job.workers === 1 ? '' : 's'}.`;
@@ -694,8 +715,8 @@ export class ExperimentView {
         const tr = el('tr');
         tr.append(el('th', l.label));
         l.regret_mean.forEach((m, i) => {
-          const td = el('td', `${short(m)} ${interval(d, l.regret_lo[i], l.regret_hi[i])}`, { 'data-value': String(m) });
           const r = this.results.readings?.[i]?.[li];
+          const td = el('td', r ? `${r.regret} ${r.regret_interval}` : `${short(m)} ${interval(d, l.regret_lo[i], l.regret_hi[i])}`, { 'data-value': String(m) });
           if (r) td.append(el('div', `slope ${r.slope} · burn-in ${r.burn_in}`, { class: 'reading' }));
           tr.append(td);
         });
@@ -706,13 +727,13 @@ export class ExperimentView {
       // Each header says what its number is, from the core's glossary.
       const hint = (text, ...keys) => el('th', text, { title: keys.map((k) => this.meaning(k)).join(' ') });
       head.append(el('th', 'learner'), hint('regret at K', 'regret'), hint('95% interval', 'interval'), hint('slope [95% bootstrap]', 'slope'), hint('burn-in [95% bootstrap]', 'burn_in'), hint('model updates', 'model_updates'),
-        ...eps.map((e) => hint(`ε = ${short(e.epsilon)}: first ε-optimal episode (PAC order ${short(e.pac_order)}, Zhang et al. 2024) · share ε-optimal · settled within ε after`, 'first_optimal', 'optimal_share', 'settled')));
+        ...eps.map((e) => hint(`ε = ${short(e.epsilon)}${e.trivial ? ' (at least V*: every policy qualifies)' : ''}: first ε-optimal episode (PAC order ${short(e.pac_order)}, Zhang et al. 2024) · share ε-optimal · settled within ε after`, 'first_optimal', 'optimal_share', 'settled')));
       const reading = (i) => this.results.readings?.[0]?.[i] ?? { slope: '—', burn_in: '—' };
       for (const [i, l] of d.learners.entries()) {
         const last = l.regret_mean.length - 1;
         const updates = l.model_updates.reduce((a, b) => a + b, 0) / l.model_updates.length;
         const tr = el('tr');
-        tr.append(el('th', l.label), el('td', short(l.regret_mean[last]), { 'data-value': String(l.regret_mean[last]) }), el('td', interval(d, l.regret_lo[last], l.regret_hi[last])),
+        tr.append(el('th', l.label), el('td', reading(i).regret ?? short(l.regret_mean[last]), { 'data-value': String(l.regret_mean[last]) }), el('td', reading(i).regret_interval ?? interval(d, l.regret_lo[last], l.regret_hi[last])),
           el('td', reading(i).slope), el('td', reading(i).burn_in),
           el('td', updates.toFixed(1)));
         l.episodes_to_eps.forEach((e, j) => {
@@ -741,7 +762,8 @@ export class ExperimentView {
     const byLabel = (id) => d.learners.find((x) => x.label === $(id).value) || d.learners[0];
     const l = view === 'regret-diff' ? byLabel('cmp-a') : d.learners[Number($('heat-learner').value) || 0];
     const other = view === 'regret-diff' ? byLabel('cmp-b') : null;
-    $('heat-learner').disabled = view === 'regret-diff';
+    // The A − B map is of the compared pair: no learner box of its own.
+    $('heat-learner').closest('label').hidden = view === 'regret-diff';
     const total = (x) => x.regret_mean[x.regret_mean.length - 1];
     const cell = (h, s) => {
       if (view === 'visits') return l.visits[h][s];

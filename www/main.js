@@ -167,7 +167,8 @@ async function openText(text, label) {
     try {
       experiment.setResults(resultsOf(doc));
       showTab('experiment');
-      notice(`Showing results from ${label}.`);
+      resultsFileNotice = `Showing results from ${label}.`;
+      notice(resultsFileNotice);
     } catch (err) {
       renderProblems($('problems'), label, { problems: [{ path: '', message: `these results cannot be shown (${err.message})` }], unlisted: 0 });
     }
@@ -382,7 +383,15 @@ const graph = new GraphView(async (positions) => {
 // ---- start -------------------------------------------------------------
 onWorkerRestart((why) => notice(`A compute worker stopped (${why}) and was replaced; anything it was running has to be run again.`, true));
 let experiment = null;
+/** The notice that says which file the shown results came from, while it stands. */
+let resultsFileNotice = null;
+
 const experimentHooks = {
+  /** New results replaced the shown ones: a notice naming an opened results file no longer holds. */
+  resultsReplaced: () => {
+    if (resultsFileNotice !== null && $('notice').textContent === resultsFileNotice) notice('');
+    resultsFileNotice = null;
+  },
   model: () => ({ text: current?.text, name: current?.name || 'model', generator: current?.generator, states: current?.solution.states, sizes: current ? { S: current.solution.states.length, H: current.solution.horizon } : null }),
   changed: saveWork,
   saveResults: (expText, resultsText) => saveToLibrary({ kind: 'experiment', name: `${current.name} — ${stamp(new Date().toISOString())}`, model: current.text, experiment: expText, results: resultsText }),

@@ -33,14 +33,23 @@ pub enum View {
     Difference,
     /// Regret at K against the swept value.
     Sweep,
+    /// The tail slope (with its bootstrap interval) against the swept value.
+    #[serde(rename = "sweep-slope")]
+    SweepSlope,
+    /// The burn-in (with its bootstrap interval) against the swept value;
+    /// points that had not settled by K are left out.
+    #[serde(rename = "sweep-burn-in")]
+    SweepBurnIn,
 }
 
 impl View {
-    pub const ALL: [View; 4] = [
+    pub const ALL: [View; 6] = [
         View::Cumulative,
         View::Episode,
         View::Difference,
         View::Sweep,
+        View::SweepSlope,
+        View::SweepBurnIn,
     ];
 
     pub fn key(self) -> &'static str {
@@ -49,6 +58,8 @@ impl View {
             View::Episode => "episode",
             View::Difference => "difference",
             View::Sweep => "sweep",
+            View::SweepSlope => "sweep-slope",
+            View::SweepBurnIn => "sweep-burn-in",
         }
     }
 
@@ -158,7 +169,14 @@ pub struct Figure {
 /// them (the first is the default).
 pub fn views(out: &Output) -> Vec<(View, String)> {
     match out {
-        Output::Sweep(s) => vec![(View::Sweep, format!("regret at K against {}", s.parameter))],
+        Output::Sweep(s) => vec![
+            (View::Sweep, format!("regret at K against {}", s.parameter)),
+            (View::SweepSlope, format!("slope against {}", s.parameter)),
+            (
+                View::SweepBurnIn,
+                format!("burn-in against {}", s.parameter),
+            ),
+        ],
         Output::Single(r) => {
             let mut v = vec![
                 (View::Cumulative, "cumulative regret".to_string()),
@@ -177,7 +195,7 @@ pub fn views(out: &Output) -> Vec<(View, String)> {
 /// be drawn is refused before hours of running rather than after.
 pub fn check_planned(opts: &Options, sweep: bool, labels: &[&str]) -> Result<(), String> {
     let have: Vec<View> = if sweep {
-        vec![View::Sweep]
+        vec![View::Sweep, View::SweepSlope, View::SweepBurnIn]
     } else if labels.len() >= 2 {
         vec![View::Cumulative, View::Episode, View::Difference]
     } else {
@@ -229,6 +247,9 @@ pub fn figure(out: &Output, opts: &Options) -> Result<Figure, String> {
     }
     let bands = opts.bands && !one_seed(out);
     let mut fig = match (out, view) {
+        (Output::Sweep(s), View::SweepSlope | View::SweepBurnIn) => {
+            sweep_readings(s, view == View::SweepBurnIn, opts, bands)
+        }
         (Output::Sweep(s), _) => {
             let series = s
                 .learners
@@ -270,6 +291,69 @@ pub fn figure(out: &Output, opts: &Options) -> Result<Figure, String> {
         s.tidy();
     }
     Ok(fig)
+}
+
+/// A sweep's slope or burn-in against the swept value, per learner, with
+/// the bootstrap intervals as error bars; a point whose reading does not
+/// exist (not settled, or a slope with no positive regret) is left out, and
+/// a learner's bars are drawn only when every point it has carries both
+/// ends of its interval.
+fn sweep_readings(
+    s: &crate::experiment::SweepResults,
+    burn_in: bool,
+    opts: &Options,
+    bands: bool,
+) -> Figure {
+    let series = s
+        .learners
+        .iter()
+        .enumerate()
+        .map(|(li, l)| {
+            let (mut x, mut y, mut lo, mut hi) = (Vec::new(), Vec::new(), Vec::new(), Vec::new());
+            let mut whole = true;
+            for (p, &v) in s.points.iter().zip(&s.values) {
+                let r = &p.learners[li];
+                let (point, interval) = if burn_in {
+                    (
+                        r.burn_in.map(|b| b as f64),
+                        r.burn_in_interval
+                            .and_then(|(a, b)| Some((a? as f64, b? as f64))),
+                    )
+                } else {
+                    (r.slope, r.slope_interval)
+                };
+                let Some(point) = point else { continue };
+                x.push(v);
+                y.push(point);
+                match interval {
+                    Some((a, b)) => {
+                        lo.push(a);
+                        hi.push(b);
+                    }
+                    None => whole = false,
+                }
+            }
+            Series {
+                band: (bands && whole).then_some((lo, hi)),
+                ..Series::curve(l.label.clone(), series_colour(li), x, y)
+            }
+        })
+        .collect();
+    let (what, axis) = if burn_in {
+        ("Burn-in", "burn-in (episodes)")
+    } else {
+        ("Slope of regret", "log-log slope over the last decade")
+    };
+    Figure {
+        title: format!("{what} against {}", s.parameter),
+        x_label: s.parameter.clone(),
+        x_name: s.parameter.clone(),
+        y_label: axis.into(),
+        log: opts.log,
+        bars: true,
+        series,
+        caption: String::new(),
+    }
 }
 
 impl Series {
@@ -596,7 +680,7 @@ pub fn caption(out: &Output, opts: &Options) -> String {
     let name = if name.is_empty() { "Experiment" } else { name };
     let curves = !matches!(
         opts.view,
-        Some(View::Episode | View::Difference | View::Sweep)
+        Some(View::Episode | View::Difference | View::Sweep | View::SweepSlope | View::SweepBurnIn)
     ) && matches!(out, Output::Single(_));
     let mut text = format!("{name}.");
     if opts.bands {
@@ -611,6 +695,11 @@ pub fn caption(out: &Output, opts: &Options) -> String {
     }
     if opts.lower && curves {
         text.push_str(" Dotted: the minimax lower-bound shape.");
+    }
+    match opts.view {
+        Some(View::SweepBurnIn) => text.push_str(" Bars: 95% bootstrap intervals over seeds. A point is left out where the learner had not settled by K."),
+        Some(View::SweepSlope) => text.push_str(" Bars: 95% bootstrap intervals over seeds. Slope: least squares of ln regret on ln k over the last decade (1 linear, ½ the √K regime)."),
+        _ => {}
     }
     text
 }

@@ -33,7 +33,8 @@ pub use readings::{
 pub use results::{
     Cell, Comparison, EpsResult, LearnerResult, MAX_ALL_PAIRS, MAX_SEED_CURVE_VALUES,
     RESULTS_FORMAT, RESULTS_VERSION, Results, SWEEP_FORMAT, SweepLearner, SweepResults, csv_field,
-    median_of, median_text, parse_results, slope_digits, summarise, verdict,
+    interval_text, median_of, median_text, number_text, parse_results, slope_digits, summarise,
+    verdict,
 };
 pub use spec::{
     DEFAULT_SEEDS, EXPERIMENT_FORMAT, EXPERIMENT_VERSION, Experiment, ExperimentSummary,
@@ -294,14 +295,12 @@ impl Run {
     pub fn new(ctx: Arc<Point>, index: usize) -> Run {
         let seeds = ctx.exp.seeds as usize;
         let (li, si) = (index / seeds, (index % seeds) as u64);
-        let (seed, env) = if ctx.exp.shared_draws {
-            let (seed, env) = shared_seeds(ctx.exp.seed, si);
+        let seed = ctx.exp.run_seed_of(li, si);
+        let env = ctx.exp.shared_draws.then(|| {
             let m = &ctx.exp.model;
             let cells = m.horizon() * m.n_states() * m.n_actions();
-            (seed, Some((env, vec![0; cells])))
-        } else {
-            (run_seed(ctx.exp.seed, li, si), None)
-        };
+            (shared_seeds(ctx.exp.seed, si).1, vec![0; cells])
+        });
         let spec = &ctx.exp.learners[li];
         let m = &ctx.exp.model;
         let learner = match &spec.source {
@@ -587,6 +586,9 @@ pub enum Output {
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct ReadingTexts {
     pub label: String,
+    /// Mean regret at K and its interval ([`number_text`], [`interval_text`]).
+    pub regret: String,
+    pub regret_interval: String,
     pub slope: String,
     pub burn_in: String,
     /// Per ε target: the median first ε-optimal episode and the median
@@ -604,6 +606,12 @@ impl Output {
                 .iter()
                 .map(|l| ReadingTexts {
                     label: l.label.clone(),
+                    regret: number_text(*l.regret_mean.last().expect("a checkpoint")),
+                    regret_interval: interval_text(
+                        *l.regret_mean.last().expect("a checkpoint"),
+                        *l.regret_lo.last().expect("a checkpoint"),
+                        *l.regret_hi.last().expect("a checkpoint"),
+                    ),
                     slope: l.slope_text(),
                     burn_in: l.burn_in_text(),
                     first_optimal: l

@@ -37,6 +37,10 @@ pub struct EpsResult {
     pub optimal_share: Vec<f64>,
     /// S·A·H³/ε², the order of the PAC bound on `first_optimal`.
     pub pac_order: f64,
+    /// ε ≥ V*₁(ρ): every policy is ε-optimal (regret never exceeds V* with
+    /// rewards in [0, 1]), so these readings say nothing about learning.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub trivial: bool,
 }
 
 /// One (h, s, a) cell of a regret decomposition: 0-based indices, the mean
@@ -66,7 +70,9 @@ impl LearnerResult {
         let n = self.burn_in_by_seed.len();
         let settled = self.burn_in_by_seed.iter().flatten().count();
         let linear = self.seeds_linear_at_k.unwrap_or(0) as usize;
-        if linear > 0 {
+        if linear > 0 && n == 1 {
+            text.push_str(": still linear at K");
+        } else if linear > 0 {
             text.push_str(&format!(": {linear} of {n} seeds still linear at K"));
             if settled > 0 {
                 text.push_str(&format!(", {settled} of {n} settled"));
@@ -155,6 +161,76 @@ pub fn median_text(xs: &[Option<u64>]) -> String {
     median_of(&got).map_or("—".into(), |m| m.to_string())
 }
 
+/// A number as every table, verdict and read-out prints it (one rule for
+/// the CLI and the page; `short` in www/format.js is the same rule for the
+/// numbers the page formats itself): from 10⁶ up, three decimals of
+/// scientific notation; from 100, one decimal; from 1, three; below 1,
+/// three significant digits; a minus sign as "−".
+pub fn number_text(x: f64) -> String {
+    if !x.is_finite() {
+        return if x.is_nan() {
+            "NaN".into()
+        } else if x > 0.0 {
+            "Infinity".into()
+        } else {
+            "−Infinity".into()
+        };
+    }
+    let a = x.abs();
+    let text = if a >= 1e6 {
+        let e = libm::floor(libm::log10(a)) as i32;
+        let m = x / libm::pow(10.0, e as f64);
+        // Rounding the mantissa can carry into the next power of ten.
+        let (m, e) = if (libm::round(m.abs() * 1000.0) / 1000.0) >= 10.0 {
+            (m / 10.0, e + 1)
+        } else {
+            (m, e)
+        };
+        format!("{m:.3}e+{e}")
+    } else if a >= 100.0 {
+        format!("{x:.1}")
+    } else if a >= 1.0 {
+        format!("{x:.3}")
+    } else if a == 0.0 {
+        "0.00".into()
+    } else if a < 1e-6 {
+        format!("{x:.2e}")
+    } else {
+        let lead = libm::floor(libm::log10(a)) as i32;
+        let decimals = (2 - lead).max(0) as usize;
+        format!("{x:.decimals$}")
+    };
+    text.replacen('-', "−", 1)
+}
+
+/// A regret interval as the tables print it: "[lo, hi]", "[0 (clipped),
+/// hi]" where the Student-t interval reached below 0 (it is symmetric about
+/// the mean, so it did exactly when 2·mean − hi < 0), "n/a (one seed)".
+pub fn interval_text(mean: f64, lo: f64, hi: f64) -> String {
+    if lo.is_nan() || hi.is_nan() {
+        "n/a (one seed)".into()
+    } else if 2.0 * mean - hi < 0.0 {
+        format!("[0 (clipped), {}]", number_text(hi))
+    } else {
+        format!("[{}, {}]", number_text(lo), number_text(hi))
+    }
+}
+
+/// Interval bounds that may not exist: NaN in memory (one seed gives no
+/// interval) and null in the file, never a number standing in for one.
+pub(crate) mod no_interval_as_null {
+    use serde::{Deserialize, Deserializer, Serializer};
+
+    pub fn serialize<S: Serializer>(v: &[f64], s: S) -> Result<S::Ok, S::Error> {
+        s.collect_seq(v.iter().map(|x| (!x.is_nan()).then_some(*x)))
+    }
+
+    pub fn deserialize<'de, D: Deserializer<'de>>(d: D) -> Result<Vec<f64>, D::Error> {
+        let v: Vec<Option<f64>> = Deserialize::deserialize(d)?;
+        Ok(v.into_iter().map(|x| x.unwrap_or(f64::NAN)).collect())
+    }
+}
+
 /// Most per-seed curve values a learner's results carry (seeds ×
 /// checkpoints): 100 000, so a results file stays a few megabytes.
 pub const MAX_SEED_CURVE_VALUES: usize = 100_000;
@@ -171,13 +247,20 @@ pub struct LearnerResult {
     pub checkpoints: Vec<u64>,
     /// Mean cumulative expected regret across seeds at each checkpoint.
     pub regret_mean: Vec<f64>,
-    /// 95% Student-t interval of that mean.
+    /// 95% Student-t interval of that mean, its lower end clipped at 0
+    /// (regret is never negative; the interval is symmetric, so it was
+    /// clipped exactly where 2·mean − hi < 0); null with one seed.
+    #[serde(with = "no_interval_as_null")]
     pub regret_lo: Vec<f64>,
+    #[serde(with = "no_interval_as_null")]
     pub regret_hi: Vec<f64>,
     /// Mean expected regret of the checkpoint's own episode.
     pub episode_regret_mean: Vec<f64>,
-    /// Mean cumulative realised return.
-    pub return_mean: Vec<f64>,
+    /// Mean cumulative realised return up to each checkpoint (the sum of
+    /// the rewards actually drawn; `return_mean` in files written before
+    /// December 2026, which still read).
+    #[serde(alias = "return_mean")]
+    pub cumulative_return_mean: Vec<f64>,
     pub final_regret: Vec<f64>,
     /// Each seed's cumulative regret at every checkpoint, `[seed][checkpoint]`
     /// (empty when seeds × checkpoints exceeds [`MAX_SEED_CURVE_VALUES`], and
@@ -282,7 +365,10 @@ pub struct Comparison {
     /// Mean over seeds of regret(a) − regret(b) at each checkpoint, with its
     /// 95% paired interval.
     pub difference_mean: Vec<f64>,
+    /// (null with one seed: no interval exists)
+    #[serde(with = "no_interval_as_null")]
     pub difference_lo: Vec<f64>,
+    #[serde(with = "no_interval_as_null")]
     pub difference_hi: Vec<f64>,
     /// The same at K.
     pub at_k: Paired,
@@ -332,18 +418,22 @@ pub fn verdict_of(
 
 /// The verdict line of a comparison at K.
 pub fn verdict(a: &str, b: &str, k: u64, p: &Paired) -> String {
-    let interval = format!("95% paired interval [{:.4}, {:.4}]", p.lo, p.hi);
+    let interval = format!(
+        "95% paired interval [{}, {}]",
+        number_text(p.lo),
+        number_text(p.hi)
+    );
     if p.n < 2 {
         format!("{a} against {b} at K = {k}: n/a (one seed)")
     } else if p.hi < 0.0 {
         format!(
-            "{a} below {b} at K = {k}: regret {:.4} lower, {interval}",
-            -p.mean
+            "{a} below {b} at K = {k}: regret {} lower, {interval}",
+            number_text(-p.mean)
         )
     } else if p.lo > 0.0 {
         format!(
-            "{a} above {b} at K = {k}: regret {:.4} higher, {interval}",
-            p.mean
+            "{a} above {b} at K = {k}: regret {} higher, {interval}",
+            number_text(p.mean)
         )
     } else {
         format!("{a} and {b} not told apart at K = {k}: {interval} holds 0")
@@ -432,7 +522,12 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
             );
             for c in 0..n {
                 let xs = column(&runs, c, |r| &r.regret);
-                let (l, h) = interval95(&xs);
+                let (l, h) = if xs.len() < 2 {
+                    (f64::NAN, f64::NAN)
+                } else {
+                    let (l, h) = interval95(&xs);
+                    (l.max(0.0), h)
+                };
                 mean_r.push(mean(&xs));
                 lo.push(l);
                 hi.push(h);
@@ -462,6 +557,7 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
                         })
                         .collect(),
                     pac_order: theory::pac_episodes(&set, eps),
+                    trivial: eps >= ctx.optimal_value,
                 })
                 .collect();
             let (hh, ss) = (m.horizon(), m.n_states());
@@ -527,7 +623,7 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
                 regret_lo: lo,
                 regret_hi: hi,
                 episode_regret_mean: ep,
-                return_mean: ret,
+                cumulative_return_mean: ret,
                 final_regret: runs.iter().map(|r| *r.regret.last().unwrap()).collect(),
                 regret_by_seed: if runs.len() * ks.len() <= MAX_SEED_CURVE_VALUES {
                     runs.iter().map(|r| r.regret.clone()).collect()
@@ -704,7 +800,7 @@ impl Results {
     /// One row per (learner, checkpoint).
     pub fn to_csv(&self) -> String {
         let mut o = String::from(
-            "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,return_mean,bound,bound_applies,lower_bound\n",
+            "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,cumulative_return_mean,bound,bound_applies,lower_bound\n",
         );
         let one_seed = self.seeds < 2;
         let iv = |x: f64| {
@@ -733,7 +829,7 @@ impl Results {
                     iv(l.regret_lo[c]),
                     iv(l.regret_hi[c]),
                     l.episode_regret_mean[c],
-                    l.return_mean[c],
+                    l.cumulative_return_mean[c],
                     self.lower_bound.values[c],
                 ));
             }
@@ -752,7 +848,9 @@ pub struct SweepLearner {
     pub algorithm: String,
     /// Mean regret at K for each value, with its 95% interval.
     pub regret_mean: Vec<f64>,
+    #[serde(with = "no_interval_as_null")]
     pub regret_lo: Vec<f64>,
+    #[serde(with = "no_interval_as_null")]
     pub regret_hi: Vec<f64>,
     pub slope: Vec<Option<f64>>,
     pub burn_in: Vec<Option<u64>>,
@@ -824,13 +922,20 @@ impl SweepResults {
         );
         for l in &self.learners {
             for (i, v) in self.values.iter().enumerate() {
+                let iv = |x: f64| {
+                    if x.is_nan() {
+                        String::new()
+                    } else {
+                        x.to_string()
+                    }
+                };
                 o.push_str(&format!(
                     "{},{},{v},{},{},{}\n",
                     csv_field(&l.label),
                     l.algorithm,
                     l.regret_mean[i],
-                    l.regret_lo[i],
-                    l.regret_hi[i]
+                    iv(l.regret_lo[i]),
+                    iv(l.regret_hi[i])
                 ));
             }
         }
@@ -988,7 +1093,7 @@ fn check_results(r: &Results, at: &str, problems: &mut Problems) {
             ("regret_lo", &l.regret_lo),
             ("regret_hi", &l.regret_hi),
             ("episode_regret_mean", &l.episode_regret_mean),
-            ("return_mean", &l.return_mean),
+            ("cumulative_return_mean", &l.cumulative_return_mean),
         ] {
             len(&lp(f), v.len(), c);
         }

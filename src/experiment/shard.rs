@@ -17,7 +17,7 @@ use serde::{Deserialize, Deserializer, Serialize};
 
 use super::{
     Output, Point, RunFault, RunRecord, assemble_without, draw_stream, job_number,
-    parse_experiment, run_seed, shard_jobs,
+    parse_experiment, shard_jobs,
 };
 use crate::format::digest::hex_digest;
 use crate::model::Problems;
@@ -388,7 +388,7 @@ fn check_record(
             s.runs[j]
         ));
     }
-    let want_seed = run_seed(e.seed, r.learner, r.seed_index);
+    let want_seed = e.run_seed_of(r.learner, r.seed_index);
     if r.seed != want_seed {
         return Err(format!(
             "has seed {}, but the experiment gives that run seed {want_seed}",

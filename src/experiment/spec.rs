@@ -296,6 +296,18 @@ impl Experiment {
         }
     }
 
+    /// The seed of the run of learner `learner`, seed index `seed`: the one
+    /// its learner's own randomness is drawn from (and a guest is told),
+    /// [`super::run_seed`], or with shared draws the one all learners share,
+    /// [`super::shared_seeds`]. Runs and the shard checks both ask here.
+    pub fn run_seed_of(&self, learner: usize, seed: u64) -> u64 {
+        if self.shared_draws {
+            super::shared_seeds(self.seed, seed).0
+        } else {
+            super::run_seed(self.seed, learner, seed)
+        }
+    }
+
     /// What the learners are told.
     pub fn setting(&self) -> Setting {
         Setting {

@@ -1470,6 +1470,48 @@ await check('the published site opens from a sub-path, keeps working offline, is
   assert(!cacheNames.some((k) => k !== `burnin-${next.version}`), `the old cache is gone: ${cacheNames}`);
 });
 
+await check('readings that say only what the data says (#33): scaled rows are named, shared draws make two identical learners equal, a results-file notice goes when a run replaces the results, the A − B map has no learner box of its own, and a sweep shows slope and burn-in per point with its cells CSV', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  // The ready set-up carries scaled rows: the page names them.
+  await page.waitForSelector('#scaled-note:not([hidden])');
+  const note = await page.textContent('#scaled-note');
+  assert(note.includes('MVP ×0.002') && note.includes('ucbvi-bernstein ×0.05'), `scaled rows named: ${note}`);
+  // Two rows of MVP at scale 1 (the same learner twice), under shared draws.
+  const rows = page.locator('#learner-rows tr');
+  await rows.nth(1).locator('input[type=number]').fill('1');
+  for (let i = 2; i < await rows.count(); i++) await rows.nth(i).locator('input[type=checkbox]:not(.swept)').uncheck();
+  await page.waitForSelector('#scaled-note', { state: 'hidden' });
+  await page.check('#exp-shared');
+  await page.fill('#exp-episodes', '300');
+  await page.fill('#exp-seeds', '3');
+  await runAndWait(page);
+  const r = await resultsJson(page);
+  assert(r.shared_draws === true, 'the results say the draws were shared');
+  const c = r.comparisons[0];
+  assertEqual([c.at_k.mean, c.at_k.lo, c.at_k.hi], [0, 0, 0], 'identical learners under shared draws differ by exactly 0');
+  // A results file opened: the notice names it; a new run replaces it and the notice goes.
+  await upload(page, 'earlier-results.json', JSON.stringify(r));
+  await page.waitForFunction(() => document.getElementById('notice').textContent === 'Showing results from earlier-results.json.');
+  await page.click('#tab-experiment');
+  await runAndWait(page);
+  assert(await page.locator('#notice').isHidden(), `the notice went: "${await page.textContent('#notice')}"`);
+  // The A − B map shows the compared pair, with no learner box of its own.
+  await page.selectOption('#heat-view', 'regret-diff');
+  assert(await page.locator('#heat-learner').isHidden(), 'no learner box beside the A − B map');
+  await page.selectOption('#heat-view', 'visits');
+  assert(await page.locator('#heat-learner').isVisible(), 'the learner box is back for one learner\'s map');
+  // A sweep: every point's cell gives slope and burn-in; its cells CSV is offered.
+  await page.selectOption('#sweep-param', 'bonus_scale');
+  await page.fill('#sweep-values', '0.01, 1');
+  await runAndWait(page);
+  const cells = await page.locator('#results-table tbody td').allTextContents();
+  assert(cells.length === 4 && cells.every((t) => /slope .* · burn-in /.test(t)), `sweep cells: ${JSON.stringify(cells)}`);
+  assert(!(await page.locator('#export-cells').isDisabled()), 'a sweep offers its cells CSV');
+  const csv = (await downloadText(page, '#export-cells')).text.split('\n');
+  assert(csv[0].startsWith('bonus_scale,learner,algorithm,step,state,action'), csv[0]);
+});
+
 await browser.close();
 console.log(`\nbrowser: ${passed} passed, ${failed} failed`);
 process.exit(failed === 0 ? 0 : 1);

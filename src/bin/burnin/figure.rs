@@ -11,7 +11,8 @@ use burnin::experiment::Output;
 #[derive(clap::Args, Clone)]
 pub struct FigureArgs {
     /// What the figure shows: cumulative, episode, difference (two learners'
-    /// paired difference) or sweep (default: cumulative, or sweep for a sweep).
+    /// paired difference), or for a sweep: sweep (regret at K), sweep-slope
+    /// or sweep-burn-in (default: cumulative, or sweep for a sweep).
     #[arg(long, value_name = "VIEW", help_heading = "Figure")]
     pub view: Option<String>,
     /// Log-log axes.

@@ -1126,14 +1126,11 @@ fn sweep_table(r: &burnin::experiment::SweepResults) -> String {
     for l in &r.learners {
         let _ = write!(o, "{:<lw$}", l.label);
         for i in 0..r.values.len() {
-            let cell = if r.points[0].seeds < 2 {
-                format!("{:.2} n/a (one seed)", l.regret_mean[i])
-            } else {
-                format!(
-                    "{:.2} [{:.2}, {:.2}]",
-                    l.regret_mean[i], l.regret_lo[i], l.regret_hi[i]
-                )
-            };
+            let cell = format!(
+                "{} {}",
+                burnin::experiment::number_text(l.regret_mean[i]),
+                burnin::experiment::interval_text(l.regret_mean[i], l.regret_lo[i], l.regret_hi[i])
+            );
             let _ = write!(o, "  {cell:>26}");
         }
         o.push('\n');
@@ -1284,14 +1281,14 @@ fn results_table(r: &burnin::experiment::Results) -> String {
         );
         let _ = writeln!(
             o,
-            "{:<lw$}  {:>12.3}  {:>21}  {:>22}  {:>10.1}  {}",
+            "{:<lw$}  {:>12}  {:>21}  {:>22}  {:>10.1}  {}",
             l.label,
-            l.regret_mean[last],
-            if r.seeds < 2 {
-                "n/a (one seed)".to_string()
-            } else {
-                format!("[{:.3}, {:.3}]", l.regret_lo[last], l.regret_hi[last])
-            },
+            burnin::experiment::number_text(l.regret_mean[last]),
+            burnin::experiment::interval_text(
+                l.regret_mean[last],
+                l.regret_lo[last],
+                l.regret_hi[last]
+            ),
             l.slope_text(),
             upd,
             l.burn_in_text(),
@@ -1337,6 +1334,14 @@ fn results_table(r: &burnin::experiment::Results) -> String {
                     burnin::experiment::median_text(&e.episodes)
                 );
             }
+        }
+        for e in r.learners[0].episodes_to_eps.iter().filter(|e| e.trivial) {
+            let _ = writeln!(
+                o,
+                "ε = {}: at least V* = {}, so every policy is ε-optimal and these rows say nothing about learning",
+                e.epsilon,
+                burnin::experiment::number_text(r.optimal_value)
+            );
         }
     }
     let decomposed = r.learners.iter().any(|l| !l.regret_by_cell.is_empty());
