@@ -1489,7 +1489,7 @@ await check('readings that say only what the data says (#33): scaled rows are na
   const r = await resultsJson(page);
   assert(r.shared_draws === true, 'the results say the draws were shared');
   const c = r.comparisons[0];
-  assertEqual([c.at_k.mean, c.at_k.lo, c.at_k.hi], [0, 0, 0], 'identical learners under shared draws differ by exactly 0');
+  assertEqual(JSON.stringify([c.at_k.mean, c.at_k.lo, c.at_k.hi]), '[0,0,0]', 'identical learners under shared draws differ by exactly 0');
   // A results file opened: the notice names it; a new run replaces it and the notice goes.
   await upload(page, 'earlier-results.json', JSON.stringify(r));
   await page.waitForFunction(() => document.getElementById('notice').textContent === 'Showing results from earlier-results.json.');
