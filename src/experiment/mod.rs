@@ -15,6 +15,7 @@ mod draws;
 mod estimate;
 mod readings;
 mod results;
+mod runner;
 mod shard;
 mod spec;
 
@@ -22,6 +23,10 @@ pub use draws::draw_stream;
 pub use estimate::{
     Calibration, Estimate, LearnerCost, TimedRun, bytes_words, calibrate, calibrate_keeping,
     calibration_run, duration_words, estimate,
+};
+pub use runner::{
+    BEFORE_RUNNING, Budget, Clock, Limits, Pool, Runner, SAY_ESTIMATE_SECONDS, Stopped,
+    WHILE_RUNNING, Watch,
 };
 pub use shard::{MAX_SHARDS, SHARD_FORMAT, SHARD_VERSION, ShardFile, merge, text_digest};
 
