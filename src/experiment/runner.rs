@@ -8,7 +8,7 @@
 //! ([`Clock`]), its threads ([`Pool`]) and what it does with progress and
 //! cancels ([`Watch`]). `burnin run` passes `Instant` and scoped
 //! `std::thread`s ([`Runner::run`]); the page's workers each step one lane
-//! of the plan ([`Runner::lanes`], the core's `RunQueue`), because a worker
+//! of the plan ([`Runner::lanes`], [`Runner::into_queue`]), because a worker
 //! must return to its event loop between slices, and the page asks the
 //! runner for its estimate and budget decision before it starts
 //! ([`Runner::estimate_here`], [`Runner::late_estimate`], [`Budget::allows`]).
@@ -17,7 +17,9 @@ use std::sync::atomic::{AtomicBool, AtomicU64, AtomicUsize, Ordering};
 use std::sync::{Arc, Mutex};
 
 use super::estimate::{Calibration, Estimate, TimedRun, calibrate_keeping, calibration_run};
-use super::{Experiment, Output, Point, Run, RunFault, RunRecord, ShardFile, assemble, shard_jobs};
+use super::{
+    Experiment, Output, Point, Run, RunFault, RunQueue, RunRecord, ShardFile, assemble, shard_jobs,
+};
 use crate::learn::Guests;
 
 /// The front end's clock: seconds since any fixed origin.
@@ -61,14 +63,13 @@ pub trait Watch: Sync {
 /// How long calibration may take: `total` seconds shared over every
 /// (point, learner) pair (each gets 0.01 to 0.1 s), and a `deadline` after
 /// which the pairs not reached are left unmeasured (counted at their
-/// nearest heavier point's cost); one episode may outlast it, so a front
-/// end waits `wait` seconds before it estimates without the calibration
-/// ([`Runner::late_estimate`]).
+/// nearest heavier point's cost). One episode may outlast the deadline, so
+/// a front end waits a while longer and then estimates without the
+/// calibration ([`Runner::late_estimate`]).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Limits {
     pub total: f64,
     pub deadline: f64,
-    pub wait: f64,
 }
 
 /// Calibration while the run starts (`burnin run`): the other threads take
@@ -77,15 +78,18 @@ pub struct Limits {
 pub const WHILE_RUNNING: Limits = Limits {
     total: 1.0,
     deadline: 2.0,
-    wait: 3.0,
 };
 
+/// How long [`Runner::run`] and [`Runner::estimate`] wait for a
+/// [`WHILE_RUNNING`] calibration: its deadline and a second.
+pub const CALIBRATION_WAIT: f64 = 3.0;
+
 /// Calibration before the run starts (the page asks first and runs in its
-/// workers afterwards): nothing runs meanwhile, so it is kept short.
+/// workers afterwards): nothing runs meanwhile, so it is kept short. The
+/// page's own wait for it is `compute.js`'s.
 pub const BEFORE_RUNNING: Limits = Limits {
     total: 0.5,
     deadline: 1.0,
-    wait: 5.0,
 };
 
 /// A run estimated to take at least this long says its estimate as it starts.
@@ -186,12 +190,22 @@ impl Runner {
             .sum()
     }
 
-    /// The lanes of a pool of [`Runner::threads`] workers that each step
-    /// their own runs (the page's): lane i runs shard i of that many
-    /// ([`super::RunQueue::shard`]), and the core merges them into what one
-    /// lane gives.
-    pub fn lanes(&self) -> Vec<(usize, usize)> {
-        (0..self.threads).map(|i| (i, self.threads)).collect()
+    /// The lanes of a pool of `workers` workers that each step their own
+    /// runs (the page's), read from the experiment alone (no model is
+    /// solved): lane i runs shard i of as many lanes as there are, at most
+    /// one per run ([`Runner::into_queue`] of that shard), and the core
+    /// merges their shards into what one lane gives.
+    pub fn lanes(exp: &Experiment, workers: usize) -> Vec<(usize, usize)> {
+        let points = exp.sweep.as_ref().map_or(1, |s| s.values.len());
+        let runs = points * exp.learners.len() * exp.seeds as usize;
+        let n = workers.clamp(1, runs.max(1));
+        (0..n).map(|i| (i, n)).collect()
+    }
+
+    /// The plan as one lane's steppable queue (`threads` aside): what a
+    /// page's worker steps, in slices, between looks at its messages.
+    pub fn into_queue(self) -> RunQueue {
+        RunQueue::planned(self.exp, self.points, self.jobs)
     }
 
     /// Times each built-in learner on its first run at each point within
@@ -236,8 +250,8 @@ impl Runner {
 
     /// The estimate, timing the learners here and now with the
     /// [`BEFORE_RUNNING`] limits (the page's worker, which runs nothing
-    /// else meanwhile; its front end waits [`BEFORE_RUNNING`]`.wait` and
-    /// otherwise asks for [`Runner::late_estimate`]).
+    /// else meanwhile; a front end that stops waiting for it asks for
+    /// [`Runner::late_estimate`]).
     pub fn estimate_here(&self, clock: &dyn Clock) -> Estimate {
         self.estimate_from(&self.calibrate(clock, &BEFORE_RUNNING, &|| false).0)
     }
@@ -250,7 +264,7 @@ impl Runner {
         let (points, out, c) = (self.points.clone(), Arc::clone(&slot), Arc::clone(&clock));
         let start = clock.seconds();
         pool.within(
-            WHILE_RUNNING.wait,
+            CALIBRATION_WAIT,
             Box::new(move || {
                 let cal = calibrate_points(&points, &*c, &WHILE_RUNNING, &|| false).0;
                 *out.lock().unwrap_or_else(|e| e.into_inner()) = Some(cal);
@@ -270,7 +284,7 @@ impl Runner {
     /// lane times each learner's first run while the others start on the
     /// rest, and the timed runs are continued, not started again (a run
     /// continued gives the bits of a run started afresh); one more lane
-    /// waits for the calibration (at most [`WHILE_RUNNING`]`.wait`) and
+    /// waits for the calibration (at most [`CALIBRATION_WAIT`]) and
     /// stops everything when the estimate is over the budget.
     pub fn run(
         &self,
@@ -518,7 +532,7 @@ impl<'a> Schedule<'a> {
     }
 
     /// The deciding lane: waits for the calibration (at most
-    /// [`WHILE_RUNNING`]`.wait`), estimates, and stops the run when the
+    /// [`CALIBRATION_WAIT`]), estimates, and stops the run when the
     /// estimate is over the budget.
     fn decide(&self) {
         let e = loop {
@@ -526,7 +540,7 @@ impl<'a> Schedule<'a> {
                 break self.runner.estimate_from(&cal);
             }
             let spent = self.clock.seconds() - self.start;
-            if spent > WHILE_RUNNING.wait {
+            if spent > CALIBRATION_WAIT {
                 break self.runner.late_estimate(spent);
             }
             if self.stopping() {
