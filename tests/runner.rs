@@ -1,5 +1,6 @@
 //! The core's runner (src/experiment/runner.rs), driven as a front end
-//! drives it: std threads for its pool, a clock made up for the test. What
+//! drives it: std threads for its pool (`burnin::native`, as `burnin run`
+//! gives them), a clock made up for the test. What
 //! it gives is checked against the runs done one after another
 //! (`run_all`): runs are independent and each draws only from its own
 //! seeded generator, so the order and the threads they ran on change no
@@ -9,7 +10,6 @@
 
 use std::sync::Arc;
 use std::sync::atomic::{AtomicU64, AtomicUsize, Ordering};
-use std::time::Duration;
 
 use serde_json::{Value, json};
 
@@ -18,6 +18,7 @@ use burnin::experiment::{
     Watch, assemble, merge, parse_experiment, run_all,
 };
 use burnin::learn::{Guest, GuestIntro, Guests};
+use burnin::native::Threads;
 
 /// A sweep over two model sizes, three learners (one of them a planner) and
 /// three seeds: 18 runs.
@@ -38,30 +39,6 @@ fn one_after_another(exp: &Experiment) -> String {
     let points = Point::all(exp, None);
     let records = points.iter().map(run_all).collect();
     assemble(exp, &points, records).to_json()
-}
-
-/// std's threads, as `burnin run` gives them.
-struct Threads;
-
-impl Pool for Threads {
-    fn scope(&self, lanes: usize, work: &(dyn Fn(usize) + Sync)) {
-        std::thread::scope(|s| {
-            for lane in 0..lanes {
-                s.spawn(move || work(lane));
-            }
-        });
-    }
-    fn within(&self, seconds: f64, work: Box<dyn FnOnce() + Send>) {
-        let (tx, rx) = std::sync::mpsc::channel();
-        std::thread::spawn(move || {
-            work();
-            let _ = tx.send(());
-        });
-        let _ = rx.recv_timeout(Duration::from_secs_f64(seconds));
-    }
-    fn rest(&self) {
-        std::thread::sleep(Duration::from_millis(1));
-    }
 }
 
 /// A clock that moves `step` seconds each time it is read.

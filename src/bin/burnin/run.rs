@@ -1,15 +1,17 @@
 //! `burnin run`: reads the experiment and its options, hands the core's
-//! runner (`burnin::experiment::Runner`) this machine's clock, threads and
-//! free memory and the progress line, and prints what it gives back: the
+//! runner (`burnin::experiment::Runner`) this machine's clock and threads
+//! (`burnin::native`), the free memory and the progress line, and prints what it gives back: the
 //! results, a shard file, the estimate, or why it stopped. The estimate,
 //! the budget's decisions and the schedule are the runner's.
 
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::sync::{Arc, Mutex};
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
-use burnin::experiment::{Budget, Pool, Runner, Stopped, bytes_words, parse_experiment};
+use burnin::experiment::{Budget, Runner, Stopped, bytes_words, parse_experiment};
+
+use burnin::native::Threads;
 
 use crate::files::{Failure, emit, invalid, read_text};
 use crate::guest;
@@ -167,8 +169,7 @@ pub fn run(a: &Args) -> Result<(), Failure> {
         .threads
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()));
     let runner = Runner::new(exp, Some(&guests), (index, count), threads);
-    let start = Instant::now();
-    let clock = move || start.elapsed().as_secs_f64();
+    let clock = burnin::native::clock();
     if a.estimate {
         let e = runner.estimate(Arc::new(clock), &Threads);
         if a.json {
@@ -223,30 +224,4 @@ fn free_memory() -> Option<f64> {
     sys.refresh_memory();
     let free = sys.available_memory();
     (free > 0).then_some(free as f64)
-}
-
-/// This machine's threads, for the core's runner.
-struct Threads;
-
-impl Pool for Threads {
-    fn scope(&self, lanes: usize, work: &(dyn Fn(usize) + Sync)) {
-        std::thread::scope(|s| {
-            for lane in 0..lanes {
-                s.spawn(move || work(lane));
-            }
-        });
-    }
-
-    fn within(&self, seconds: f64, work: Box<dyn FnOnce() + Send>) {
-        let (tx, rx) = std::sync::mpsc::channel();
-        std::thread::spawn(move || {
-            work();
-            let _ = tx.send(());
-        });
-        let _ = rx.recv_timeout(Duration::from_secs_f64(seconds));
-    }
-
-    fn rest(&self) {
-        std::thread::sleep(Duration::from_millis(1));
-    }
 }
