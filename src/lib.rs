@@ -3,8 +3,9 @@
 //! catalogue (`learn`), regret experiments with exact expected regret, their
 //! summaries and shards (`experiment`), statistics and published bounds
 //! (`stats`, `theory`), charts of results (`chart`), the file-format plumbing (`format`) and the reference
-//! benchmarks (`bench`). The CLI (`src/bin/burnin/main.rs`) and the wasm bindings
-//! (`wasm`, for the page) are front ends over it.
+//! benchmarks (`bench`). The CLI (`src/bin/burnin/`) and the wasm bindings
+//! (`wasm`, for the page) are front ends over it; `native` is the native
+//! front ends' clock and threads for the runner.
 //!
 //! **Invariant:** nothing in the core touches JS types, the file system, the
 //! clock, threads or an unseeded random generator; every random draw comes
@@ -23,6 +24,8 @@ pub mod solve;
 pub mod stats;
 pub mod theory;
 
+#[cfg(not(target_arch = "wasm32"))]
+pub mod native;
 #[cfg(target_arch = "wasm32")]
 pub mod wasm;
 

@@ -137,7 +137,8 @@ pub struct ExperimentRun {
 #[wasm_bindgen]
 impl ExperimentRun {
     /// Reads an experiment file's text and takes shard `index` (0-based) of
-    /// `count` of its runs; throws `{ok: false, problems, unlisted}`.
+    /// `count` of its runs, as the core's runner plans it (one lane of
+    /// `planRun`); throws `{ok: false, problems, unlisted}`.
     /// `guests` maps each guest learner's name to the function its module
     /// exports (`start(intro)` → `{decide(batch)}`, docs/formats.md); it may
     /// be undefined when the experiment names none.
@@ -155,8 +156,9 @@ impl ExperimentRun {
         let host: Option<crate::learn::Guests> = guests
             .is_object()
             .then(|| std::sync::Arc::new(JsHost(guests)) as crate::learn::Guests);
+        let runner = crate::experiment::Runner::new(exp, host.as_ref(), (index, count), 1);
         Ok(ExperimentRun {
-            batch: crate::experiment::RunQueue::shard_with_guests(exp, index, count, host),
+            batch: runner.into_queue(),
             text: text.to_owned(),
             index,
             count,
@@ -186,22 +188,17 @@ impl ExperimentRun {
             .map(|(l, s, d)| vec![l as f64, s as f64, d as f64])
     }
 
-    /// Records that `learner`'s run of seed `seed_index` stopped answering at
-    /// `episode`: its runs in this shard are left out (see `RunQueue::fail`).
-    pub fn fail(&mut self, learner: u32, seed_index: f64, episode: f64, message: &str) {
-        let learner = learner as usize;
-        let exp = self.batch.experiment();
-        if learner >= exp.learners.len() {
-            return;
-        }
-        let label = exp.learners[learner].label.clone();
-        self.batch.fail(crate::experiment::RunFault {
-            learner,
-            label,
-            seed_index: seed_index as u64,
-            episode: episode as u64,
-            message: message.to_owned(),
-        });
+    /// Records that `learner`'s run of seed `seed_index` gave no answer for
+    /// `seconds` after `episodes` episodes and its worker was stopped: its
+    /// runs in this shard are left out (see `RunQueue::gave_no_answer`).
+    #[wasm_bindgen(js_name = gaveNoAnswer)]
+    pub fn gave_no_answer(&mut self, learner: u32, seed_index: f64, episodes: f64, seconds: f64) {
+        self.batch.gave_no_answer(
+            learner as usize,
+            seed_index as u64,
+            episodes as u64,
+            seconds,
+        );
     }
 
     /// Runs up to `max` more episodes; true when everything is done.
@@ -389,29 +386,78 @@ pub fn generate_model(spec: &str) -> JsValue {
     }
 }
 
-/// How long and how much memory the experiment `text` will take on
-/// `workers` workers: each learner is timed for a few episodes here (about
-/// a second in all; see `experiment::calibrate`). `{ok, estimate, words}`,
-/// or the problems.
-#[wasm_bindgen(js_name = estimateRun)]
-pub fn estimate_run(text: &str, workers: usize) -> JsValue {
-    use crate::experiment::{Point, all_jobs, calibrate, estimate, parse_experiment};
-    let exp = match parse_experiment(text, None) {
-        Ok(e) => e,
-        Err(p) => return problems_value(&p),
-    };
-    let points = Point::all(&exp, None);
-    let start = js_sys::Date::now();
-    let now = || (js_sys::Date::now() - start) / 1000.0;
-    let stop = || now() > 1.0;
-    let pairs = (points.len() * exp.learners.len()) as f64;
-    let cal = calibrate(&points, &now, (0.5 / pairs).clamp(0.01, 0.1), &stop);
-    let e = estimate(&points, &all_jobs(&points), &cal, workers);
+/// The core's runner for the experiment `text` on `workers` workers, or
+/// the problems.
+fn runner(text: &str, workers: usize) -> Result<crate::experiment::Runner, JsValue> {
+    let exp = crate::experiment::parse_experiment(text, None).map_err(|p| problems_value(&p))?;
+    Ok(crate::experiment::Runner::new(exp, None, (0, 1), workers))
+}
+
+/// `{ok, estimate, words, over}`: `over` when the estimate is over
+/// `budget` seconds (the runner's decision; none without a budget).
+fn estimate_value(e: &crate::experiment::Estimate, budget: Option<f64>) -> JsValue {
+    use crate::experiment::Budget;
+    let budget = budget.map_or(Budget::Unchecked, |seconds| Budget::Within {
+        seconds,
+        free_bytes: None,
+    });
     let obj = Object::new();
     set(&obj, "ok", true);
-    set(&obj, "estimate", to_js(&e));
+    set(&obj, "estimate", to_js(e));
     set(&obj, "words", e.words_with("worker"));
+    set(&obj, "over", !budget.allows(e));
     obj.into()
+}
+
+/// How long and how much memory the experiment `text` will take on
+/// `workers` workers, and whether that is over `budget` seconds: the
+/// runner times each learner here for a few episodes (about a second in
+/// all; `Runner::estimate_here`). `{ok, estimate, words, over}`, or the
+/// problems.
+#[wasm_bindgen(js_name = estimateRun)]
+pub fn estimate_run(text: &str, workers: usize, budget: Option<f64>) -> JsValue {
+    match runner(text, workers) {
+        Ok(r) => estimate_value(&r.estimate_here(&now_seconds), budget),
+        Err(p) => p,
+    }
+}
+
+/// `estimateRun`'s answer when the page stopped waiting for it after
+/// `waited` seconds (one episode outlasted the calibration): the runner's
+/// lower bound (`Runner::late_estimate`).
+#[wasm_bindgen(js_name = lateEstimate)]
+pub fn late_estimate(text: &str, workers: usize, waited: f64, budget: Option<f64>) -> JsValue {
+    match runner(text, workers) {
+        Ok(r) => estimate_value(&r.late_estimate(waited), budget),
+        Err(p) => p,
+    }
+}
+
+/// Which shard of the experiment `text` each of `workers` workers runs, as
+/// the runner plans it (at most one worker per run): `{ok, lanes: [{shard,
+/// of}]}` (shard 0-based), or the problems.
+#[wasm_bindgen(js_name = planRun)]
+pub fn plan_run(text: &str, workers: usize) -> JsValue {
+    #[derive(serde::Serialize)]
+    struct Lane {
+        shard: usize,
+        of: usize,
+    }
+    #[derive(serde::Serialize)]
+    struct Plan {
+        ok: bool,
+        lanes: Vec<Lane>,
+    }
+    match crate::experiment::parse_experiment(text, None) {
+        Ok(exp) => to_js(&Plan {
+            ok: true,
+            lanes: crate::experiment::Runner::lanes(&exp, workers)
+                .into_iter()
+                .map(|(shard, of)| Lane { shard, of })
+                .collect(),
+        }),
+        Err(p) => problems_value(&p),
+    }
 }
 
 /// The catalogues of algorithms and generators and the file limits (see

@@ -88,29 +88,171 @@ fn every_path_architecture_names_exists() {
     );
 }
 
-/// Every subcommand `burnin --help` lists is named in ARCHITECTURE.md.
-#[test]
-fn architecture_names_every_cli_subcommand() {
+/// The subcommands `burnin --help` lists.
+fn cli_commands() -> Vec<String> {
     let out = Command::new(env!("CARGO_BIN_EXE_burnin"))
         .arg("--help")
         .output()
         .unwrap();
     let help = String::from_utf8(out.stdout).unwrap();
-    let commands: Vec<&str> = help
+    let commands: Vec<String> = help
         .lines()
         .skip_while(|l| !l.starts_with("Commands:"))
         .skip(1)
         .take_while(|l| l.starts_with("  "))
         .filter_map(|l| l.split_whitespace().next())
         .filter(|c| *c != "help")
+        .map(str::to_string)
         .collect();
-    assert!(commands.len() >= 7, "{help}");
+    assert!(commands.len() >= 8, "{help}");
+    commands
+}
+
+/// Every subcommand `burnin --help` lists is named in ARCHITECTURE.md.
+#[test]
+fn architecture_names_every_cli_subcommand() {
+    let commands = cli_commands();
     let spans = code_spans(&read("ARCHITECTURE.md"));
     for c in commands {
+        assert!(spans.contains(&c), "ARCHITECTURE.md does not name `{c}`");
+    }
+}
+
+/// The first fenced block of ARCHITECTURE.md: the data-flow diagram.
+fn diagram() -> String {
+    let md = read("ARCHITECTURE.md");
+    md.split("```")
+        .nth(1)
+        .expect("a fenced diagram")
+        .to_string()
+}
+
+/// The runner is on the data-flow diagram, and every front end runs
+/// experiments through it: `burnin run` calls `Runner::run`, the page's
+/// bindings plan, estimate and build each worker's lane through it, and no
+/// front end calls the pieces the runner is made of (calibration, the
+/// estimate's arithmetic, the shards' jobs) or decides on an estimate's
+/// number or on shards itself.
+#[test]
+fn the_runner_is_on_the_diagram_and_every_front_end_runs_through_it() {
+    let diagram = diagram();
+    for name in [
+        "Runner",
+        "Runner::run",
+        "planRun",
+        "Runner::into_queue",
+        "Estimate",
+        "Budget",
+        "Stopped",
+        "Pool",
+        "Clock",
+        "Watch",
+    ] {
+        assert!(diagram.contains(name), "the diagram does not show {name}");
+    }
+    let runner = read("src/experiment/runner.rs");
+    for item in [
+        "pub trait Clock",
+        "pub trait Pool",
+        "pub trait Watch",
+        "pub enum Budget",
+        "pub enum Stopped",
+        "pub fn run(",
+        "pub fn lanes(",
+        "pub fn into_queue(",
+        "pub fn estimate_here(",
+        "pub fn late_estimate(",
+    ] {
+        assert!(runner.contains(item), "runner.rs has no {item}");
+    }
+    let cli = read("src/bin/burnin/run.rs");
+    for call in [
+        "Runner::new(",
+        ".run(&budget",
+        ".estimate(",
+        ".output(",
+        ".shard_file(",
+    ] {
         assert!(
-            spans.iter().any(|s| s == c),
-            "ARCHITECTURE.md does not name `{c}`"
+            cli.contains(call),
+            "burnin run does not call the runner's {call}"
         );
+    }
+    let wasm = read("src/wasm.rs");
+    for call in [
+        "Runner::new(",
+        "Runner::lanes(",
+        ".estimate_here(",
+        ".late_estimate(",
+        ".into_queue()",
+        ".allows(",
+    ] {
+        assert!(
+            wasm.contains(call),
+            "the page's bindings do not call the runner's {call}"
+        );
+    }
+    let mut front = vec![
+        ("src/wasm.rs".to_string(), wasm),
+        ("src/native.rs".to_string(), read("src/native.rs")),
+    ];
+    for e in std::fs::read_dir(root().join("src/bin/burnin")).unwrap() {
+        let p = e.unwrap().path();
+        let rel = format!(
+            "src/bin/burnin/{}",
+            p.file_name().unwrap().to_string_lossy()
+        );
+        front.push((rel.clone(), read(&rel)));
+    }
+    for (file, text) in &front {
+        for piece in [
+            "calibrate(",
+            "calibrate_keeping(",
+            "calibration_run(",
+            "experiment::estimate(",
+            "shard_jobs(",
+            "all_jobs(",
+            "RunQueue::shard",
+            "Calibration {",
+        ] {
+            assert!(
+                !text.contains(piece),
+                "{file} calls {piece}: that is the runner's"
+            );
+        }
+    }
+    for e in std::fs::read_dir(root().join("www")).unwrap() {
+        let p = e.unwrap().path();
+        if p.extension().is_none_or(|x| x != "js") {
+            continue;
+        }
+        let text = std::fs::read_to_string(&p).unwrap();
+        for decision in ["estimate.seconds", "of: workers", "shard: i,"] {
+            assert!(
+                !text.contains(decision),
+                "{} decides for itself ({decision}): ask the core's runner",
+                p.display()
+            );
+        }
+    }
+}
+
+/// The CLI is glue: a module of its own for every subcommand `burnin
+/// --help` lists, and no file of it over 300 lines.
+#[test]
+fn the_cli_is_a_module_per_command_and_no_file_is_long() {
+    let commands = cli_commands();
+    let dir = root().join("src/bin/burnin");
+    for c in commands {
+        assert!(
+            dir.join(format!("{c}.rs")).exists(),
+            "no module src/bin/burnin/{c}.rs"
+        );
+    }
+    for e in std::fs::read_dir(&dir).unwrap() {
+        let p = e.unwrap().path();
+        let lines = std::fs::read_to_string(&p).unwrap().lines().count();
+        assert!(lines <= 300, "{}: {lines} lines", p.display());
     }
 }
 

@@ -89,13 +89,14 @@ export const checkExperiment = (text) => quick.request('check-experiment', { tex
 
 /**
  * How long and how much memory the experiment `text` will take on the
- * pool: {ok, estimate: {seconds, at_least, bytes, threads, learners}, words}
- * (the core times each learner for about a second). When a single episode
- * takes longer than `ESTIMATE_WAIT_MS`, the worker is replaced and the answer
- * is {ok, estimate: {seconds: null, at_least: true}, words}.
+ * pool, and whether that is over `budget` seconds: {ok, estimate: {seconds,
+ * at_least, bytes, threads, learners}, words, over}, from the core's runner
+ * (which times each learner for about a second). When a single episode
+ * takes longer than `ESTIMATE_WAIT_MS`, the worker is replaced and the
+ * runner's lower bound for that wait is the answer (`at_least`).
  */
-export async function estimateRun(text, workers = POOL_SIZE) {
-  const job = quick.request('estimate', { text, workers });
+export async function estimateRun(text, workers = POOL_SIZE, budget = undefined) {
+  const job = quick.request('estimate', { text, workers, budget });
   let timer;
   const late = new Promise((resolve) => { timer = setTimeout(() => resolve(null), ESTIMATE_WAIT_MS); });
   const r = await Promise.race([job.promise, late]);
@@ -103,10 +104,9 @@ export async function estimateRun(text, workers = POOL_SIZE) {
   if (r) return r;
   quick.replace(job.id, new Error('the estimate took too long'));
   job.promise.catch(() => {});
-  const secs = ESTIMATE_WAIT_MS / 1000;
-  return { ok: true, estimate: { seconds: null, at_least: true }, words: `a single episode takes more than ${secs} s; the whole run would take far longer` };
+  return quick.request('late-estimate', { text, workers, waited: ESTIMATE_WAIT_MS / 1000, budget }).promise;
 }
-/** How long the page waits for an estimate. */
+/** How long the page waits for an estimate before it replaces the worker timing it. */
 const ESTIMATE_WAIT_MS = 5000;
 
 /** A fresh base seed drawn from the browser's random source (getrandom in the core's bindings). */
@@ -152,25 +152,32 @@ export function checkGuest(source) {
 /**
  * Runs an experiment file's text on the pool. Returns {promise, cancel,
  * workers}; the promise resolves to {json, csv}, to {cancelled: true, done,
- * total}, or to problems {ok: false}. `guests` ([{name, source}]) are the
+ * total}, or to problems {ok: false}. The core's runner plans the run
+ * (`plan-run`: which shard each worker runs, at most one worker per run);
+ * this only posts each lane to its worker, sums their progress and hands
+ * their shards to the core to merge. `guests` ([{name, source}]) are the
  * user's learner modules the experiment names: they run only in the pool's
  * workers. A worker whose guest stays silent longer than the guest timeout
- * is replaced, and its shard run again without that learner (the fault is
- * listed in the results); the other learners' results stay.
+ * is replaced, and its shard run again without that learner (the core
+ * records the fault, listed in the results); the other learners' results
+ * stay. `workers` is the pool's size until the plan is known, then its
+ * number of lanes.
  */
 export function runExperiment(text, onProgress, workers = POOL_SIZE, guests = []) {
-  while (pool.length < workers) pool.push(new Client());
-  const done = new Array(workers).fill(0), total = new Array(workers).fill(0);
+  /** The core's plan: [{shard, of}], one lane per worker. */
+  let lanes = null;
+  const done = [], total = [];
   /** Per learner index, {episodes, ms} measured so far over all workers. */
   const measured = [];
-  const report = () => onProgress?.(done.reduce((a, b) => a + b, 0), total.reduce((a, b) => a + b, 0), measured);
+  const sum = (xs) => xs.reduce((a, b) => a + b, 0);
+  const report = () => onProgress?.(sum(done), sum(total), measured);
   let stopped = false, cancelled = false;
-  /** Per shard: its request and when its worker last spoke. */
-  const current = new Array(workers).fill(null);
+  /** Per lane: its request and when its worker last spoke. */
+  const current = [];
   const shard = (i, skip) => {
     const c = pool[i];
     let last = performance.now(), at = null;
-    const job = c.request('run', { text, shard: i, of: workers, guests, skip }, (d, t, where, slice) => {
+    const job = c.request('run', { text, shard: lanes[i].shard, of: lanes[i].of, guests, skip }, (d, t, where, slice) => {
       done[i] = d; total[i] = t; last = performance.now();
       if (where) at = where;
       if (slice && slice.episodes > 0) {
@@ -193,12 +200,10 @@ export function runExperiment(text, onProgress, workers = POOL_SIZE, guests = []
         if (cancelled && (err instanceof Hung || err === CANCELLED)) return { cancelled: true };
         if (!(err instanceof Hung) || stopped) throw err;
         const [learner, seedIndex, episodes] = err.at;
-        const fault = { learner, seed_index: seedIndex, episode: episodes + 1, message: `gave no answer within ${(err.ms / 1000).toFixed(0)} s; its worker was stopped` };
-        return shard(i, [...skip, fault]);
+        return shard(i, [...skip, { learner, seed_index: seedIndex, episodes, seconds: err.ms / 1000 }]);
       },
     );
   };
-  const jobs = pool.slice(0, workers).map((_, i) => shard(i, []));
   const cancel = () => {
     cancelled = true;
     for (const s of current) s?.job.cancel();
@@ -211,6 +216,13 @@ export function runExperiment(text, onProgress, workers = POOL_SIZE, guests = []
     }
   };
   const promise = (async () => {
+    const plan = await quick.request('plan-run', { text, workers }).promise;
+    if (plan.ok === false) return plan;
+    lanes = plan.lanes;
+    if (cancelled) return { cancelled: true, done: 0, total: 0 };
+    while (pool.length < lanes.length) pool.push(new Client());
+    for (let i = 0; i < lanes.length; i++) { done[i] = 0; total[i] = 0; }
+    const jobs = lanes.map((_, i) => shard(i, []));
     let results;
     try {
       results = await Promise.all(jobs);
@@ -222,9 +234,9 @@ export function runExperiment(text, onProgress, workers = POOL_SIZE, guests = []
     const bad = results.find((r) => r && r.ok === false);
     if (bad) return bad;
     if (results.some((r) => r && r.cancelled)) {
-      return { cancelled: true, done: done.reduce((a, b) => a + b, 0), total: total.reduce((a, b) => a + b, 0) };
+      return { cancelled: true, done: sum(done), total: sum(total) };
     }
     return quick.request('merge', { shards: results }).promise;
   })();
-  return { promise, cancel, workers };
+  return { promise, cancel, get workers() { return lanes ? lanes.length : workers; } };
 }

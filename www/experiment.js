@@ -9,7 +9,7 @@ import { openChart, drawInto, EXPORT } from './charts.js';
 import { short, grouped, valueColour, inkOn } from './format.js';
 import { sweepableParams } from './generator-form.js';
 
-/** A run estimated longer than this (seconds) is started only when the user says so. */
+/** The page's budget (seconds): a run the core's runner estimates over it is started only when the user says so. */
 const LONG_RUN_SECONDS = 180;
 
 /** The ready experiment of a first visit: a few seconds in the browser. */
@@ -486,11 +486,10 @@ export class ExperimentView {
     $('run-exp').disabled = true;
     $('exp-status').textContent = 'Estimating how long this run takes…';
     this.estimating = true;
-    const est = await estimateRun(file.text).finally(() => { this.estimating = false; });
+    const est = await estimateRun(file.text, undefined, LONG_RUN_SECONDS).finally(() => { this.estimating = false; });
     $('run-exp').disabled = false;
     if (est.ok === false) { $('exp-status').textContent = ''; this.showProblems(est, file.rows); return; }
-    const long = est.estimate.seconds === null || est.estimate.seconds > LONG_RUN_SECONDS;
-    if (long && !(await this.confirmLongRun(est.words))) {
+    if (est.over && !(await this.confirmLongRun(est.words))) {
       $('exp-status').textContent = `Not started: estimated ${est.words}.`;
       return;
     }

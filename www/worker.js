@@ -6,20 +6,24 @@
 //   check-experiment {text} → done {result}       ({ok: true} or problems)
 //   generate {spec}    → done {result}            (a model file's text or problems)
 //   run {text, shard, of, guests, skip} → progress {done, total, at}…, then done {result: shard file text},
-//                        or error {problems} for a bad experiment. guests: [{name, source}], the
-//                        user's learner modules (run here, never on the page's thread); skip:
-//                        [{learner, seed_index, episode, message}], learners already given up on.
+//                        or error {problems} for a bad experiment. shard, of: a lane of the core's
+//                        plan (plan-run). guests: [{name, source}], the user's learner modules (run
+//                        here, never on the page's thread); skip: [{learner, seed_index, episodes,
+//                        seconds}], learners already given up on (silent that long after that many
+//                        episodes).
 //                        at: [learner, seed index, episodes done] of the run in progress; slice:
 //                        {learner, episodes, ms} of the slice just run (one run per slice).
 //   check-guest {source} → done {result: {ok, message}}  (whether a module exports a learner)
 //   merge {shards}     → done {result: {json, csv}} or problems
-//   estimate {text, workers} → done {result: {ok, estimate, words}} or problems
+//   plan-run {text, workers} → done {result: {ok, lanes: [{shard, of}]}} or problems (the core's runner)
+//   estimate {text, workers, budget} → done {result: {ok, estimate, words, over}} or problems
+//   late-estimate {text, workers, waited, budget} → the same, when the page stopped waiting for `estimate`
 //   catalogue          → done {result}            (algorithms, generators, limits: src/catalogue.rs)
 //   read-document {text} → done {result}          (what a file is, read by the core)
 //   with-layout {text, positions} → done {result} (the model's text with a new layout, or problems)
 //   fresh-seed         → done {result: a base seed}   (from Crypto.getRandomValues, through the core)
 //   cancel {id}        → the run with that id stops and answers cancelled
-import init, { solveModel, checkModel, checkExperiment, generateModel, mergeShards, catalogue, readDocument, withLayout, estimateRun, freshSeed, ExperimentRun } from './pkg/burnin.js';
+import init, { solveModel, checkModel, checkExperiment, generateModel, mergeShards, catalogue, readDocument, withLayout, estimateRun, lateEstimate, planRun, freshSeed, ExperimentRun } from './pkg/burnin.js';
 
 const ready = init();
 const cancelled = new Set();
@@ -58,7 +62,7 @@ async function run(id, text, shard, of, guests = [], skip = []) {
     self.postMessage({ type: 'error', id, problems });
     return;
   }
-  for (const f of skip) job.fail(f.learner, f.seed_index, f.episode, f.message);
+  for (const f of skip) job.gaveNoAnswer(f.learner, f.seed_index, f.episodes, f.seconds);
   let chunk = 64;
   const total = job.totalEpisodes();
   const guarded = job.hasGuests();
@@ -128,8 +132,14 @@ self.onmessage = async (event) => {
       self.postMessage({ type: 'done', id, result: readDocument(event.data.text) });
     } else if (type === 'with-layout') {
       self.postMessage({ type: 'done', id, result: withLayout(event.data.text, event.data.positions) });
+    } else if (type === 'plan-run') {
+      self.postMessage({ type: 'done', id, result: planRun(event.data.text, event.data.workers) });
     } else if (type === 'estimate') {
-      self.postMessage({ type: 'done', id, result: estimateRun(event.data.text, event.data.workers) });
+      const { text, workers, budget } = event.data;
+      self.postMessage({ type: 'done', id, result: estimateRun(text, workers, budget) });
+    } else if (type === 'late-estimate') {
+      const { text, workers, waited, budget } = event.data;
+      self.postMessage({ type: 'done', id, result: lateEstimate(text, workers, waited, budget) });
     } else if (type === 'fresh-seed') {
       self.postMessage({ type: 'done', id, result: freshSeed() });
     } else if (type === 'merge') {

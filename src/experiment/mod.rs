@@ -15,6 +15,7 @@ mod draws;
 mod estimate;
 mod readings;
 mod results;
+mod runner;
 mod shard;
 mod spec;
 
@@ -22,6 +23,10 @@ pub use draws::draw_stream;
 pub use estimate::{
     Calibration, Estimate, LearnerCost, TimedRun, bytes_words, calibrate, calibrate_keeping,
     calibration_run, duration_words, estimate,
+};
+pub use runner::{
+    BEFORE_RUNNING, Budget, CALIBRATION_WAIT, Clock, Limits, Pool, Runner, SAY_ESTIMATE_SECONDS,
+    Stopped, WHILE_RUNNING, Watch,
 };
 pub use shard::{MAX_SHARDS, SHARD_FORMAT, SHARD_VERSION, ShardFile, merge, text_digest};
 
@@ -815,6 +820,11 @@ impl RunQueue {
     ) -> RunQueue {
         let points = Point::all(&exp, guests.as_ref());
         let jobs = shard_jobs(&points, index, count);
+        Self::planned(exp, points, jobs)
+    }
+
+    /// The queue of `jobs` ((point, run) pairs) of `exp`'s `points`.
+    fn planned(exp: Experiment, points: Vec<Arc<Point>>, jobs: Vec<(usize, usize)>) -> RunQueue {
         let total = jobs.iter().map(|&(p, _)| points[p].exp.episodes).sum();
         RunQueue {
             records: vec![Vec::new(); points.len()],
@@ -929,6 +939,29 @@ impl RunQueue {
             self.current = None;
         }
         self.faults.push(fault);
+    }
+
+    /// Records that `learner`'s run of seed `seed_index` gave no answer for
+    /// `seconds` after `episodes_done` episodes, and so its worker was
+    /// stopped (the page's watchdog): as [`RunQueue::fail`].
+    pub fn gave_no_answer(
+        &mut self,
+        learner: usize,
+        seed_index: u64,
+        episodes_done: u64,
+        seconds: f64,
+    ) {
+        let Some(spec) = self.exp.learners.get(learner) else {
+            return;
+        };
+        let fault = RunFault {
+            learner,
+            label: spec.label.clone(),
+            seed_index,
+            episode: episodes_done + 1,
+            message: format!("gave no answer within {seconds:.0} s; its worker was stopped"),
+        };
+        self.fail(fault);
     }
 
     /// The run in progress, or else the next one to start: (learner index,

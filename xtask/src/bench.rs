@@ -89,7 +89,7 @@ pub fn bench(quick: bool) -> Result<()> {
     let k: u64 = if quick { 10_000 } else { 100_000 };
     step("building the native binary (release)");
     crate::run(cargo().args(["build", "--release", "--bin", "burnin"]))?;
-    let cli = root().join("target/release/burnin");
+    let cli = crate::target_dir().join("release/burnin");
     let www = build_wasm()?;
 
     step("native workloads (solver, replanning)");
@@ -648,7 +648,7 @@ fn step_split(md: &mut String, targets: &mut Vec<String>, quick: bool) -> Result
         );
         return Ok(());
     }
-    let dir = root().join("target/profile");
+    let dir = crate::target_dir().join("profile");
     crate::run(
         cargo()
             .env("CARGO_PROFILE_RELEASE_DEBUG", "2")

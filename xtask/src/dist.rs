@@ -10,7 +10,7 @@
 
 use std::path::{Path, PathBuf};
 
-use crate::{Result, build_wasm, root, step};
+use crate::{Result, build_wasm, step};
 
 /// Files of `www/` that are development tools, not the page.
 const NOT_PUBLISHED: [&str; 3] = ["bench.html", "bench.js", "bench-worker.js"];
@@ -99,7 +99,7 @@ pub fn write_dist(www: &Path, dir: &Path, note: Option<&str>) -> Result<()> {
     files(www, www, &mut all)?;
     let mut list: Vec<String> = all.into_iter().filter(|f| published(f)).collect();
     let build = crate::output(
-        std::process::Command::new(root().join("target/debug/burnin")).arg("--version"),
+        std::process::Command::new(crate::target_dir().join("debug/burnin")).arg("--version"),
     )
     .map(|v| v.trim().trim_start_matches("burnin ").to_string())
     .ok_or("cannot read the build identity from target/debug/burnin --version")?;

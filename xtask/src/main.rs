@@ -72,6 +72,15 @@ pub(crate) fn root() -> PathBuf {
         .to_path_buf()
 }
 
+/// Cargo's build folder: `CARGO_TARGET_DIR` when set (relative to the
+/// repository, as cargo reads it here), else `target/`.
+pub(crate) fn target_dir() -> PathBuf {
+    match std::env::var_os("CARGO_TARGET_DIR") {
+        Some(d) if !d.is_empty() => root().join(d),
+        _ => root().join("target"),
+    }
+}
+
 pub(crate) fn step(title: &str) {
     eprintln!("\n== {title}");
 }
@@ -135,7 +144,7 @@ pub(crate) fn build_wasm() -> Result<PathBuf> {
     ensure_wasm_tools()?;
     step("building the wasm core");
     run(cargo().args(["build", "--lib", "--release", "--target", WASM_TARGET]))?;
-    let wasm = root().join(format!("target/{WASM_TARGET}/release/burnin.wasm"));
+    let wasm = target_dir().join(format!("{WASM_TARGET}/release/burnin.wasm"));
     let www = root().join("www");
     run(Command::new("wasm-bindgen")
         .args(["--target", "web", "--no-typescript", "--out-dir"])
@@ -218,7 +227,7 @@ fn slurm_check() -> Result<()> {
     run(cargo().args(["build", "--bin", "burnin"]))?;
     run(Command::new("bash")
         .arg(root().join("tests/slurm/check.sh"))
-        .arg(root().join("target/debug/burnin")))
+        .arg(target_dir().join("debug/burnin")))
 }
 
 /// Each fuzz target for `seconds`, on a fresh corpus grown from fuzz/seeds.
@@ -301,7 +310,7 @@ fn browser_checks(www: PathBuf) -> Result<()> {
     let dir = browser_dir()?;
     // Expected values come from the CLI, on the same files the page loads.
     run(cargo().args(["build", "--bin", "burnin"]))?;
-    let cli = root().join("target/debug/burnin");
+    let cli = target_dir().join("debug/burnin");
     let mut expected = String::from("{");
     let demos = root().join("demo-models");
     let mut names: Vec<_> = std::fs::read_dir(&demos)
@@ -381,7 +390,7 @@ fn browser_checks(www: PathBuf) -> Result<()> {
     .ok_or_else(|| format!("burnin plot failed on {}", old.display()))?;
     // The published site, at a sub-path of its own server, and a second
     // build to publish over it.
-    let checks = root().join("target/dist-check");
+    let checks = target_dir().join("dist-check");
     let _ = std::fs::remove_dir_all(&checks);
     let site = checks.join("root/team/burnin");
     let next = checks.join("next");
