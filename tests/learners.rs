@@ -238,7 +238,11 @@ fn uniform_regret_is_k_times_the_value_gap() {
 /// sublinear (log-log slope over the last decade well under 1), while the
 /// uniform learner's is linear (slope 1). Sublinear regret is the defining
 /// property of these algorithms (each paper's main theorem); the scales were
-/// tuned on this model.
+/// tuned on this model. RLSVI is here too (Russo, NeurIPS 2019: Õ(√K)
+/// regret, the rate [V2]): at the published variance its noise (standard
+/// deviation √β_k from 23 at k = 1 to 42 at k = 20 000, against values at
+/// most H = 4 here) keeps it exploring far beyond 20 000 episodes (slope
+/// 0.93 measured), so it runs at noise scale 0.1 (slope 0.48 measured).
 #[test]
 fn optimistic_learners_are_sublinear_and_uniform_is_linear() {
     let m = Garnet {
@@ -260,6 +264,7 @@ fn optimistic_learners_are_sublinear_and_uniform_is_linear() {
             {"algorithm": "ucbvi-bernstein", "bonus_scale": 0.05},
             {"algorithm": "q-ucb-hoeffding", "bonus_scale": 0.05},
             {"algorithm": "psrl"},
+            {"algorithm": "rlsvi", "bonus_scale": 0.1},
             {"algorithm": "uniform"}]"#,
     ));
     for l in &r.learners {
@@ -851,35 +856,4 @@ fn rlsvi_first_updates_without_noise_are_the_hand_derived_ones() {
     l.begin_episode(&mut rng);
     assert!((l.value(1, 1) - 1.0 / 3.0).abs() < 1e-15);
     assert!((l.value(0, 0) - 8.0 / 9.0).abs() < 1e-15);
-}
-
-/// RLSVI learns: Russo (NeurIPS 2019) bounds its regret by Õ(√K) (the rate
-/// [V2]), so on a small random model its log-log regret slope over the last
-/// decade is well under 1, while the uniform learner's is 1. At the
-/// published variance the noise (standard deviation √β_k from 23 at k = 1 to 42
-/// at k = 20 000, against values at most H = 4 here) keeps it exploring far beyond 20 000 episodes, so the
-/// check runs at noise scale 0.1 (tuned on this model, like the optimistic
-/// learners' scales above).
-#[test]
-fn rlsvi_is_sublinear_where_uniform_is_linear() {
-    let m = Garnet {
-        states: 4,
-        actions: 2,
-        successors: 2,
-        horizon: 4,
-        time_dependent: false,
-        bernoulli: true,
-    }
-    .generate(3)
-    .unwrap();
-    let r = run(&experiment(
-        &m,
-        20000,
-        3,
-        r#"[{"algorithm": "rlsvi", "bonus_scale": 0.1}, {"algorithm": "uniform"}]"#,
-    ));
-    let rlsvi = r.learners[0].slope.expect("positive regret");
-    let uniform = r.learners[1].slope.expect("positive regret");
-    assert!((uniform - 1.0).abs() < 1e-9, "uniform slope {uniform}");
-    assert!(rlsvi < 0.8, "rlsvi slope {rlsvi}");
 }
