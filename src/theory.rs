@@ -30,6 +30,7 @@
 //! - Z. Zhang, X. Ji and S. S. Du, COLT 2021, arXiv:2009.13503.
 //! - C. Jin, Z. Allen-Zhu, S. Bubeck and M. I. Jordan, NeurIPS 2018, arXiv:1807.03765.
 //! - I. Osband, D. Russo and B. Van Roy, NeurIPS 2013, arXiv:1306.0940.
+//! - D. Russo, NeurIPS 2019, arXiv:1906.02870.
 //! - P. Auer, N. Cesa-Bianchi and P. Fischer, *Machine Learning* 47, 2002.
 //! - O. D. Domingues, P. Ménard, E. Kaufmann and M. Valko, ALT 2021, arXiv:2010.03531.
 
@@ -256,6 +257,36 @@ pub fn psrl(set: &Setting, ks: &[u64]) -> Bound {
     b.applies = false;
     b.note = "a Bayesian-regret bound: it bounds the regret averaged over the prior, not the regret on this fixed model".into();
     b
+}
+
+/// RLSVI, tabular: Russo (2019), the main theorem (numbered Theorem 1 as we
+/// recall it [R]): with β_k = ½·S·H³·log(2HSAk), for every tabular MDP the
+/// regret is Õ(H³·S^{3/2}·√(A·K)) [V2: the rate and β_k from the
+/// sciencestack.ai summary; the statement itself and its log factors not
+/// read]; with T = K·H this is H^{5/2}·S^{3/2}·√(A·T) (arithmetic). The
+/// setting is ours [R]: period-indexed (time-inhomogeneous) transitions and
+/// rewards in [0, 1] per step, K episodes, so by the one rule (module doc) it
+/// is drawn as published, no S → S·H. It is a worst-case (frequentist)
+/// bound: it holds on every fixed MDP, not averaged over a prior as PSRL's
+/// is; we recall it as bounding the regret in expectation over the
+/// algorithm's noise [R] (docs/papers/rlsvi.md), not with probability 1 − δ.
+/// No lower-order term, so no burn-in. It covers the published variance
+/// only: at a noise scale other than 1 the catalogue marks it as not
+/// applying.
+pub fn rlsvi(set: &Setting, ks: &[u64]) -> Bound {
+    let (s, a, h) = sah(set);
+    bound(
+        "Russo, NeurIPS 2019, arXiv:1906.02870, main theorem (as summarised; statement not read)",
+        "H³·S^{3/2}·√(A·K)",
+        "polylog(S·A·H·K) factors",
+        None,
+        curve(
+            set,
+            ks,
+            |k| h * h * h * s * s.sqrt() * (a * k).sqrt(),
+            |_| 0.0,
+        ),
+    )
 }
 
 /// UCB1: Auer, Cesa-Bianchi & Fischer (2002), in its gap-free form.

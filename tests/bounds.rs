@@ -109,6 +109,7 @@ fn a_scaled_bonus_marks_the_bound_as_not_applying() {
         AlgorithmKind::UcbviBernstein,
         AlgorithmKind::QUcbHoeffding,
         AlgorithmKind::QUcbBernstein,
+        AlgorithmKind::Rlsvi,
     ] {
         assert!(bound(kind, 1.0).applies, "{kind:?} at scale 1");
         let b = bound(kind, 0.05);
@@ -224,4 +225,27 @@ fn q_ucb_bernstein_bound_is_theorem_2() {
     );
     assert_eq!(b.values[0], 4.0, "capped at H·K for K = 1");
     assert!(b.source.contains("Theorem 2"), "{}", b.source);
+}
+
+/// RLSVI: Russo (NeurIPS 2019), Õ(H³·S^{3/2}·√(A·K)) (the rate from a
+/// secondary source [V2], docs/papers/rlsvi.md), for time-inhomogeneous
+/// transitions and per-step rewards in [0, 1] — our setting, so drawn as
+/// published, no S → S·H — a worst-case bound on every fixed model, with no
+/// lower-order term (no burn-in). Derived by hand for S = 3, A = 2, H = 4:
+/// 64·√27·√2·√K = 64·√54·√K ≈ 470.3·√K, capped at H·K: 4 at K = 1, 40 000
+/// at K = 10⁴ (470.3·100 > 40 000), 64 000·√54 at K = 10⁶.
+#[test]
+fn rlsvi_bound_is_russos_as_published() {
+    let b = bound(AlgorithmKind::Rlsvi, 1.0);
+    assert_eq!(b.values[0], 4.0, "capped at H·K for K = 1");
+    assert_eq!(b.values[1], 40_000.0, "capped at H·K for K = 10⁴");
+    let want = 64_000.0 * 54f64.sqrt();
+    assert!(
+        (b.values[2] - want).abs() < 1e-6,
+        "{} vs {want}",
+        b.values[2]
+    );
+    assert_eq!(b.burn_in, None);
+    assert!(b.applies, "a worst-case bound at the published variance");
+    assert!(b.source.contains("Russo"), "{}", b.source);
 }

@@ -12,8 +12,8 @@
 use serde::Serialize;
 
 use super::{
-    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcb, Setting, Ucb1, Ucbvi,
-    Uniform,
+    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcb, Rlsvi, Setting, Ucb1,
+    Ucbvi, Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -27,6 +27,7 @@ pub enum AlgorithmKind {
     QUcbHoeffding,
     QUcbBernstein,
     Psrl,
+    Rlsvi,
     Ucb1,
     EpsGreedy,
     Uniform,
@@ -215,6 +216,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bound: Some(theory::psrl),
     },
     AlgorithmInfo {
+        kind: AlgorithmKind::Rlsvi,
+        key: "rlsvi",
+        name: "RLSVI (randomised value functions)",
+        param: Some(&BONUS),
+        reference: "Osband, Van Roy & Wen, Generalization and Exploration via Randomized Value Functions, ICML 2016, arXiv:1402.0635; tabular form and noise variance of Russo, Worst-Case Regret Bounds for Exploration via Randomized Value Functions, NeurIPS 2019, arXiv:1906.02870",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::rlsvi),
+    },
+    AlgorithmInfo {
         kind: AlgorithmKind::Ucb1,
         key: "ucb1",
         name: "UCB1 (bandits only)",
@@ -367,6 +378,7 @@ impl Algorithm {
             AlgorithmKind::QUcbHoeffding => AnyLearner::QUcb(QUcb::new(set, x, false)),
             AlgorithmKind::QUcbBernstein => AnyLearner::QUcb(QUcb::new(set, x, true)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
+            AlgorithmKind::Rlsvi => AnyLearner::Rlsvi(Rlsvi::new(set, x)),
             AlgorithmKind::Ucb1 => AnyLearner::Ucb1(Ucb1::new(set.actions, x)),
             AlgorithmKind::EpsGreedy => AnyLearner::EpsGreedy(EpsGreedy::new(set, x)),
             AlgorithmKind::Uniform => AnyLearner::Uniform(Uniform::new(set.actions)),
@@ -382,6 +394,7 @@ pub enum AnyLearner {
     Ucbvi(Ucbvi),
     QUcb(QUcb),
     Psrl(Psrl),
+    Rlsvi(Rlsvi),
     Ucb1(Ucb1),
     EpsGreedy(EpsGreedy),
     Uniform(Uniform),
@@ -401,6 +414,7 @@ macro_rules! with_learner {
             $crate::learn::AnyLearner::Ucbvi($l) => $body,
             $crate::learn::AnyLearner::QUcb($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
+            $crate::learn::AnyLearner::Rlsvi($l) => $body,
             $crate::learn::AnyLearner::Ucb1($l) => $body,
             $crate::learn::AnyLearner::EpsGreedy($l) => $body,
             $crate::learn::AnyLearner::Uniform($l) => $body,

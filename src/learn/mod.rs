@@ -24,6 +24,7 @@ mod mvp;
 mod plan;
 mod psrl;
 mod qlearn;
+mod rlsvi;
 mod ucbvi;
 
 pub use bandit::Ucb1;
@@ -44,4 +45,5 @@ pub use mvp::{
 pub use plan::{Plan, StaleRows, argmax_random};
 pub use psrl::Psrl;
 pub use qlearn::{BERNSTEIN_C1, BERNSTEIN_C2, QUcb, learning_rate};
+pub use rlsvi::{Rlsvi, beta as rlsvi_beta};
 pub use ucbvi::Ucbvi;
