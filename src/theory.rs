@@ -67,6 +67,22 @@ pub struct Bound {
     pub bonus_below_h: Option<f64>,
 }
 
+/// The start of the note of a bound on the Bayesian regret ([`psrl`]).
+const BAYESIAN_NOTE: &str = "a Bayesian-regret bound";
+
+impl Bound {
+    /// Why the bound does not apply, in a legend's few words: "Bayesian
+    /// regret" for a bound on the regret averaged over a prior, otherwise
+    /// "bonus scaled" (the learner's constants are not the published ones).
+    pub fn why_not(&self) -> &'static str {
+        if self.note.starts_with(BAYESIAN_NOTE) {
+            "Bayesian regret"
+        } else {
+            "bonus scaled"
+        }
+    }
+}
+
 fn applies_by_default() -> bool {
     true
 }
@@ -255,7 +271,9 @@ pub fn psrl(set: &Setting, ks: &[u64]) -> Bound {
         curve(set, ks, |k| (s * s * a * h.powi(5) * k).sqrt(), |_| 0.0),
     );
     b.applies = false;
-    b.note = "a Bayesian-regret bound: it bounds the regret averaged over the prior, not the regret on this fixed model".into();
+    b.note = format!(
+        "{BAYESIAN_NOTE}: it bounds the regret averaged over the prior, not the regret on this fixed model"
+    );
     b
 }
 

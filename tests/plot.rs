@@ -117,6 +117,13 @@ fn options_change_the_figure_as_the_page_controls_do() {
             .any(|t| t.contains("bound, does not apply (bonus scaled)")),
         "scaled bonuses say their bound does not apply"
     );
+    // PSRL's bound is on the Bayesian regret (Osband, Russo & Van Roy 2013,
+    // Theorem 1), and the legend says that is why it does not apply.
+    assert!(
+        log.iter()
+            .any(|t| t.contains("psrl: bound, does not apply (Bayesian regret)")),
+        "{log:?}"
+    );
     let episode = draw("episode.svg", &["--view", "episode", "--no-caption"]);
     assert!(episode.contains(&"expected regret of episode k".to_string()));
     assert!(!episode.iter().any(|t| t.contains("Shaded")), "no caption");

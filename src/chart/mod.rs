@@ -454,12 +454,12 @@ fn curves(r: &Results, opts: &Options, episode: bool, bands: bool) -> Figure {
             continue;
         }
         if let (true, Some(b)) = (opts.bounds, &l.bound) {
-            // A bound that does not apply (scaled bonus) is drawn sparser and
-            // says so in the legend.
+            // A bound that does not apply (a scaled bonus, or a bound on the
+            // Bayesian regret) is drawn sparser and says why in the legend.
             let label = if b.applies {
                 format!("{}: published bound", l.label)
             } else {
-                format!("{}: bound, does not apply (bonus scaled)", l.label)
+                format!("{}: bound, does not apply ({})", l.label, b.why_not())
             };
             series.push(Series {
                 dash: Some(if b.applies { (7.0, 4.0) } else { (2.0, 7.0) }),
@@ -691,7 +691,7 @@ pub fn caption(out: &Output, opts: &Options) -> String {
         });
     }
     if opts.bounds && curves {
-        text.push_str(" Dashed: each learner’s published bound as an order (constants and log factors dropped); sparsely dashed where it does not apply because the learner’s bonus is scaled.");
+        text.push_str(" Dashed: each learner’s published bound as an order (constants and log factors dropped); sparsely dashed where it does not apply (the learner’s bonus is scaled, or the bound is on the Bayesian regret).");
     }
     if opts.lower && curves {
         text.push_str(" Dotted: the minimax lower-bound shape.");
