@@ -126,6 +126,26 @@ pub fn minimax(set: &Setting, k: f64) -> f64 {
     (s * a * h * h * h * k).sqrt()
 }
 
+/// A bound √(S·A·H³·K) + `lower`, with its burn-in: the K from which the √K
+/// term overtakes the constant one, lower²/(S·A·H³).
+fn minimax_plus(
+    set: &Setting,
+    ks: &[u64],
+    source: &str,
+    formula: &str,
+    logs: &str,
+    lower: f64,
+) -> Bound {
+    let (s, a, h) = sah(set);
+    bound(
+        source,
+        formula,
+        logs,
+        Some(lower * lower / (s * a * h * h * h)),
+        curve(set, ks, |k| minimax(set, k), |_| lower),
+    )
+}
+
 /// The lower-bound shape min(√(S·A·H³·K), H·K) of Domingues et al. (2021).
 pub fn lower_bound(set: &Setting, ks: &[u64]) -> Bound {
     bound(
@@ -169,13 +189,13 @@ fn mark_bonus_below_h(b: &mut Bound, set: &Setting, samples: MvpSamples) {
 /// S²·A·H²/ε): a factor H below, which the bound's note says.
 pub fn mvp_2021(set: &Setting, ks: &[u64]) -> Bound {
     let (s, a, h) = sah(set);
-    let lower = s * s * a * h * h * h;
-    let mut b = bound(
+    let mut b = minimax_plus(
+        set,
+        ks,
         "Zhang, Ji & Du, COLT 2021, arXiv:2009.13503 (abstract), values × H and S → S·H",
         "√(S·A·H³·K) + S²·A·H³",
         "polylog(S·A·H·K) factors",
-        Some(lower * lower / (s * a * h * h * h)),
-        curve(set, ks, |k| minimax(set, k), |_| lower),
+        s * s * a * h * h * h,
     );
     b.note = "Table 1 of arXiv:2307.13586 lists the lower-order term as S²·A·H² (burn-in S³·A·H), a factor H below the stationary bound read with values × H and S → S·H".into();
     mark_bonus_below_h(&mut b, set, MvpSamples::All);
@@ -209,13 +229,13 @@ pub fn ucbvi_hoeffding(set: &Setting, ks: &[u64]) -> Bound {
 /// S²·A·H³ (burn-in S³·A·H³): a factor H below this translation.
 pub fn ucbvi_bernstein(set: &Setting, ks: &[u64]) -> Bound {
     let (s, a, h) = sah(set);
-    let lower = s * s * a * h.powi(4);
-    let mut b = bound(
+    let mut b = minimax_plus(
+        set,
+        ks,
         "Azar, Osband & Munos, ICML 2017, Theorem 2, with S → S·H (from memory)",
         "√(S·A·H³·K) + S²·A·H⁴",
         "L = ln(S·A·H·K/δ)",
-        Some(lower * lower / (s * a * h * h * h)),
-        curve(set, ks, |k| minimax(set, k), |_| lower),
+        s * s * a * h.powi(4),
     );
     b.note = "Table 1 of arXiv:2307.13586 lists the lower-order term as S²·A·H³ (burn-in S³·A·H³), a factor H below the stationary theorem read with S → S·H".into();
     b

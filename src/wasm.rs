@@ -495,13 +495,7 @@ pub fn read_document(text: &str) -> JsValue {
         Some(RESULTS_FORMAT) | Some(SWEEP_FORMAT) => match crate::experiment::parse_results(text) {
             Ok(out) => {
                 set(&obj, "kind", "results");
-                set(&obj, "json", out.to_json());
-                set(&obj, "csv", out.to_csv());
-                set(&obj, "cellsCsv", out.cells_csv());
-                set(&obj, "summaryCsv", out.summary_csv());
-                set(&obj, "seedsCsv", out.seeds_csv());
-                set(&obj, "chartText", crate::chart::chart_text(&out));
-                set(&obj, "readings", to_js(&out.reading_texts()));
+                set_results(&obj, &out);
             }
             Err(p) => return problems_value(&p),
         },
@@ -509,6 +503,18 @@ pub fn read_document(text: &str) -> JsValue {
     }
     set(&obj, "ok", true);
     obj.into()
+}
+
+/// What a front end shows of results, on `obj`: the JSON, every CSV table,
+/// the chart data and the reading texts (a results file read, or a merge).
+fn set_results(obj: &Object, out: &crate::experiment::Output) {
+    set(obj, "json", out.to_json());
+    set(obj, "csv", out.to_csv());
+    set(obj, "cellsCsv", out.cells_csv());
+    set(obj, "summaryCsv", out.summary_csv());
+    set(obj, "seedsCsv", out.seeds_csv());
+    set(obj, "chartText", crate::chart::chart_text(out));
+    set(obj, "readings", to_js(&out.reading_texts()));
 }
 
 /// The model with its graph layout replaced by `positions` (x, y pairs,
@@ -559,13 +565,7 @@ pub fn merge_shards(shards: Vec<String>) -> JsValue {
     match crate::experiment::merge(&files, &name) {
         Ok(out) => {
             let obj = Object::new();
-            set(&obj, "json", out.to_json());
-            set(&obj, "csv", out.to_csv());
-            set(&obj, "cellsCsv", out.cells_csv());
-            set(&obj, "summaryCsv", out.summary_csv());
-            set(&obj, "seedsCsv", out.seeds_csv());
-            set(&obj, "chartText", crate::chart::chart_text(&out));
-            set(&obj, "readings", to_js(&out.reading_texts()));
+            set_results(&obj, &out);
             obj.into()
         }
         Err(p) => problems_value(&p),

@@ -196,6 +196,11 @@ fn fit_at(x: &[f64], y: &[f64], x0: f64) -> (f64, f64) {
 /// define burn-in through their bounds, not through data.
 pub fn two_regime_fit(ks: &[u64], regret: &[f64]) -> Option<BurnIn> {
     let (x, y) = grid_points(ks, regret);
+    fit_grid(&x, &y)
+}
+
+/// [`two_regime_fit`] of a curve already read on the grid.
+fn fit_grid(x: &[f64], y: &[f64]) -> Option<BurnIn> {
     if x.len() < 2 {
         return None;
     }
@@ -205,7 +210,7 @@ pub fn two_regime_fit(ks: &[u64], regret: &[f64]) -> Option<BurnIn> {
     let at = |i: usize| (lo + i as f64 * step).min(hi);
     let mut best = (f64::INFINITY, 0usize);
     for i in 0..=n {
-        let (sse, _) = fit_at(&x, &y, at(i));
+        let (sse, _) = fit_at(x, y, at(i));
         if sse < best.0 {
             best = (sse, i);
         }
@@ -213,7 +218,7 @@ pub fn two_regime_fit(ks: &[u64], regret: &[f64]) -> Option<BurnIn> {
     // Golden-section search on the neighbours' interval.
     let (mut a, mut b) = (at(best.1.saturating_sub(1)), at((best.1 + 1).min(n)));
     let g = (libm::sqrt(5.0) - 1.0) / 2.0;
-    let sse = |x0: f64| fit_at(&x, &y, x0).0;
+    let sse = |x0: f64| fit_at(x, y, x0).0;
     let (mut c, mut d) = (b - g * (b - a), a + g * (b - a));
     let (mut fc, mut fd) = (sse(c), sse(d));
     for _ in 0..40 {
@@ -233,7 +238,7 @@ pub fn two_regime_fit(ks: &[u64], regret: &[f64]) -> Option<BurnIn> {
     } else {
         at(best.1)
     };
-    let (_, beta) = fit_at(&x, &y, x0);
+    let (_, beta) = fit_at(x, y, x0);
     let span = SETTLED_SPAN_DECADES * std::f64::consts::LN_10;
     Some(BurnIn {
         ln_break: x0,
@@ -247,17 +252,20 @@ pub fn two_regime_fit(ks: &[u64], regret: &[f64]) -> Option<BurnIn> {
 /// curve with no regret at all (optimal from the first episode), or whose
 /// only regret is paid in the first episode.
 pub fn burn_in(ks: &[u64], regret: &[f64]) -> Option<u64> {
-    match two_regime_fit(ks, regret) {
-        Some(fit) => fit.episodes(),
-        None => settled_without_fit(ks, regret).then_some(1),
-    }
+    let (x, y) = grid_points(ks, regret);
+    burn_in_of(ks, regret, &x, &y)
 }
 
-/// A curve too short to fit: settled when it never grows after its first
+/// [`burn_in`] of a curve whose grid points (x, y) are already read. A
+/// curve too short to fit has settled when it never grows after its first
 /// positive value (no regret at all, or regret only before the last point).
-fn settled_without_fit(ks: &[u64], regret: &[f64]) -> bool {
-    let (_, y) = grid_points(ks, regret);
-    y.is_empty() || ks.len() > 1 && regret.windows(2).all(|w| w[1] <= w[0])
+fn burn_in_of(ks: &[u64], regret: &[f64], x: &[f64], y: &[f64]) -> Option<u64> {
+    match fit_grid(x, y) {
+        Some(fit) => fit.episodes(),
+        None => {
+            (y.is_empty() || ks.len() > 1 && regret.windows(2).all(|w| w[1] <= w[0])).then_some(1)
+        }
+    }
 }
 
 /// The least local slope, over the last quarter decade of a curve, that
@@ -270,6 +278,11 @@ pub const LINEAR_SLOPE: f64 = 0.9;
 /// learning pays the same regret every episode, so this slope tends to 1.
 pub fn linear_at_end(ks: &[u64], regret: &[f64]) -> bool {
     let (x, y) = grid_points(ks, regret);
+    linear_of(&x, &y)
+}
+
+/// [`linear_at_end`] of a curve already read on the grid.
+fn linear_of(x: &[f64], y: &[f64]) -> bool {
     let Some(&end) = x.last() else {
         return false;
     };
@@ -331,8 +344,14 @@ impl SeedsReading {
 /// settle). Draws come from ChaCha8 seeded with `seed`, so the intervals are
 /// the same everywhere.
 pub fn read_seeds(ks: &[u64], runs: &[&[f64]], mean: &[f64], seed: u64) -> SeedsReading {
-    let by_seed: Vec<Option<u64>> = runs.iter().map(|r| burn_in(ks, r)).collect();
-    let linear: Vec<bool> = runs.iter().map(|r| linear_at_end(ks, r)).collect();
+    // Each seed read on the grid once, for its burn-in and its end.
+    let (by_seed, linear): (Vec<Option<u64>>, Vec<bool>) = runs
+        .iter()
+        .map(|r| {
+            let (x, y) = grid_points(ks, r);
+            (burn_in_of(ks, r, &x, &y), linear_of(&x, &y))
+        })
+        .unzip();
     let point = if linear.contains(&true) {
         None
     } else {
