@@ -2,33 +2,20 @@
 
 mod common;
 
+use common::learning::{
+    Moment, Step, experiment, optimism_failures, play, run, setting_of, small_models,
+};
+
 use std::sync::Arc;
 
-use burnin::experiment::{Point, Results, parse_experiment, run_all, summarise};
+use burnin::experiment::{Point, parse_experiment, run_all, summarise};
 use burnin::generate::{Bandit, Garnet};
 use burnin::learn::{
     BERNSTEIN_C2, LearnRng, Learner, Mvp, MvpSamples, PolicyView, QUcb, Rlsvi, Setting,
 };
 use burnin::solve::{Policy, evaluate, solve};
-use burnin::{Mdp, write_model};
 use ndarray::Array3;
 use rand::SeedableRng;
-
-/// An experiment file around `model` with the given learners (JSON text).
-fn experiment(model: &Mdp, episodes: u64, seeds: u64, learners: &str) -> String {
-    format!(
-        r#"{{"format": "burnin-experiment", "version": 1, "model": {}, "episodes": {episodes},
-            "seeds": {seeds}, "seed": 7, "checkpoints": 40, "learners": {learners}}}"#,
-        write_model(model)
-    )
-}
-
-fn run(text: &str) -> Results {
-    let exp = parse_experiment(text, None).expect("a valid experiment");
-    let ctx = Point::new(exp);
-    let records = run_all(&ctx);
-    summarise(&ctx, records)
-}
 
 /// Auer, Cesa-Bianchi & Fischer (2002), Theorem 1: for UCB1 on K-armed
 /// bandits with rewards in [0, 1], the expected regret after n plays is at
@@ -369,106 +356,6 @@ fn same_file_and_seed_give_identical_results() {
     records.reverse();
     assert_eq!(summarise(&ctx, records), a);
     let _ = Arc::clone(&ctx);
-}
-
-/// When [`play`] calls its check.
-#[derive(Debug, Clone, Copy, PartialEq)]
-enum Moment {
-    /// After `begin_episode`, before the episode is played.
-    Start,
-    /// After `observe(h, s, a, r, next)`.
-    Saw(Step),
-}
-
-/// One observed step: h, s, a, r, next.
-type Step = (usize, usize, usize, f64, usize);
-
-/// Plays `learner` on `m` for `episodes` episodes (the runner's draws: the
-/// start state, then per step the action, the reward and the next state,
-/// from one seeded generator) and calls `check(learner, moment)` at the
-/// start of each episode and after each step.
-fn play<L: Learner>(
-    m: &Mdp,
-    learner: &mut L,
-    episodes: usize,
-    seed: u64,
-    mut check: impl FnMut(&L, Moment),
-) {
-    use burnin::sample::{self, Sampler};
-    let sampler = Sampler::new(m);
-    let mut rng = LearnRng::seed_from_u64(seed);
-    for _ in 0..episodes {
-        learner.begin_episode(&mut rng);
-        check(learner, Moment::Start);
-        let mut s = sampler.start(&mut rng);
-        for h in 0..m.horizon() {
-            let a = learner.act(h, s, &mut rng);
-            let row = s * m.n_actions() + a;
-            let r = sample::reward(&mut rng, m.step(h).reward(row));
-            let next = sampler.next(&mut rng, h, row);
-            learner.observe(h, s, a, r, next, &mut rng);
-            check(learner, Moment::Saw((h, s, a, r, next)));
-            s = next;
-        }
-        learner.end_episode(&mut rng);
-    }
-}
-
-/// The small random models of the optimism checks (Garnet, time-dependent,
-/// Bernoulli rewards).
-fn small_models() -> Vec<Mdp> {
-    [(3, 2, 3, 21), (4, 2, 2, 22), (2, 3, 4, 23)]
-        .iter()
-        .map(|&(states, actions, horizon, seed)| {
-            Garnet {
-                states,
-                actions,
-                successors: 2,
-                horizon,
-                time_dependent: true,
-                bernoulli: true,
-            }
-            .generate(seed)
-            .unwrap()
-        })
-        .collect()
-}
-
-fn setting_of(m: &Mdp, episodes: u64, delta: f64) -> Setting {
-    Setting {
-        states: m.n_states(),
-        actions: m.n_actions(),
-        horizon: m.horizon(),
-        episodes,
-        delta,
-    }
-}
-
-/// The share of (run, episode) checks at which a learner's value at step 1,
-/// `value(learner, s)`, is below the exact V*₁(s) of the solver at some
-/// state s, over [`small_models`] × 3 seeds of `episodes` episodes.
-fn optimism_failures<L: Learner>(
-    episodes: u64,
-    delta: f64,
-    build: impl Fn(Setting) -> L,
-    value: impl Fn(&L, usize) -> f64,
-) -> f64 {
-    let (mut checks, mut failures) = (0u64, 0u64);
-    for m in small_models() {
-        let v_star = solve(&m).v;
-        for seed in 0..3 {
-            let mut learner = build(setting_of(&m, episodes, delta));
-            play(&m, &mut learner, episodes as usize, seed, |l, at| {
-                if at != Moment::Start {
-                    return;
-                }
-                checks += 1;
-                let below = (0..m.n_states()).any(|s| value(l, s) < v_star[[0, s]] - 1e-9);
-                failures += below as u64;
-            });
-        }
-    }
-    failures as f64 / checks as f64
 }
 
 /// Optimism, Q^k_h ≥ Q*_h for every k, h, s, a with probability 1 − δ,

@@ -1,6 +1,8 @@
 //! Helpers shared by the integration tests.
 #![allow(dead_code)]
 
+pub mod learning;
+
 use burnin::{Mdp, MdpParts, Reward, StepParts};
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
