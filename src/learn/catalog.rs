@@ -449,6 +449,9 @@ impl Learner for AnyLearner {
     fn fault(&mut self) -> Option<String> {
         with_learner!(self, l => l.fault())
     }
+    fn certificate(&self, s: usize) -> Option<f64> {
+        with_learner!(self, l => l.certificate(s))
+    }
 }
 
 #[cfg(test)]

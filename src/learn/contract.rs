@@ -71,6 +71,15 @@ pub trait Learner: Send {
     fn fault(&mut self) -> Option<String> {
         None
     }
+    /// A certificate for the coming episode (valid after `begin_episode`):
+    /// an upper bound, claimed with probability 1 − δ, on the suboptimality
+    /// V*₁(s) − V^π₁(s) of [`Learner::policy`] from start state `s`. Only
+    /// learners whose analysis proves one give it (ORLC's optimality
+    /// certificate, Dann, Li, Wei & Brunskill 2019); the runner weighs it by
+    /// the true start distribution, as it does the regret.
+    fn certificate(&self, _s: usize) -> Option<f64> {
+        None
+    }
 }
 
 impl<L: Learner + ?Sized> Learner for Box<L> {
@@ -97,5 +106,8 @@ impl<L: Learner + ?Sized> Learner for Box<L> {
     }
     fn fault(&mut self) -> Option<String> {
         (**self).fault()
+    }
+    fn certificate(&self, s: usize) -> Option<f64> {
+        (**self).certificate(s)
     }
 }
