@@ -388,7 +388,7 @@ fn run_prints_a_table_and_writes_csv() {
     let mut lines = text.lines();
     assert_eq!(
         lines.next().unwrap(),
-        "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,cumulative_return_mean,bound,bound_applies,lower_bound"
+        "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,cumulative_return_mean,bound,bound_applies,lower_bound,certificate_mean"
     );
     let first = lines.next().unwrap();
     assert!(first.starts_with("\"coin, flips\",uniform,1,"), "{first}");

@@ -180,7 +180,14 @@ pub fn views(out: &Output) -> Vec<(View, String)> {
         Output::Single(r) => {
             let mut v = vec![
                 (View::Cumulative, "cumulative regret".to_string()),
-                (View::Episode, "per-episode regret".to_string()),
+                (
+                    View::Episode,
+                    if r.learners.iter().any(|l| !l.certificate_mean.is_empty()) {
+                        "per-episode regret and certificates".to_string()
+                    } else {
+                        "per-episode regret".to_string()
+                    },
+                ),
             ];
             if !r.comparisons.is_empty() {
                 v.push((View::Difference, "paired difference A − B".to_string()));
@@ -451,6 +458,20 @@ fn curves(r: &Results, opts: &Options, episode: bool, bands: bool) -> Figure {
             ..Series::curve(l.label.clone(), colour, x.clone(), y.clone())
         });
         if episode {
+            // A certificate (ORLC's) beside the exact per-episode regret it
+            // claims to bound.
+            if !l.certificate_mean.is_empty() {
+                series.push(Series {
+                    dash: Some((5.0, 3.0)),
+                    width: 1.5,
+                    ..Series::curve(
+                        format!("{}: certificate", l.label),
+                        colour,
+                        x.clone(),
+                        l.certificate_mean.clone(),
+                    )
+                });
+            }
             continue;
         }
         if let (true, Some(b)) = (opts.bounds, &l.bound) {

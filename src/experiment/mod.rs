@@ -224,6 +224,11 @@ pub struct RunRecord {
     pub episode_regret: Vec<f64>,
     /// Cumulative realised return at each checkpoint.
     pub returns: Vec<f64>,
+    /// The learner's certificate for the checkpoint's own episode, weighed
+    /// by the start distribution ([`Learner::certificate`]); empty for
+    /// learners that give none.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub certificate: Vec<f64>,
     pub model_updates: u64,
     /// For each ε target: the last episode whose expected regret exceeded ε
     /// (0 if none did).
@@ -332,6 +337,7 @@ impl Run {
             regret: Vec::with_capacity(ctx.checkpoints.len()),
             episode_regret: Vec::with_capacity(ctx.checkpoints.len()),
             returns: Vec::with_capacity(ctx.checkpoints.len()),
+            certificate: Vec::new(),
             model_updates: 0,
             last_above: vec![0; ctx.exp.eps_targets.len()],
             first_within: vec![0; ctx.exp.eps_targets.len()],
@@ -432,6 +438,11 @@ impl RunState {
                 }
             };
             self.policy_episodes += 1;
+            if ctx.checkpoints.get(self.next_cp) == Some(&(self.done + 1))
+                && let Some(c) = certificate(learner, m.start())
+            {
+                self.record.certificate.push(c);
+            }
             let cells = (h_n * s_n * a_n) as u64;
             let mut s = match &self.env {
                 Some((e, _)) => {
@@ -490,6 +501,19 @@ impl RunState {
         }
         Ok(self.done == k_total)
     }
+}
+
+/// Σ_s μ(s)·ε(s): a learner's certificate for the coming episode weighed by
+/// the start distribution μ, as the episode's regret is; None when the
+/// learner gives none.
+fn certificate<L: Learner>(learner: &L, start: &[f64]) -> Option<f64> {
+    let mut total = 0.0;
+    for (s, &p) in start.iter().enumerate() {
+        if p > 0.0 {
+            total += p * learner.certificate(s)?;
+        }
+    }
+    Some(total)
 }
 
 impl RunState {

@@ -261,6 +261,12 @@ pub struct LearnerResult {
     /// December 2026, which still read).
     #[serde(alias = "return_mean")]
     pub cumulative_return_mean: Vec<f64>,
+    /// Mean over seeds of the certificate the learner gave for the
+    /// checkpoint's own episode (an upper bound on that episode's regret,
+    /// claimed with probability 1 − δ; ORLC's, Dann et al. 2019); empty for
+    /// learners that give none.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub certificate_mean: Vec<f64>,
     pub final_regret: Vec<f64>,
     /// Each seed's cumulative regret at every checkpoint, `[seed][checkpoint]`
     /// (empty when seeds × checkpoints exceeds [`MAX_SEED_CURVE_VALUES`], and
@@ -624,6 +630,13 @@ pub fn summarise(ctx: &Point, mut records: Vec<RunRecord>) -> Results {
                 regret_hi: hi,
                 episode_regret_mean: ep,
                 cumulative_return_mean: ret,
+                certificate_mean: if runs.iter().all(|r| r.certificate.len() == n) {
+                    (0..n)
+                        .map(|c| mean(&column(&runs, c, |r| &r.certificate)))
+                        .collect()
+                } else {
+                    Vec::new()
+                },
                 final_regret: runs.iter().map(|r| *r.regret.last().unwrap()).collect(),
                 regret_by_seed: if runs.len() * ks.len() <= MAX_SEED_CURVE_VALUES {
                     runs.iter().map(|r| r.regret.clone()).collect()
@@ -800,7 +813,7 @@ impl Results {
     /// One row per (learner, checkpoint).
     pub fn to_csv(&self) -> String {
         let mut o = String::from(
-            "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,cumulative_return_mean,bound,bound_applies,lower_bound\n",
+            "learner,algorithm,episode,regret_mean,regret_lo,regret_hi,episode_regret_mean,cumulative_return_mean,bound,bound_applies,lower_bound,certificate_mean\n",
         );
         let one_seed = self.seeds < 2;
         let iv = |x: f64| {
@@ -821,8 +834,13 @@ impl Results {
                     .as_ref()
                     .map(|b| b.values[c].to_string())
                     .unwrap_or_default();
+                let certificate = l
+                    .certificate_mean
+                    .get(c)
+                    .map(f64::to_string)
+                    .unwrap_or_default();
                 o.push_str(&format!(
-                    "{},{},{k},{},{},{},{},{},{bound},{applies},{}\n",
+                    "{},{},{k},{},{},{},{},{},{bound},{applies},{},{certificate}\n",
                     csv_field(&l.label),
                     l.algorithm,
                     l.regret_mean[c],
@@ -1096,6 +1114,9 @@ fn check_results(r: &Results, at: &str, problems: &mut Problems) {
             ("cumulative_return_mean", &l.cumulative_return_mean),
         ] {
             len(&lp(f), v.len(), c);
+        }
+        if !l.certificate_mean.is_empty() {
+            len(&lp("certificate_mean"), l.certificate_mean.len(), c);
         }
         len(&lp("final_regret"), l.final_regret.len(), n);
         len(&lp("model_updates"), l.model_updates.len(), n);

@@ -410,6 +410,12 @@ fn check_record(
         ("visits", r.visits.len(), h * sn),
         ("regret_cells", r.regret_cells.len(), cells),
     ];
+    if !r.certificate.is_empty() && r.certificate.len() != c {
+        return Err(format!(
+            "certificate has {} values; the experiment gives it {c} (or none)",
+            r.certificate.len()
+        ));
+    }
     for (field, len, want) in shapes {
         if len != want {
             return Err(format!(
