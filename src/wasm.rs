@@ -515,6 +515,7 @@ fn set_results(obj: &Object, out: &crate::experiment::Output) {
     set(obj, "seedsCsv", out.seeds_csv());
     set(obj, "chartText", crate::chart::chart_text(out));
     set(obj, "readings", to_js(&out.reading_texts()));
+    set(obj, "scaling", to_js(&out.scaling_texts()));
 }
 
 /// The model with its graph layout replaced by `positions` (x, y pairs,

@@ -37,7 +37,7 @@ const $ = (id) => document.getElementById(id);
  * made them (or null).
  */
 export const resultsOf = (doc, experiment = null) => ({
-  text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, chartText: doc.chartText, readings: doc.readings, experiment,
+  text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, chartText: doc.chartText, readings: doc.readings, scaling: doc.scaling, experiment,
 });
 
 /** Resolves in a later task (after the browser has had its turn). */
@@ -719,6 +719,13 @@ export class ExperimentView {
           if (r) td.append(el('div', `slope ${r.slope} · burn-in ${r.burn_in}`, { class: 'reading' }));
           tr.append(td);
         });
+        body.append(tr);
+      }
+      // How burn-in and regret at K grow with the size the sweep changes
+      // (the core's scaling readings, beside the published orders).
+      for (const t of this.results.scaling ?? []) {
+        const tr = el('tr', null, { class: 'scaling-row' });
+        tr.append(el('th', `${t.label}: scaling in ${t.variable}`), el('td', `${t.burn_in} · ${t.regret}`, { colspan: String(d.values.length) }));
         body.append(tr);
       }
     } else {

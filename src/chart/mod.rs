@@ -40,16 +40,25 @@ pub enum View {
     /// points that had not settled by K are left out.
     #[serde(rename = "sweep-burn-in")]
     SweepBurnIn,
+    /// Burn-in against the size the sweep changes, on log–log axes, with
+    /// each learner's fitted power law and its published order.
+    #[serde(rename = "sweep-scaling")]
+    SweepScaling,
+    /// The same for regret at K.
+    #[serde(rename = "sweep-regret-scaling")]
+    SweepRegretScaling,
 }
 
 impl View {
-    pub const ALL: [View; 6] = [
+    pub const ALL: [View; 8] = [
         View::Cumulative,
         View::Episode,
         View::Difference,
         View::Sweep,
         View::SweepSlope,
         View::SweepBurnIn,
+        View::SweepScaling,
+        View::SweepRegretScaling,
     ];
 
     pub fn key(self) -> &'static str {
@@ -60,6 +69,8 @@ impl View {
             View::Sweep => "sweep",
             View::SweepSlope => "sweep-slope",
             View::SweepBurnIn => "sweep-burn-in",
+            View::SweepScaling => "sweep-scaling",
+            View::SweepRegretScaling => "sweep-regret-scaling",
         }
     }
 
@@ -169,14 +180,24 @@ pub struct Figure {
 /// them (the first is the default).
 pub fn views(out: &Output) -> Vec<(View, String)> {
     match out {
-        Output::Sweep(s) => vec![
-            (View::Sweep, format!("regret at K against {}", s.parameter)),
-            (View::SweepSlope, format!("slope against {}", s.parameter)),
-            (
-                View::SweepBurnIn,
-                format!("burn-in against {}", s.parameter),
-            ),
-        ],
+        Output::Sweep(s) => {
+            let mut v = vec![
+                (View::Sweep, format!("regret at K against {}", s.parameter)),
+                (View::SweepSlope, format!("slope against {}", s.parameter)),
+                (
+                    View::SweepBurnIn,
+                    format!("burn-in against {}", s.parameter),
+                ),
+            ];
+            if let Some(x) = &s.scaling_in {
+                v.push((View::SweepScaling, format!("burn-in scaling in {x}")));
+                v.push((
+                    View::SweepRegretScaling,
+                    format!("regret-at-K scaling in {x}"),
+                ));
+            }
+            v
+        }
         Output::Single(r) => {
             let mut v = vec![
                 (View::Cumulative, "cumulative regret".to_string()),
@@ -202,7 +223,13 @@ pub fn views(out: &Output) -> Vec<(View, String)> {
 /// be drawn is refused before hours of running rather than after.
 pub fn check_planned(opts: &Options, sweep: bool, labels: &[&str]) -> Result<(), String> {
     let have: Vec<View> = if sweep {
-        vec![View::Sweep, View::SweepSlope, View::SweepBurnIn]
+        vec![
+            View::Sweep,
+            View::SweepSlope,
+            View::SweepBurnIn,
+            View::SweepScaling,
+            View::SweepRegretScaling,
+        ]
     } else if labels.len() >= 2 {
         vec![View::Cumulative, View::Episode, View::Difference]
     } else {
@@ -256,6 +283,9 @@ pub fn figure(out: &Output, opts: &Options) -> Result<Figure, String> {
     let mut fig = match (out, view) {
         (Output::Sweep(s), View::SweepSlope | View::SweepBurnIn) => {
             sweep_readings(s, view == View::SweepBurnIn, opts, bands)
+        }
+        (Output::Sweep(s), View::SweepScaling | View::SweepRegretScaling) => {
+            scaling(s, view == View::SweepScaling)
         }
         (Output::Sweep(s), _) => {
             let series = s
@@ -358,6 +388,92 @@ fn sweep_readings(
         y_label: axis.into(),
         log: opts.log,
         bars: true,
+        series,
+        caption: String::new(),
+    }
+}
+
+/// Burn-in (or regret at K) against the size a sweep changes, log–log:
+/// the measured points, the fitted power law over them, and the published
+/// order as a line of its exponent through the first measured point.
+fn scaling(s: &crate::experiment::SweepResults, burn_in: bool) -> Figure {
+    use crate::experiment::scaling::{exponent, exponent_text};
+    let x_name = s.scaling_in.clone().unwrap_or_default();
+    let mut series = Vec::new();
+    for (li, l) in s.learners.iter().enumerate() {
+        let colour = series_colour(li);
+        let (mut x, mut y) = (Vec::new(), Vec::new());
+        for (pi, &xv) in s.scaling_x.iter().enumerate() {
+            let v = if burn_in {
+                l.burn_in.get(pi).copied().flatten().map(|b| b as f64)
+            } else {
+                l.regret_mean.get(pi).copied()
+            };
+            if let Some(v) = v.filter(|v| *v > 0.0 && v.is_finite()) {
+                x.push(xv);
+                y.push(v);
+            }
+        }
+        if x.is_empty() {
+            continue;
+        }
+        let (x0, x1) = (x[0], *x.last().expect("a point"));
+        let fit = exponent(&x, &y);
+        series.push(Series::curve(l.label.clone(), colour, x.clone(), y.clone()));
+        // The least-squares line itself, through the mean of the logs.
+        if let Some(b) = fit {
+            let n = x.len() as f64;
+            let mx = x.iter().map(|v| libm::log(*v)).sum::<f64>() / n;
+            let my = y.iter().map(|v| libm::log(*v)).sum::<f64>() / n;
+            let at = |xv: f64| libm::exp(my + b * (libm::log(xv) - mx));
+            series.push(Series {
+                width: 1.0,
+                ..Series::curve(
+                    format!("{}: fit {x_name}^{}", l.label, exponent_text(b)),
+                    colour,
+                    vec![x0, x1],
+                    vec![at(x0), at(x1)],
+                )
+            });
+        }
+        let published = l.scaling.as_ref().and_then(|sc| {
+            if burn_in {
+                sc.published_burn_in_exponent
+            } else {
+                sc.published_regret_exponent
+            }
+        });
+        if let Some(b) = published {
+            let applies = l.scaling.as_ref().is_some_and(|sc| sc.published_applies);
+            series.push(Series {
+                dash: Some(if applies { (7.0, 4.0) } else { (2.0, 7.0) }),
+                width: 1.2,
+                ..Series::curve(
+                    format!(
+                        "{}: published {x_name}^{}{}",
+                        l.label,
+                        exponent_text(b),
+                        if applies { "" } else { " (does not apply)" }
+                    ),
+                    colour,
+                    vec![x0, x1],
+                    vec![y[0], y[0] * libm::pow(x1 / x0, b)],
+                )
+            });
+        }
+    }
+    let what = if burn_in { "Burn-in" } else { "Regret at K" };
+    Figure {
+        title: format!("{what} against {x_name}, log–log, with fitted and published orders"),
+        x_label: x_name.clone(),
+        x_name,
+        y_label: if burn_in {
+            "burn-in (episodes)".into()
+        } else {
+            "regret at K".into()
+        },
+        log: true,
+        bars: false,
         series,
         caption: String::new(),
     }
@@ -701,10 +817,22 @@ pub fn caption(out: &Output, opts: &Options) -> String {
     let name = if name.is_empty() { "Experiment" } else { name };
     let curves = !matches!(
         opts.view,
-        Some(View::Episode | View::Difference | View::Sweep | View::SweepSlope | View::SweepBurnIn)
+        Some(
+            View::Episode
+                | View::Difference
+                | View::Sweep
+                | View::SweepSlope
+                | View::SweepBurnIn
+                | View::SweepScaling
+                | View::SweepRegretScaling
+        )
     ) && matches!(out, Output::Single(_));
     let mut text = format!("{name}.");
-    if opts.bands {
+    let scaling = matches!(
+        opts.view,
+        Some(View::SweepScaling | View::SweepRegretScaling)
+    );
+    if opts.bands && !scaling {
         text.push_str(if one_seed(out) {
             " One seed per learner: no interval can be shown."
         } else {
@@ -719,6 +847,7 @@ pub fn caption(out: &Output, opts: &Options) -> String {
     }
     match opts.view {
         Some(View::SweepBurnIn) => text.push_str(" Bars: 95% bootstrap intervals over seeds. A point is left out where the learner had not settled by K."),
+        Some(View::SweepScaling | View::SweepRegretScaling) => text.push_str(" Log–log axes. Solid: the measured values (a point is left out where the learner had not settled by K); thin: the least-squares power law; dashed: the published order, a line of its exponent through the first measured point (its constant is not published). Toy instances: the fit is evidence about these instances, not a proof of an order."),
         Some(View::SweepSlope) => text.push_str(" Bars: 95% bootstrap intervals over seeds. Slope: least squares of ln regret on ln k over the last decade (1 linear, ½ the √K regime)."),
         _ => {}
     }

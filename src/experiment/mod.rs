@@ -16,6 +16,7 @@ mod estimate;
 mod readings;
 mod results;
 mod runner;
+pub mod scaling;
 mod shard;
 mod spec;
 
@@ -626,7 +627,41 @@ pub struct ReadingTexts {
     pub settled_within: Vec<String>,
 }
 
+/// A sweep's scaling reading of one learner in words
+/// ([`scaling::Scaling::burn_in_text`], [`scaling::Scaling::regret_text`]).
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct ScalingTexts {
+    pub label: String,
+    /// What the exponents are in ("S", "A", "H", "K" or the parameter).
+    pub variable: String,
+    pub burn_in: String,
+    pub regret: String,
+}
+
 impl Output {
+    /// Each learner's scaling reading in words (empty unless a sweep with
+    /// scaling readings).
+    pub fn scaling_texts(&self) -> Vec<ScalingTexts> {
+        let Output::Sweep(s) = self else {
+            return Vec::new();
+        };
+        let Some(x) = &s.scaling_in else {
+            return Vec::new();
+        };
+        s.learners
+            .iter()
+            .filter_map(|l| {
+                let sc = l.scaling.as_ref()?;
+                Some(ScalingTexts {
+                    label: l.label.clone(),
+                    variable: x.clone(),
+                    burn_in: sc.burn_in_text(x),
+                    regret: sc.regret_text(x),
+                })
+            })
+            .collect()
+    }
+
     /// The reading texts of every learner, per point (one point when the
     /// experiment has no sweep).
     pub fn reading_texts(&self) -> Vec<Vec<ReadingTexts>> {

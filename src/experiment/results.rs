@@ -872,6 +872,11 @@ pub struct SweepLearner {
     pub regret_hi: Vec<f64>,
     pub slope: Vec<Option<f64>>,
     pub burn_in: Vec<Option<u64>>,
+    /// How burn-in and regret at K grow with the sweep's size
+    /// ([`super::scaling`]); absent when the sweep changes no size that can
+    /// be read on log axes.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub scaling: Option<super::scaling::Scaling>,
 }
 
 /// Results of a sweep: regret at K against the swept parameter, and the
@@ -887,6 +892,12 @@ pub struct SweepResults {
     pub parameter: String,
     pub values: Vec<f64>,
     pub learners: Vec<SweepLearner>,
+    /// What the learners' scaling exponents are in ("S", "A", "H", "K" or
+    /// the swept parameter) and its value at each point.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub scaling_in: Option<String>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub scaling_x: Vec<f64>,
     pub points: Vec<Results>,
     /// Guest learners that failed, left out of `learners`.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
@@ -896,6 +907,7 @@ pub struct SweepResults {
 impl SweepResults {
     /// Collects the results of every point of a sweep over `parameter`.
     pub fn new(name: &str, parameter: &str, values: &[f64], points: Vec<Results>) -> SweepResults {
+        let scale = super::scaling::variable(parameter, values, &points);
         let learners = points[0]
             .learners
             .iter()
@@ -912,6 +924,14 @@ impl SweepResults {
                     regret_hi: at_k(|l| *l.regret_hi.last().unwrap()),
                     slope: points.iter().map(|p| p.learners[li].slope).collect(),
                     burn_in: points.iter().map(|p| p.learners[li].burn_in).collect(),
+                    scaling: scale.as_ref().map(|(_, x)| {
+                        super::scaling::read(
+                            &points,
+                            li,
+                            x,
+                            super::run_seed(points[0].seed, li, u64::MAX - 1),
+                        )
+                    }),
                 }
             })
             .collect();
@@ -923,6 +943,8 @@ impl SweepResults {
             parameter: parameter.to_owned(),
             values: values.to_vec(),
             learners,
+            scaling_x: scale.as_ref().map(|(_, x)| x.clone()).unwrap_or_default(),
+            scaling_in: scale.map(|(name, _)| name),
             points,
             failed: Vec::new(),
         }

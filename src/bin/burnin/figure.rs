@@ -11,8 +11,10 @@ use burnin::experiment::Output;
 #[derive(clap::Args, Clone)]
 pub struct FigureArgs {
     /// What the figure shows: cumulative, episode, difference (two learners'
-    /// paired difference), or for a sweep: sweep (regret at K), sweep-slope
-    /// or sweep-burn-in (default: cumulative, or sweep for a sweep).
+    /// paired difference), or for a sweep: sweep (regret at K), sweep-slope,
+    /// sweep-burn-in, sweep-scaling or sweep-regret-scaling (burn-in or
+    /// regret at K against the size the sweep changes, log-log, with fitted
+    /// and published orders) (default: cumulative, or sweep for a sweep).
     #[arg(long, value_name = "VIEW", help_heading = "Figure")]
     pub view: Option<String>,
     /// Log-log axes.

@@ -47,6 +47,19 @@ pub fn sweep_table(r: &SweepResults) -> String {
             let _ = writeln!(o, "  {:<lw$}  {:>22}  {}", t.label, t.slope, t.burn_in);
         }
     }
+    if let Some(x) = &r.scaling_in {
+        let _ = writeln!(
+            o,
+            "
+scaling in {x} (least squares on log-log axes, [95% bootstrap]), beside the published order"
+        );
+        for l in &r.learners {
+            if let Some(sc) = &l.scaling {
+                let _ = writeln!(o, "  {:<lw$}  {}", l.label, sc.burn_in_text(x));
+                let _ = writeln!(o, "  {:<lw$}  {}", "", sc.regret_text(x));
+            }
+        }
+    }
     o
 }
 
