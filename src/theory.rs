@@ -28,6 +28,7 @@
 //!   Complexity of Online Reinforcement Learning", COLT 2024, arXiv:2307.13586.
 //! - M. G. Azar, I. Osband and R. Munos, ICML 2017, arXiv:1703.05449.
 //! - Z. Zhang, X. Ji and S. S. Du, COLT 2021, arXiv:2009.13503.
+//! - A. Zanette and E. Brunskill, ICML 2019, arXiv:1901.00210.
 //! - C. Jin, Z. Allen-Zhu, S. Bubeck and M. I. Jordan, NeurIPS 2018, arXiv:1807.03765.
 //! - I. Osband, D. Russo and B. Van Roy, NeurIPS 2013, arXiv:1306.0940.
 //! - D. Russo, NeurIPS 2019, arXiv:1906.02870.
@@ -238,6 +239,36 @@ pub fn ucbvi_bernstein(set: &Setting, ks: &[u64]) -> Bound {
         s * s * a * h.powi(4),
     );
     b.note = "Table 1 of arXiv:2307.13586 lists the lower-order term as S²·A·H³ (burn-in S³·A·H³), a factor H below the stationary theorem read with S → S·H".into();
+    b
+}
+
+/// EULER: Zanette & Brunskill (2019), the main regret theorem (numbered
+/// Theorem 1 as we recall it [R]; docs/papers/euler.md: the full text was
+/// not reached, the statement is recalled and only its shape — a leading
+/// term driven by the variance of the next-state value — is in the abstract
+/// [V]): for a stationary MDP with rewards in [0, 1] and the total reward of
+/// an episode at most 𝒢, Õ(min{√(ℚ*·S·A·T), √(𝒢²·S·A·K)} plus
+/// √S·S·A·H²·(√S+√H)) with T = K·H [R]. Drawn is its worst case 𝒢 = H
+/// (which the min never exceeds; the ℚ* branch depends on the model):
+/// √(H²·S·A·K) plus S^{3/2}·A·H²·(√S+√H). By the one rule (module doc),
+/// S → S·H: √(S·A·H³·K) plus (S·H)^{3/2}·A·H²·(√(S·H)+√H), that is
+/// √(S·A·H³·K) plus S^{3/2}·A·H⁴·(√S+1); the √K term overtakes from
+/// K = (S^{3/2}·A·H⁴·(√S+1))²/(S·A·H³) = S²·A·H⁵·(√S+1)² (derived by
+/// hand). Table 1 of arXiv:2307.13586 lists the lower-order term as
+/// S^{3/2}·A·H³·(√S+√H) [V2] and prints its burn-in as S²·A·H³·(√S+√H),
+/// which lacks the square that its own lower-order term gives,
+/// S²·A·H³·(√S+√H)²; the note says both.
+pub fn euler(set: &Setting, ks: &[u64]) -> Bound {
+    let (s, a, h) = sah(set);
+    let mut b = minimax_plus(
+        set,
+        ks,
+        "Zanette & Brunskill, ICML 2019, arXiv:1901.00210, main theorem with 𝒢 = H (recalled, full text not read), with S → S·H",
+        "√(S·A·H³·K) + S^{3/2}·A·H⁴·(√S+1)",
+        "polylog(S·A·H·K/δ) factors",
+        s * s.sqrt() * a * h.powi(4) * (s.sqrt() + 1.0),
+    );
+    b.note = "Table 1 of arXiv:2307.13586 lists the lower-order term as S^{3/2}·A·H³·(√S+√H), below the stationary theorem read with S → S·H, and prints its burn-in as S²·A·H³·(√S+√H), which lacks a square: from that lower-order term the burn-in is S²·A·H³·(√S+√H)²; drawn here, the burn-in S²·A·H⁵·(√S+1)² of the translated term".into();
     b
 }
 

@@ -19,6 +19,7 @@ mod baseline;
 mod catalog;
 mod contract;
 mod counts;
+mod euler;
 mod guest;
 mod mvp;
 mod plan;
@@ -34,6 +35,7 @@ pub use catalog::{
 };
 pub use contract::{LearnRng, Learner, PolicyView, Setting};
 pub use counts::RowCounts;
+pub use euler::{Euler, log_factor as euler_log_factor};
 pub use guest::{
     Batch, Decision, GUEST_PROTOCOL, GUEST_VERSION, Guest, GuestHost, GuestIntro, GuestLearner,
     GuestPolicy, GuestStep, Guests, MAX_BATCH, ROW_SUM_TOLERANCE,
