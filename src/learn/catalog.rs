@@ -12,8 +12,8 @@
 use serde::Serialize;
 
 use super::{
-    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcb, Rlsvi, Setting, Ucb1,
-    Ucbvi, Uniform,
+    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, Orlc, PolicyView, Psrl, QUcb, Rlsvi, Setting,
+    Ucb1, Ucbvi, Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -24,6 +24,7 @@ pub enum AlgorithmKind {
     Mvp2021,
     UcbviHoeffding,
     UcbviBernstein,
+    Orlc,
     QUcbHoeffding,
     QUcbBernstein,
     Psrl,
@@ -184,6 +185,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bandit_only: false,
         has_bound: true,
         bound: Some(theory::ucbvi_bernstein),
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::Orlc,
+        key: "orlc",
+        name: "ORLC (policy certificates)",
+        param: Some(&BONUS),
+        reference: "Dann, Li, Wei & Brunskill, Policy Certificates: Towards Accountable Reinforcement Learning, ICML 2019, arXiv:1811.03056",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::orlc),
     },
     AlgorithmInfo {
         kind: AlgorithmKind::QUcbHoeffding,
@@ -375,6 +386,7 @@ impl Algorithm {
             AlgorithmKind::Mvp2021 => AnyLearner::Mvp(Mvp::with_samples(set, x, MvpSamples::All)),
             AlgorithmKind::UcbviHoeffding => AnyLearner::Ucbvi(Ucbvi::new(set, x, false)),
             AlgorithmKind::UcbviBernstein => AnyLearner::Ucbvi(Ucbvi::new(set, x, true)),
+            AlgorithmKind::Orlc => AnyLearner::Orlc(Orlc::new(set, x)),
             AlgorithmKind::QUcbHoeffding => AnyLearner::QUcb(QUcb::new(set, x, false)),
             AlgorithmKind::QUcbBernstein => AnyLearner::QUcb(QUcb::new(set, x, true)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
@@ -392,6 +404,7 @@ impl Algorithm {
 pub enum AnyLearner {
     Mvp(Mvp),
     Ucbvi(Ucbvi),
+    Orlc(Orlc),
     QUcb(QUcb),
     Psrl(Psrl),
     Rlsvi(Rlsvi),
@@ -412,6 +425,7 @@ macro_rules! with_learner {
         match $any {
             $crate::learn::AnyLearner::Mvp($l) => $body,
             $crate::learn::AnyLearner::Ucbvi($l) => $body,
+            $crate::learn::AnyLearner::Orlc($l) => $body,
             $crate::learn::AnyLearner::QUcb($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
             $crate::learn::AnyLearner::Rlsvi($l) => $body,
