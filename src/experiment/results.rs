@@ -1255,6 +1255,12 @@ fn check_sweep(r: &SweepResults, p: &mut Problems) {
             }
         }
     }
+    if r.scaling_in.is_some() && r.scaling_x.len() != v {
+        p.push(
+            "scaling_x",
+            format!("expected {v} values, found {}", r.scaling_x.len()),
+        );
+    }
     for (i, pt) in r.points.iter().enumerate() {
         check_results(pt, &format!("points[{i}]"), p);
     }

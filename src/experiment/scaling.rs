@@ -4,10 +4,12 @@
 //!
 //! The exponent is the least-squares slope of ln y on ln x over the sweep's
 //! points (a power law y ∝ x^b read on log–log axes; common practice), where
-//! x is the one of S, A, H, K that varies from point to point — or, when
-//! none or several do (a sweep over the lower-bound family's depth changes
-//! S alone; one over its actions changes A and S), the swept value itself,
-//! and the reading says which. A point where the learner's mean curve did
+//! x is the one of S, A, H, K that varies from point to point (a sweep
+//! over the lower-bound family's depth changes S alone) — or, when several
+//! do and the swept parameter is itself a size (the lower-bound family's
+//! `actions` changes A and S), the swept value, and the reading says
+//! which. A sweep that changes no size (δ, a bonus scale, a slip
+//! probability) has no scaling reading. A point where the learner's mean curve did
 //! not settle by K has no burn-in: it is left out of the burn-in fit and
 //! counted, and with fewer than two settled points there is no fit — the
 //! reading says "did not settle by K at 5 of 6 points" instead of fitting
@@ -43,9 +45,15 @@ pub fn variable(parameter: &str, values: &[f64], points: &[Results]) -> Option<(
     ];
     let varies = |xs: &[f64]| xs.iter().any(|&x| x != xs[0]);
     let moving: Vec<&(&str, Vec<f64>)> = sizes.iter().filter(|(_, xs)| varies(xs)).collect();
+    // Several sizes moving together (the lower-bound family's actions
+    // change A and S): the exponent is read in the swept size itself. Any
+    // other parameter (δ, a bonus scale, a slip probability) is no size.
+    let size = ["states", "actions", "horizon", "episodes"]
+        .contains(&parameter.trim_start_matches("generator."));
     let (name, xs) = match moving.as_slice() {
         [(name, xs)] => (name.to_string(), xs.clone()),
-        _ => (parameter.to_string(), values.to_vec()),
+        _ if size => (parameter.to_string(), values.to_vec()),
+        _ => return None,
     };
     let usable = xs.len() >= 2 && varies(&xs) && xs.iter().all(|&x| x > 0.0 && x.is_finite());
     usable.then_some((name, xs))

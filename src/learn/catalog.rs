@@ -12,8 +12,8 @@
 use serde::Serialize;
 
 use super::{
-    EpsGreedy, Euler, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcb, Rlsvi, Setting,
-    Ucb1, Ucbvi, Uniform,
+    EpsGreedy, Euler, LearnRng, Learner, Mvp, MvpSamples, Orlc, PolicyView, Psrl, QUcb, Rlsvi,
+    Setting, Ucb1, Ucbvi, Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -25,6 +25,7 @@ pub enum AlgorithmKind {
     UcbviHoeffding,
     UcbviBernstein,
     Euler,
+    Orlc,
     QUcbHoeffding,
     QUcbBernstein,
     Psrl,
@@ -195,6 +196,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bandit_only: false,
         has_bound: true,
         bound: Some(theory::euler),
+    },
+    AlgorithmInfo {
+        kind: AlgorithmKind::Orlc,
+        key: "orlc",
+        name: "ORLC (policy certificates)",
+        param: Some(&BONUS),
+        reference: "Dann, Li, Wei & Brunskill, Policy Certificates: Towards Accountable Reinforcement Learning, ICML 2019, arXiv:1811.03056",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::orlc),
     },
     AlgorithmInfo {
         kind: AlgorithmKind::QUcbHoeffding,
@@ -387,6 +398,7 @@ impl Algorithm {
             AlgorithmKind::UcbviHoeffding => AnyLearner::Ucbvi(Ucbvi::new(set, x, false)),
             AlgorithmKind::UcbviBernstein => AnyLearner::Ucbvi(Ucbvi::new(set, x, true)),
             AlgorithmKind::Euler => AnyLearner::Euler(Euler::new(set, x)),
+            AlgorithmKind::Orlc => AnyLearner::Orlc(Orlc::new(set, x)),
             AlgorithmKind::QUcbHoeffding => AnyLearner::QUcb(QUcb::new(set, x, false)),
             AlgorithmKind::QUcbBernstein => AnyLearner::QUcb(QUcb::new(set, x, true)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
@@ -405,6 +417,7 @@ pub enum AnyLearner {
     Mvp(Mvp),
     Ucbvi(Ucbvi),
     Euler(Euler),
+    Orlc(Orlc),
     QUcb(QUcb),
     Psrl(Psrl),
     Rlsvi(Rlsvi),
@@ -426,6 +439,7 @@ macro_rules! with_learner {
             $crate::learn::AnyLearner::Mvp($l) => $body,
             $crate::learn::AnyLearner::Ucbvi($l) => $body,
             $crate::learn::AnyLearner::Euler($l) => $body,
+            $crate::learn::AnyLearner::Orlc($l) => $body,
             $crate::learn::AnyLearner::QUcb($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
             $crate::learn::AnyLearner::Rlsvi($l) => $body,

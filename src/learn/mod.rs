@@ -22,6 +22,7 @@ mod counts;
 mod euler;
 mod guest;
 mod mvp;
+mod orlc;
 mod plan;
 mod psrl;
 mod qlearn;
@@ -44,6 +45,7 @@ pub use mvp::{
     FrozenStats, Mvp, MvpSamples, largest_bonus as mvp_largest_bonus, log_factor as mvp_log_factor,
     visits_for_bonus_below_h as mvp_visits_for_bonus_below_h,
 };
+pub use orlc::{Orlc, delta_prime as orlc_delta_prime, phi as orlc_phi};
 pub use plan::{Plan, StaleRows, argmax_random};
 pub use psrl::Psrl;
 pub use qlearn::{BERNSTEIN_C1, BERNSTEIN_C2, QUcb, learning_rate};

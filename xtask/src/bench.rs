@@ -79,6 +79,7 @@ const LEARNERS: [&str; 12] = [
     "ucbvi-hoeffding",
     "ucbvi-bernstein",
     "euler",
+    "orlc",
     "q-ucb-hoeffding",
     "q-ucb-bernstein",
     "psrl",
