@@ -12,8 +12,8 @@
 use serde::Serialize;
 
 use super::{
-    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcb, Rlsvi, Setting, Ucb1,
-    Ucbvi, Uniform,
+    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QEarlySettled, QUcb, Rlsvi,
+    Setting, Ucb1, Ucbvi, Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -26,6 +26,7 @@ pub enum AlgorithmKind {
     UcbviBernstein,
     QUcbHoeffding,
     QUcbBernstein,
+    QEarlySettled,
     Psrl,
     Rlsvi,
     Ucb1,
@@ -206,6 +207,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bound: Some(theory::q_ucb_bernstein),
     },
     AlgorithmInfo {
+        kind: AlgorithmKind::QEarlySettled,
+        key: "q-early-settled",
+        name: "Q-EarlySettled-Advantage",
+        param: Some(&BONUS),
+        reference: "Li, Shi, Chen, Gu & Chi, Breaking the Sample Complexity Barrier to Regret-Optimal Model-Free Reinforcement Learning, NeurIPS 2021, arXiv:2110.04645 (Algorithm 1 as recalled: full text not read)",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::q_early_settled),
+    },
+    AlgorithmInfo {
         kind: AlgorithmKind::Psrl,
         key: "psrl",
         name: "PSRL (posterior sampling)",
@@ -377,6 +388,7 @@ impl Algorithm {
             AlgorithmKind::UcbviBernstein => AnyLearner::Ucbvi(Ucbvi::new(set, x, true)),
             AlgorithmKind::QUcbHoeffding => AnyLearner::QUcb(QUcb::new(set, x, false)),
             AlgorithmKind::QUcbBernstein => AnyLearner::QUcb(QUcb::new(set, x, true)),
+            AlgorithmKind::QEarlySettled => AnyLearner::QEarlySettled(QEarlySettled::new(set, x)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
             AlgorithmKind::Rlsvi => AnyLearner::Rlsvi(Rlsvi::new(set, x)),
             AlgorithmKind::Ucb1 => AnyLearner::Ucb1(Ucb1::new(set.actions, x)),
@@ -393,6 +405,7 @@ pub enum AnyLearner {
     Mvp(Mvp),
     Ucbvi(Ucbvi),
     QUcb(QUcb),
+    QEarlySettled(QEarlySettled),
     Psrl(Psrl),
     Rlsvi(Rlsvi),
     Ucb1(Ucb1),
@@ -413,6 +426,7 @@ macro_rules! with_learner {
             $crate::learn::AnyLearner::Mvp($l) => $body,
             $crate::learn::AnyLearner::Ucbvi($l) => $body,
             $crate::learn::AnyLearner::QUcb($l) => $body,
+            $crate::learn::AnyLearner::QEarlySettled($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
             $crate::learn::AnyLearner::Rlsvi($l) => $body,
             $crate::learn::AnyLearner::Ucb1($l) => $body,

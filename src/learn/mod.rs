@@ -19,6 +19,7 @@ mod baseline;
 mod catalog;
 mod contract;
 mod counts;
+mod early_settled;
 mod guest;
 mod mvp;
 mod plan;
@@ -34,6 +35,9 @@ pub use catalog::{
 };
 pub use contract::{LearnRng, Learner, PolicyView, Setting};
 pub use counts::RowCounts;
+pub use early_settled::{
+    EARLY_SETTLED_CB, EarlySettledRow, EarlySettledState, QEarlySettled, SETTLE_GAP,
+};
 pub use guest::{
     Batch, Decision, GUEST_PROTOCOL, GUEST_VERSION, Guest, GuestHost, GuestIntro, GuestLearner,
     GuestPolicy, GuestStep, Guests, MAX_BATCH, ROW_SUM_TOLERANCE,
