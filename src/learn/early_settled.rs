@@ -83,7 +83,10 @@
 //! episode is the greedy policy on Q at its start, kept as a table and
 //! re-chosen (ties at random) for (h, s) at each of its visits;
 //! `model_updates` counts the episodes whose policy differs from the one
-//! before (the first included). Only `sqrt` and the four operations are
+//! before (the first included). Since Q ≤ H, the actions of a state stay
+//! tied at H until their bonuses shrink, and the tie is drawn afresh at
+//! every visit (as in `qlearn.rs`), so the policy changes nearly every
+//! episode and the runner evaluates each episode's policy anew. Only `sqrt` and the four operations are
 //! used after construction (n^{3/4} = √(n·√n)), and ι with `libm::log`, so
 //! native and wasm runs agree bit for bit.
 //!
