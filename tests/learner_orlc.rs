@@ -346,3 +346,56 @@ fn orlc_bound_is_the_stationary_theorem_read_with_s_times_h() {
     assert!(!scaled.applies);
     assert!(scaled.note.contains("scaled by 0.05"), "{}", scaled.note);
 }
+
+/// End to end, through the runner: the results carry ORLC's mean
+/// certificate at every checkpoint (and none for a learner without one),
+/// the CSV carries it in its column, and the per-episode chart draws it.
+/// With one seed and a single start state, each checkpoint's certificate
+/// must be at least that episode's exact regret (Dann et al. 2019: valid in
+/// every episode with probability 1 − δ; here it held in every episode of
+/// the checks above), and the last one below the first (they shrink).
+#[test]
+fn results_carry_the_certificate_beside_the_exact_regret() {
+    use common::learning::{experiment, run};
+    let m = &small_models()[0];
+    let text = experiment(
+        m,
+        3000,
+        1,
+        r#"[{"algorithm": "orlc"}, {"algorithm": "ucbvi-hoeffding"}]"#,
+    );
+    let r = run(&text);
+    let (orlc, ucbvi) = (&r.learners[0], &r.learners[1]);
+    assert!(ucbvi.certificate_mean.is_empty());
+    assert_eq!(orlc.certificate_mean.len(), orlc.checkpoints.len());
+    for (c, (&cert, &regret)) in orlc
+        .certificate_mean
+        .iter()
+        .zip(&orlc.episode_regret_mean)
+        .enumerate()
+    {
+        assert!(cert >= regret - 1e-12, "checkpoint {c}: {cert} < {regret}");
+    }
+    assert!(orlc.certificate_mean.last().unwrap() < &orlc.certificate_mean[0]);
+    let csv = r.to_csv();
+    assert!(csv.lines().next().unwrap().ends_with(",certificate_mean"));
+    let row = csv.lines().nth(orlc.checkpoints.len()).unwrap();
+    assert_eq!(
+        row.rsplit(',').next().unwrap(),
+        orlc.certificate_mean.last().unwrap().to_string()
+    );
+    let out = burnin::experiment::Output::Single(r.clone());
+    let opts = burnin::chart::Options {
+        view: Some(burnin::chart::View::Episode),
+        ..Default::default()
+    };
+    let fig = burnin::chart::figure(&out, &opts).unwrap();
+    let labels: Vec<&str> = fig.series.iter().map(|s| s.label.as_str()).collect();
+    assert!(
+        labels.iter().any(|l| l.ends_with(": certificate")),
+        "{labels:?}"
+    );
+    // The results read back with the certificates.
+    let back = burnin::experiment::parse_results(&r.to_json()).unwrap();
+    assert_eq!(back.to_json(), out.to_json());
+}

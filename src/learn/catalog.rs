@@ -12,8 +12,8 @@
 use serde::Serialize;
 
 use super::{
-    EpsGreedy, Euler, LearnRng, Learner, Mvp, MvpSamples, Orlc, PolicyView, Psrl, QUcb, Rlsvi,
-    Setting, Ucb1, Ucbvi, Uniform,
+    EpsGreedy, Euler, LearnRng, Learner, Mvp, MvpSamples, Orlc, PolicyView, Psrl, QEarlySettled,
+    QUcb, Rlsvi, Setting, Ucb1, Ucbvi, Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -28,6 +28,7 @@ pub enum AlgorithmKind {
     Orlc,
     QUcbHoeffding,
     QUcbBernstein,
+    QEarlySettled,
     Psrl,
     Rlsvi,
     Ucb1,
@@ -228,6 +229,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bound: Some(theory::q_ucb_bernstein),
     },
     AlgorithmInfo {
+        kind: AlgorithmKind::QEarlySettled,
+        key: "q-early-settled",
+        name: "Q-EarlySettled-Advantage",
+        param: Some(&BONUS),
+        reference: "Li, Shi, Chen, Gu & Chi, Breaking the Sample Complexity Barrier to Regret-Optimal Model-Free Reinforcement Learning, NeurIPS 2021, arXiv:2110.04645 (Algorithm 1 as recalled: full text not read)",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::q_early_settled),
+    },
+    AlgorithmInfo {
         kind: AlgorithmKind::Psrl,
         key: "psrl",
         name: "PSRL (posterior sampling)",
@@ -401,6 +412,7 @@ impl Algorithm {
             AlgorithmKind::Orlc => AnyLearner::Orlc(Orlc::new(set, x)),
             AlgorithmKind::QUcbHoeffding => AnyLearner::QUcb(QUcb::new(set, x, false)),
             AlgorithmKind::QUcbBernstein => AnyLearner::QUcb(QUcb::new(set, x, true)),
+            AlgorithmKind::QEarlySettled => AnyLearner::QEarlySettled(QEarlySettled::new(set, x)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
             AlgorithmKind::Rlsvi => AnyLearner::Rlsvi(Rlsvi::new(set, x)),
             AlgorithmKind::Ucb1 => AnyLearner::Ucb1(Ucb1::new(set.actions, x)),
@@ -419,6 +431,7 @@ pub enum AnyLearner {
     Euler(Euler),
     Orlc(Orlc),
     QUcb(QUcb),
+    QEarlySettled(QEarlySettled),
     Psrl(Psrl),
     Rlsvi(Rlsvi),
     Ucb1(Ucb1),
@@ -441,6 +454,7 @@ macro_rules! with_learner {
             $crate::learn::AnyLearner::Euler($l) => $body,
             $crate::learn::AnyLearner::Orlc($l) => $body,
             $crate::learn::AnyLearner::QUcb($l) => $body,
+            $crate::learn::AnyLearner::QEarlySettled($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
             $crate::learn::AnyLearner::Rlsvi($l) => $body,
             $crate::learn::AnyLearner::Ucb1($l) => $body,

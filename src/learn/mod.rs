@@ -19,6 +19,7 @@ mod baseline;
 mod catalog;
 mod contract;
 mod counts;
+mod early_settled;
 mod euler;
 mod guest;
 mod mvp;
@@ -36,6 +37,9 @@ pub use catalog::{
 };
 pub use contract::{LearnRng, Learner, PolicyView, Setting};
 pub use counts::RowCounts;
+pub use early_settled::{
+    EARLY_SETTLED_CB, EarlySettledRow, EarlySettledState, QEarlySettled, SETTLE_GAP,
+};
 pub use euler::{Euler, log_factor as euler_log_factor};
 pub use guest::{
     Batch, Decision, GUEST_PROTOCOL, GUEST_VERSION, Guest, GuestHost, GuestIntro, GuestLearner,
