@@ -13,7 +13,7 @@ use serde::Serialize;
 
 use super::{
     EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcb, Rlsvi, Setting, Ucb1,
-    Ucbvi, Uniform,
+    UcbAdvantage, Ucbvi, Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -26,6 +26,7 @@ pub enum AlgorithmKind {
     UcbviBernstein,
     QUcbHoeffding,
     QUcbBernstein,
+    UcbAdvantage,
     Psrl,
     Rlsvi,
     Ucb1,
@@ -206,6 +207,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bound: Some(theory::q_ucb_bernstein),
     },
     AlgorithmInfo {
+        kind: AlgorithmKind::UcbAdvantage,
+        key: "ucb-advantage",
+        name: "UCB-Advantage",
+        param: Some(&BONUS),
+        reference: "Zhang, Zhou & Ji, Almost Optimal Model-Free Reinforcement Learning via Reference-Advantage Decomposition, NeurIPS 2020, arXiv:2004.10019 (Algorithm 1 as recalled, not read)",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::ucb_advantage),
+    },
+    AlgorithmInfo {
         kind: AlgorithmKind::Psrl,
         key: "psrl",
         name: "PSRL (posterior sampling)",
@@ -377,6 +388,7 @@ impl Algorithm {
             AlgorithmKind::UcbviBernstein => AnyLearner::Ucbvi(Ucbvi::new(set, x, true)),
             AlgorithmKind::QUcbHoeffding => AnyLearner::QUcb(QUcb::new(set, x, false)),
             AlgorithmKind::QUcbBernstein => AnyLearner::QUcb(QUcb::new(set, x, true)),
+            AlgorithmKind::UcbAdvantage => AnyLearner::UcbAdvantage(UcbAdvantage::new(set, x)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
             AlgorithmKind::Rlsvi => AnyLearner::Rlsvi(Rlsvi::new(set, x)),
             AlgorithmKind::Ucb1 => AnyLearner::Ucb1(Ucb1::new(set.actions, x)),
@@ -393,6 +405,7 @@ pub enum AnyLearner {
     Mvp(Mvp),
     Ucbvi(Ucbvi),
     QUcb(QUcb),
+    UcbAdvantage(UcbAdvantage),
     Psrl(Psrl),
     Rlsvi(Rlsvi),
     Ucb1(Ucb1),
@@ -413,6 +426,7 @@ macro_rules! with_learner {
             $crate::learn::AnyLearner::Mvp($l) => $body,
             $crate::learn::AnyLearner::Ucbvi($l) => $body,
             $crate::learn::AnyLearner::QUcb($l) => $body,
+            $crate::learn::AnyLearner::UcbAdvantage($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
             $crate::learn::AnyLearner::Rlsvi($l) => $body,
             $crate::learn::AnyLearner::Ucb1($l) => $body,
