@@ -13,7 +13,7 @@ use serde::Serialize;
 
 use super::{
     EpsGreedy, Euler, LearnRng, Learner, Mvp, MvpSamples, Orlc, PolicyView, Psrl, QEarlySettled,
-    QUcb, Rlsvi, Setting, Ucb1, Ucbvi, Uniform,
+    QUcb, Rlsvi, Setting, Ucb1, UcbAdvantage, Ucbvi, Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -28,6 +28,7 @@ pub enum AlgorithmKind {
     Orlc,
     QUcbHoeffding,
     QUcbBernstein,
+    UcbAdvantage,
     QEarlySettled,
     Psrl,
     Rlsvi,
@@ -229,6 +230,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bound: Some(theory::q_ucb_bernstein),
     },
     AlgorithmInfo {
+        kind: AlgorithmKind::UcbAdvantage,
+        key: "ucb-advantage",
+        name: "UCB-Advantage",
+        param: Some(&BONUS),
+        reference: "Zhang, Zhou & Ji, Almost Optimal Model-Free Reinforcement Learning via Reference-Advantage Decomposition, NeurIPS 2020, arXiv:2004.10019 (Algorithm 1 as recalled, not read)",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::ucb_advantage),
+    },
+    AlgorithmInfo {
         kind: AlgorithmKind::QEarlySettled,
         key: "q-early-settled",
         name: "Q-EarlySettled-Advantage",
@@ -412,6 +423,7 @@ impl Algorithm {
             AlgorithmKind::Orlc => AnyLearner::Orlc(Orlc::new(set, x)),
             AlgorithmKind::QUcbHoeffding => AnyLearner::QUcb(QUcb::new(set, x, false)),
             AlgorithmKind::QUcbBernstein => AnyLearner::QUcb(QUcb::new(set, x, true)),
+            AlgorithmKind::UcbAdvantage => AnyLearner::UcbAdvantage(UcbAdvantage::new(set, x)),
             AlgorithmKind::QEarlySettled => AnyLearner::QEarlySettled(QEarlySettled::new(set, x)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
             AlgorithmKind::Rlsvi => AnyLearner::Rlsvi(Rlsvi::new(set, x)),
@@ -431,6 +443,7 @@ pub enum AnyLearner {
     Euler(Euler),
     Orlc(Orlc),
     QUcb(QUcb),
+    UcbAdvantage(UcbAdvantage),
     QEarlySettled(QEarlySettled),
     Psrl(Psrl),
     Rlsvi(Rlsvi),
@@ -454,6 +467,7 @@ macro_rules! with_learner {
             $crate::learn::AnyLearner::Euler($l) => $body,
             $crate::learn::AnyLearner::Orlc($l) => $body,
             $crate::learn::AnyLearner::QUcb($l) => $body,
+            $crate::learn::AnyLearner::UcbAdvantage($l) => $body,
             $crate::learn::AnyLearner::QEarlySettled($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
             $crate::learn::AnyLearner::Rlsvi($l) => $body,

@@ -28,6 +28,7 @@ mod plan;
 mod psrl;
 mod qlearn;
 mod rlsvi;
+mod ucb_advantage;
 mod ucbvi;
 
 pub use bandit::Ucb1;
@@ -54,4 +55,8 @@ pub use plan::{Plan, StaleRows, argmax_random};
 pub use psrl::Psrl;
 pub use qlearn::{BERNSTEIN_C1, BERNSTEIN_C2, QUcb, learning_rate};
 pub use rlsvi::{Rlsvi, beta as rlsvi_beta};
+pub use ucb_advantage::{
+    REFERENCE_C4, UcbAdvantage, log_factor as ucb_advantage_log_factor, next_stage_length,
+    reference_threshold,
+};
 pub use ucbvi::Ucbvi;

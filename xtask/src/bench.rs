@@ -82,6 +82,7 @@ const LEARNERS: [&str; 12] = [
     "orlc",
     "q-ucb-hoeffding",
     "q-ucb-bernstein",
+    "ucb-advantage",
     "q-early-settled",
     "psrl",
     "rlsvi",
