@@ -409,8 +409,8 @@ fn the_caveat_is_the_pages() {
 /// The commands the table may use: the LaTeX kernel's (Lamport, *LaTeX: A
 /// Document Preparation System*, 2nd ed., 1994; `\textsuperscript`,
 /// `\textsubscript`, `\ensuremath`, the text symbols of textcomp, which the
-/// kernel has loaded since 2020) and booktabs' rules (Fels, *booktabs*
-/// package documentation, v1.61803398); from memory.
+/// kernel has loaded since 2020) and booktabs' rules (S. Fear, *booktabs*
+/// package documentation); from memory.
 const KNOWN_COMMANDS: &[&str] = &[
     "begin",
     "end",

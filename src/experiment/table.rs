@@ -854,9 +854,9 @@ pub fn table_exports(out: &Output) -> Vec<TableExport> {
 mod tests {
     use super::*;
 
-    /// Every special character of LaTeX (Lamport, *LaTeX: A Document
-    /// Preparation System*, 2nd ed., 1994, §2.2.1 and its table of special
-    /// characters) comes out escaped.
+    /// Every special character of LaTeX (the ten Lamport lists in *LaTeX: A
+    /// Document Preparation System*, 2nd ed., 1994; from memory) comes out
+    /// escaped.
     #[test]
     fn latex_escapes_the_ten_special_characters() {
         assert_eq!(
@@ -878,7 +878,7 @@ mod tests {
     }
 
     /// GitHub Flavored Markdown's backslash escapes (GFM spec 0.29, §2.4):
-    /// a `|` inside a cell must be escaped (§4.10, tables).
+    /// a `|` inside a cell must be escaped (§4.10, tables); from memory.
     #[test]
     fn markdown_escapes_pipes_and_markup() {
         assert_eq!(md_escape("a|b*c_d"), r"a\|b\*c\_d");
