@@ -506,7 +506,9 @@ pub fn read_document(text: &str) -> JsValue {
 }
 
 /// What a front end shows of results, on `obj`: the JSON, every CSV table,
-/// the chart data and the reading texts (a results file read, or a merge).
+/// the chart data, the reading texts, and `tables`, the comparison table in
+/// every format (`[{key, name, extension, media_type, text}]`, from
+/// `experiment::table_exports`) — a results file read, or a merge.
 fn set_results(obj: &Object, out: &crate::experiment::Output) {
     set(obj, "json", out.to_json());
     set(obj, "csv", out.to_csv());
@@ -516,6 +518,7 @@ fn set_results(obj: &Object, out: &crate::experiment::Output) {
     set(obj, "chartText", crate::chart::chart_text(out));
     set(obj, "readings", to_js(&out.reading_texts()));
     set(obj, "scaling", to_js(&out.scaling_texts()));
+    set(obj, "tables", to_js(&crate::experiment::table_exports(out)));
 }
 
 /// The model with its graph layout replaced by `positions` (x, y pairs,

@@ -838,3 +838,133 @@ fn timing_a_run_before_it_goes_on_changes_none_of_its_numbers() {
         assert_eq!(strip(&r.stdout), plain, "{threads} threads");
     }
 }
+
+/// `burnin table` (#31): the comparison table of a results file as
+/// Markdown (the default), LaTeX or CSV — the core's text, so the page's
+/// export is the same — to standard output or a file, whose extension
+/// names the format when `--format` is not given; an unknown format, a
+/// missing file, a file that is not results, an output that is the
+/// results file, and an extension naming another format are refused.
+#[test]
+fn table_writes_the_comparison_table_in_three_formats() {
+    let d = Scratch::new("table");
+    let f = experiment_file(
+        &d,
+        r#"[{"algorithm": "ucbvi-bernstein"}, {"algorithm": "uniform", "label": "coin & 50%"}]"#,
+        200,
+    );
+    let r = burnin(&["run", "--json", p(&f)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let results = d.file("results.json", &r.stdout);
+    let out = burnin::experiment::parse_results(&r.stdout).unwrap();
+    use burnin::experiment::TableFormat;
+    // The default is Markdown; every format is the core's text.
+    let md = burnin(&["table", p(&results)]);
+    assert_eq!(md.code, 0, "{}", md.stderr);
+    assert_eq!(md.stdout, out.table(TableFormat::Markdown));
+    assert!(
+        md.stdout
+            .starts_with("| learner | algorithm | published bound |")
+    );
+    for format in TableFormat::ALL {
+        let t = burnin(&["table", "--format", format.key(), p(&results)]);
+        assert_eq!(t.code, 0, "{}", t.stderr);
+        assert_eq!(t.stdout, out.table(format), "{}", format.key());
+    }
+    let tex = out.table(TableFormat::Latex);
+    assert!(tex.contains("\\toprule") && tex.contains("coin \\& 50\\%"));
+    let csv = out.table(TableFormat::Csv);
+    assert!(
+        csv.lines()
+            .nth(2)
+            .unwrap()
+            .starts_with("coin & 50%,Uniform random,")
+    );
+    // To a file: its extension names the format.
+    let file = d.0.join("table.tex");
+    let w = burnin(&["table", p(&results), "-o", p(&file)]);
+    assert_eq!((w.code, w.stdout.as_str()), (0, ""), "{}", w.stderr);
+    assert_eq!(std::fs::read_to_string(&file).unwrap(), tex);
+    let file = d.0.join("table.txt");
+    let w = burnin(&[
+        "table",
+        "--format",
+        "csv",
+        p(&results),
+        "--output",
+        p(&file),
+    ]);
+    assert_eq!(w.code, 0, "{}", w.stderr);
+    assert_eq!(std::fs::read_to_string(&file).unwrap(), csv);
+    // Refusals: what and where, exit 2 for usage and I/O, 1 for a file
+    // that is not results; the results file is never overwritten.
+    let bad = burnin(&["table", "--format", "html", p(&results)]);
+    assert_eq!(bad.code, 2);
+    assert_eq!(
+        bad.stderr,
+        "burnin: --format html: expected one of markdown, latex, csv\n"
+    );
+    let clash = burnin(&[
+        "table",
+        "--format",
+        "csv",
+        p(&results),
+        "-o",
+        p(&d.0.join("t.md")),
+    ]);
+    assert_eq!(clash.code, 2);
+    assert!(
+        clash
+            .stderr
+            .contains("the file's extension names markdown, not csv"),
+        "{}",
+        clash.stderr
+    );
+    let missing = burnin(&["table", p(&d.0.join("nope.json"))]);
+    assert_eq!(missing.code, 2);
+    assert!(
+        missing.stderr.starts_with("burnin: cannot read ") && missing.stderr.contains("nope.json"),
+        "{}",
+        missing.stderr
+    );
+    let not_results = burnin(&["table", p(&f)]);
+    assert_eq!(not_results.code, 1);
+    assert_eq!(
+        not_results.stderr,
+        format!(
+            "{}: format: expected \"burnin-results\" or \"burnin-sweep\"\n",
+            f.display()
+        )
+    );
+    let before = std::fs::read_to_string(&results).unwrap();
+    let over = burnin(&["table", p(&results), "-o", p(&results)]);
+    assert_eq!(over.code, 2);
+    assert!(
+        over.stderr.contains("that is the results file"),
+        "{}",
+        over.stderr
+    );
+    assert_eq!(std::fs::read_to_string(&results).unwrap(), before);
+    let nowhere = burnin(&["table", p(&results), "-o", p(&d.0.join("no/such/t.md"))]);
+    assert_eq!(nowhere.code, 2);
+    assert!(
+        nowhere.stderr.contains("there is no folder"),
+        "{}",
+        nowhere.stderr
+    );
+    // A sweep's table has the swept value in front.
+    let sweep = d.file(
+        "sweep.json",
+        r#"{"format": "burnin-experiment", "version": 1,
+            "generator": {"kind": "lock", "horizon": 3, "actions": 2, "seed": 2},
+            "episodes": 100, "seeds": 2, "sweep": {"parameter": "horizon", "values": [2, 3]},
+            "learners": [{"algorithm": "uniform"}]}"#,
+    );
+    let r = burnin(&["run", "--json", p(&sweep)]);
+    let sweep_results = d.file("sweep-results.json", &r.stdout);
+    let t = burnin(&["table", "--format", "csv", p(&sweep_results)]);
+    assert_eq!(t.code, 0, "{}", t.stderr);
+    let rows: Vec<&str> = t.stdout.lines().collect();
+    assert!(rows[0].starts_with("horizon,learner,"), "{}", rows[0]);
+    assert!(rows[1].starts_with("2,uniform,") && rows[2].starts_with("3,uniform,"));
+}

@@ -32,12 +32,13 @@ const $ = (id) => document.getElementById(id);
 /**
  * Results as the view keeps them, from the core's reading of a results
  * file or a merge ({json, csv, cellsCsv, summaryCsv, seedsCsv, chartText,
- * readings}: `readings[point][learner]` holds the core's texts of the slope
- * and the burn-in, as the CLI prints them), with the experiment file that
- * made them (or null).
+ * readings, tables}: `readings[point][learner]` holds the core's texts of the slope
+ * and the burn-in, as the CLI prints them; `tables` the comparison table in
+ * every format the core writes, [{key, name, extension, media_type, text}],
+ * as `burnin table` writes it), with the experiment file that made them (or null).
  */
 export const resultsOf = (doc, experiment = null) => ({
-  text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, chartText: doc.chartText, readings: doc.readings, scaling: doc.scaling, experiment,
+  text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, chartText: doc.chartText, readings: doc.readings, scaling: doc.scaling, tables: doc.tables || [], experiment,
 });
 
 /** Resolves in a later task (after the browser has had its turn). */
@@ -111,9 +112,13 @@ export class ExperimentView {
     $('export-cells').addEventListener('click', () => download(`${this.fileBase()}-regret-by-cell.csv`, this.results.cellsCsv, 'text/csv'));
     $('export-summary').addEventListener('click', () => download(`${this.fileBase()}-summary.csv`, this.results.summaryCsv, 'text/csv'));
     $('export-seeds').addEventListener('click', () => download(`${this.fileBase()}-per-seed.csv`, this.results.seedsCsv, 'text/csv'));
+    $('export-table').addEventListener('click', () => {
+      const t = this.results.tables.find((x) => x.key === $('table-format').value);
+      if (t) download(`${this.fileBase()}-table.${t.extension}`, t.text, t.media_type);
+    });
     $('heat-view').addEventListener('change', () => this.drawHeat());
     $('save-results').addEventListener('click', () => { hooks.saveResults(this.results.experiment, this.results.text); this.resultsKept = true; });
-    for (const id of ['export-json', 'export-csv', 'export-cells', 'export-summary', 'export-seeds']) $(id).addEventListener('click', () => { this.resultsKept = true; });
+    for (const id of ['export-json', 'export-csv', 'export-cells', 'export-summary', 'export-seeds', 'export-table']) $(id).addEventListener('click', () => { this.resultsKept = true; });
     $('present').addEventListener('click', () => this.present());
     $('present-close').addEventListener('click', () => this.closePresent());
     document.addEventListener('keydown', (e) => { if (e.key === 'Escape' && !$('presenter').hidden) this.closePresent(); });
@@ -587,6 +592,12 @@ export class ExperimentView {
     $('export-csv').disabled = !this.results.csv;
     $('export-summary').disabled = !this.results.summaryCsv;
     $('export-seeds').disabled = !this.results.seedsCsv;
+    // The comparison table's formats are the core's; the choice made stays.
+    const tableSel = $('table-format');
+    const picked = tableSel.value;
+    tableSel.replaceChildren(...this.results.tables.map((t) => el('option', t.name, { value: t.key })));
+    if (this.results.tables.some((t) => t.key === picked)) tableSel.value = picked;
+    $('export-table').disabled = !this.results.tables.length;
     const decomposed = !sweep && data.learners.some((l) => l.regret_by_cell?.length);
     // A sweep's cells CSV holds every point's cells, the swept value first.
     const anyCells = decomposed || (sweep && data.points.some((p) => p.learners.some((l) => l.regret_by_cell?.length)));

@@ -19,6 +19,7 @@ mod runner;
 pub mod scaling;
 mod shard;
 mod spec;
+mod table;
 
 pub use draws::draw_stream;
 pub use estimate::{
@@ -48,6 +49,10 @@ pub use spec::{
     MAX_LEARNERS, MAX_PATH_CHARS, MAX_SEED, MAX_SEEDS, MAX_SWEEP_VALUES, ModelLoader, Source,
     Sweep, SweepParameter, check_learnable, experiment_sweep_keys, parse_experiment,
     valid_guest_name,
+};
+pub use table::{
+    CAVEAT, Column, ColumnKind, ComparisonTable, LATEX_LABEL, Section, TableExport, TableFormat,
+    comparison_table, latex_formula, latex_text, md_escape, table_exports,
 };
 
 use std::sync::Arc;

@@ -364,6 +364,21 @@ fn browser_checks(www: PathBuf) -> Result<()> {
         } else {
             &[]
         };
+        // `burnin table`'s comparison table in each format, for the page's
+        // "Comparison table" download to be compared with.
+        if name == "ferry-experiment.json" {
+            for ext in ["md", "tex", "csv"] {
+                let table = out.join(format!("{name}.table.{ext}"));
+                output(
+                    Command::new(&cli)
+                        .arg("table")
+                        .arg(&results)
+                        .arg("--output")
+                        .arg(&table),
+                )
+                .ok_or_else(|| format!("burnin table failed on {}", results.display()))?;
+            }
+        }
         for (suffix, args) in figures {
             let svg = out.join(format!("{name}.{suffix}.svg"));
             let mut plot = Command::new(&cli);

@@ -17,6 +17,7 @@ mod progress;
 mod report;
 mod run;
 mod solve;
+mod table;
 mod tables;
 mod validate;
 
@@ -54,6 +55,10 @@ enum Command {
     /// Draw the chart of a results or sweep file as SVG or PNG (the page's
     /// chart: the same views, options and look).
     Plot(plot::Args),
+    /// Write the comparison table of a results or sweep file (published
+    /// bound and burn-in beside the measured regret, slope, burn-in and
+    /// episodes to ε, per learner) as Markdown, LaTeX or CSV.
+    Table(table::Args),
     /// Rewrite a model file in the canonical layout (fields in order, one
     /// transition row per line) on standard output.
     Canon(canon::Args),
@@ -66,7 +71,11 @@ enum Command {
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
-    let writes_to_file = matches!(&cli.command, Command::Generate(g) if g.output.is_some());
+    let writes_to_file = match &cli.command {
+        Command::Generate(g) => g.output.is_some(),
+        Command::Table(t) => t.output.is_some(),
+        _ => false,
+    };
     let result = if writes_to_file {
         Ok(())
     } else {
@@ -102,6 +111,7 @@ fn dispatch(command: Command) -> Result<(), Failure> {
         Command::Merge(a) => merge::merge(&a),
         Command::Bench(a) => bench::bench(&a),
         Command::Plot(a) => plot::plot(&a),
+        Command::Table(a) => table::table(&a),
         Command::Canon(a) => canon::canon(&a),
         Command::Tidy(a) => canon::tidy(&a),
         Command::Generate(a) => generate::generate(a),

@@ -128,6 +128,33 @@ await check('the chart is the core\'s: the page\'s SVG equals `burnin plot`\'s, 
   assert(Math.abs(value - l0.regret_mean[at]) <= 0.051 + 0.005 * l0.regret_mean[at], `read-out value ${value} is the curve's ${l0.regret_mean[at]}`);
 });
 
+await check('the comparison table downloads in the core\'s three formats, as `burnin table` writes them', async (page) => {
+  await openPage(page);
+  const file = 'ferry-experiment.json.results.json';
+  await upload(page, file, readFileSync(join(out, file), 'utf8'));
+  await page.waitForSelector('#results:not([hidden])');
+  const formats = await page.locator('#table-format option').evaluateAll((os) => os.map((o) => `${o.value}:${o.textContent}`));
+  assertEqual(formats.join(','), 'markdown:Markdown,latex:LaTeX,csv:CSV', 'the core\'s formats are offered');
+  for (const ext of ['md', 'tex', 'csv']) {
+    await page.selectOption('#table-format', { index: ['md', 'tex', 'csv'].indexOf(ext) });
+    const t = await downloadText(page, '#export-table');
+    assert(t.name.endsWith(`-table.${ext}`), `file name ${t.name}`);
+    assertEqual(t.text, readFileSync(join(out, `ferry-experiment.json.table.${ext}`), 'utf8'), `.${ext}: the page's table is burnin table's, byte for byte`);
+  }
+  // Results of a run in the page (merged from its workers' shards) come
+  // with the table too: a row per learner, the page's caution at the end.
+  await upload(page, 'ferry-experiment.json', ferry);
+  await page.waitForSelector('#panel-experiment:not([hidden])');
+  await runAndWait(page);
+  assertEqual(await page.inputValue('#table-format'), 'csv', 'the chosen format stays');
+  await page.selectOption('#table-format', 'markdown');
+  const md = (await downloadText(page, '#export-table')).text;
+  const rows = md.split('\n').filter((l) => l.startsWith('| '));
+  assertEqual(rows.length, 2 + ferryCli.learners.length, 'a header, its rule and a row per learner');
+  const caution = await page.textContent('#results .caution');
+  assert(md.trimEnd().endsWith(caution), 'the caption ends with the caution under the results');
+});
+
 await check('results from an earlier build still open, chart and plot', async (page) => {
   await openPage(page);
   const old = readFileSync(join(fixtures, 'results-from-an-earlier-build.json'), 'utf8');
