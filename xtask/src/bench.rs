@@ -72,7 +72,7 @@ const KEPT_HEADING: &str = "## Measured by hand";
 /// The workloads run in rounds on the learning workload's model, in the
 /// order of the tables: the floor (`burnin bench --only floor`: the
 /// cheapest episode loop) and every learner.
-const LEARNERS: [&str; 12] = [
+const LEARNERS: &[&str] = &[
     "floor",
     "mvp",
     "mvp-2021",
@@ -407,7 +407,7 @@ pub fn bench(quick: bool) -> Result<()> {
             .collect();
         step_ns(best(&n))
     };
-    for key in LEARNERS {
+    for &key in LEARNERS {
         let mine: Vec<&Vec<&str>> = rows.iter().filter(|r| r[0] == key).collect();
         if mine.is_empty() {
             continue;
