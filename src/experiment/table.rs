@@ -462,13 +462,12 @@ fn sweep(s: &SweepResults) -> ComparisonTable {
     }
 }
 
-/// The place for a sweep's fitted exponents (issue #31, item 1): one row
-/// per learner with the fitted exponent of its burn-in and of its regret at
-/// K in the swept parameter, each with its interval and the number of
-/// points left out of the fit, beside the exponent its published burn-in
-/// and bound predict. Sweep results do not carry these readings yet, so
-/// there is no such section; when they do, this builds it from them and
-/// every format writes it under the main table.
+/// A sweep's fitted exponents ([`super::scaling`]): one row per learner
+/// with the fitted exponent of its burn-in and of its regret at K in the
+/// size the sweep changes, each with its interval and the number of points
+/// that settled, beside the orders its published burn-in and bound predict;
+/// every format writes it under the main table. None for a sweep without
+/// scaling readings.
 fn scaling_section(sweep: &SweepResults) -> Option<Section> {
     use super::scaling::exponent_text;
     let x = sweep.scaling_in.as_ref()?;
