@@ -116,8 +116,8 @@ fn burn_in_does_not_move_with_the_recording_density_on_100_random_runs() {
 }
 
 /// Every ready experiment (demo-models/experiments), each learner's mean
-/// and each seed read at 32 … 2000 checkpoints. Guest learners are left
-/// out (their curves are read by the same code).
+/// and each seed read at 32 … 2000 checkpoints. Guest learners and sweeps
+/// are left out (their curves are read by the same code).
 #[test]
 fn burn_in_does_not_move_with_the_recording_density_on_the_ready_experiments() {
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models/experiments");
@@ -130,6 +130,11 @@ fn burn_in_does_not_move_with_the_recording_density_on_the_ready_experiments() {
     for path in names {
         let mut exp: Value =
             serde_json::from_str(&std::fs::read_to_string(&path).unwrap()).unwrap();
+        if exp.get("sweep").is_some() {
+            // A sweep's points are read by the same code; the Table 1 sweep
+            // (22.4 million episodes) is too long for this test.
+            continue;
+        }
         if let Some(p) = exp.get("model_path").and_then(Value::as_str) {
             let model = std::fs::read_to_string(dir.join(p)).unwrap();
             exp["model"] = serde_json::from_str(&model).unwrap();

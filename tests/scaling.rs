@@ -106,6 +106,7 @@ fn too_few_settled_points_say_so() {
         published_regret_exponent: Some(0.5),
         published_applies: true,
         published_no_burn_in: false,
+        published_regret_trivial: false,
     };
     assert_eq!(
         sc.burn_in_text("S"),

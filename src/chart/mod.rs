@@ -439,6 +439,9 @@ fn scaling(s: &crate::experiment::SweepResults, burn_in: bool) -> Figure {
         let published = l.scaling.as_ref().and_then(|sc| {
             if burn_in {
                 sc.published_burn_in_exponent
+            } else if sc.published_regret_trivial {
+                // The bound is H·K at every point: no order to draw.
+                None
             } else {
                 sc.published_regret_exponent
             }

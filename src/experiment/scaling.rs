@@ -85,6 +85,11 @@ pub struct Scaling {
     /// The learner has a published bound without a lower-order term (MVP):
     /// its theory predicts no burn-in at all.
     pub published_no_burn_in: bool,
+    /// The published bound at K is the trivial H·K at every point (its
+    /// lower-order term is larger there): it predicts nothing about how
+    /// regret at K grows.
+    #[serde(default)]
+    pub published_regret_trivial: bool,
 }
 
 /// The least-squares exponent of y on x, over the pairs where both are
@@ -116,6 +121,12 @@ pub fn read(points: &[Results], li: usize, x: &[f64], seed: u64) -> Scaling {
         .collect();
     let settled = burn.iter().filter(|b| b.is_finite()).count();
     let bounds: Option<Vec<_>> = ls.iter().map(|l| l.bound.as_ref()).collect();
+    let trivial = bounds.as_ref().is_some_and(|bs| {
+        bs.iter().zip(points).all(|(b, p)| {
+            let hk = p.horizon as f64 * p.episodes as f64;
+            b.values.last().is_some_and(|&v| v >= hk * (1.0 - 1e-12))
+        })
+    });
     let (pub_burn, pub_regret, applies, no_burn_in) = match &bounds {
         Some(bs) => {
             let burn_ins: Option<Vec<f64>> = bs.iter().map(|b| b.burn_in).collect();
@@ -144,6 +155,7 @@ pub fn read(points: &[Results], li: usize, x: &[f64], seed: u64) -> Scaling {
         published_regret_exponent: pub_regret,
         published_applies: applies,
         published_no_burn_in: no_burn_in,
+        published_regret_trivial: trivial,
     }
 }
 
@@ -275,7 +287,9 @@ impl Scaling {
         if let (Some(_), Some((lo, hi))) = (self.regret_exponent, self.regret_exponent_interval) {
             t.push_str(&format!(" [{}, {}]", exponent_text(lo), exponent_text(hi)));
         }
-        if let Some(b) = self.published_regret_exponent {
+        if self.published_regret_trivial {
+            t.push_str("; published: the trivial H·K at every point");
+        } else if let Some(b) = self.published_regret_exponent {
             t.push_str(&format!("; published {x}^{}", exponent_text(b)));
             if !self.published_applies {
                 t.push_str(" (does not apply)");

@@ -502,8 +502,12 @@ fn scaling_section(sweep: &SweepResults) -> Option<Section> {
                 format!("{} of {}", sc.settled_points, sc.points),
                 sc.published_burn_in_text(x),
                 exp_iv(sc.regret_exponent, sc.regret_exponent_interval),
-                sc.published_regret_exponent
-                    .map_or(NONE.to_string(), exponent_text),
+                if sc.published_regret_trivial {
+                    "H·K (trivial)".to_string()
+                } else {
+                    sc.published_regret_exponent
+                        .map_or(NONE.to_string(), exponent_text)
+                },
             ])
         })
         .collect();
