@@ -86,23 +86,17 @@
 //! - Z. Zhang, Y. Chen, J. D. Lee and S. S. Du, arXiv:2307.13586, Table 1
 //!   (EULER's row [V2]).
 
-use super::{LearnRng, Learner, PolicyView, RowCounts, Setting, argmax_random};
+use super::two_sided::TwoSided;
+use super::{LearnRng, Learner, PolicyView, RowCounts, Setting};
 
 pub struct Euler {
     set: Setting,
     scale: f64,
     l: f64,
     counts: Vec<RowCounts>,
-    /// Q̄ and Q̲ of every row as last planned.
-    q_up: Vec<f64>,
-    q_low: Vec<f64>,
-    /// V̄ and V̲, `[h·S + s]`, (H+1)·S entries, row H zero.
-    v_up: Vec<f64>,
-    v_low: Vec<f64>,
-    /// π_h(s), `[h·S + s]`.
-    policy: Vec<u32>,
-    version: u64,
-    updates: u64,
+    /// Q̄, Q̲, V̄, V̲ and the greedy policy as last planned (every value 0
+    /// before the first plan).
+    plan: TwoSided,
 }
 
 /// L = ln(4·S·A·H·T/δ), T = K·H: the paper's ln(4·S·A·T/δ) [R] with S → S·H
@@ -127,117 +121,91 @@ fn reward_bonus(c: &RowCounts, l: f64) -> f64 {
 
 impl Euler {
     pub fn new(set: Setting, bonus_scale: f64) -> Euler {
-        let hs = (set.horizon + 1) * set.states;
         Euler {
             set,
             scale: bonus_scale,
             l: log_factor(&set),
             counts: vec![RowCounts::default(); set.rows()],
-            q_up: vec![0.0; set.rows()],
-            q_low: vec![0.0; set.rows()],
-            v_up: vec![0.0; hs],
-            v_low: vec![0.0; hs],
-            policy: vec![u32::MAX; set.horizon * set.states],
-            version: 0,
-            updates: 0,
+            plan: TwoSided::new(set, false),
         }
     }
 
     /// V̄_h(s) as last planned (0 at h = H and before the first plan).
     pub fn upper_value(&self, h: usize, s: usize) -> f64 {
-        self.v_up[h * self.set.states + s]
+        self.plan.upper_value(h, s)
     }
 
     /// V̲_h(s) as last planned (0 at h = H and before the first plan).
     pub fn lower_value(&self, h: usize, s: usize) -> f64 {
-        self.v_low[h * self.set.states + s]
+        self.plan.lower_value(h, s)
     }
 
     /// Q̄_h(s,a) as last planned.
     pub fn upper_q(&self, h: usize, s: usize, a: usize) -> f64 {
-        self.q_up[self.set.row(h, s, a)]
+        self.plan.upper_q(h, s, a)
     }
 
     /// Q̲_h(s,a) as last planned.
     pub fn lower_q(&self, h: usize, s: usize, a: usize) -> f64 {
-        self.q_low[self.set.row(h, s, a)]
+        self.plan.lower_q(h, s, a)
     }
+}
 
-    /// Q̄ and Q̲ of row (h, s, a) from the counts and V̄_{h+1}, V̲_{h+1}.
-    fn row_values(&self, h: usize, s: usize, a: usize) -> (f64, f64) {
-        let set = &self.set;
-        let hh = set.horizon as f64;
-        let clip = (set.horizon - h) as f64;
-        let c = &self.counts[set.row(h, s, a)];
-        if c.n == 0 {
-            return (clip, 0.0);
-        }
-        let base = (h + 1) * set.states;
-        let (up, low) = (
-            &self.v_up[base..base + set.states],
-            &self.v_low[base..base + set.states],
-        );
-        let (mut m_up, mut m2_up, mut m_low, mut gap2) = (0.0, 0.0, 0.0, 0.0);
-        for &(y, k) in &c.next {
-            let (u, w, k) = (up[y as usize], low[y as usize], k as f64);
-            m_up += k * u;
-            m2_up += k * u * u;
-            m_low += k * w;
-            gap2 += k * (u - w) * (u - w);
-        }
-        let l = self.l;
-        let n = c.n as f64;
-        let (pv_up, pv_low) = (m_up / n, m_low / n);
-        let var = (m2_up / n - pv_up * pv_up).max(0.0);
-        let gap = (gap2 / n).sqrt();
-        // B_v = √(2L), B_p = H·√(2L), J = H·L/3.
-        let b_v = (2.0 * l).sqrt();
-        let (b_p, j) = (hh * b_v, hh * l / 3.0);
-        let transition = (2.0 * var * l / n).sqrt() + b_v * gap / n.sqrt() + (4.0 * j + b_p) / n;
-        let bonus = self.scale * (reward_bonus(c, l) + transition);
-        let r = c.mean_reward();
-        ((r + pv_up + bonus).min(clip), (r + pv_low - bonus).max(0.0))
+/// Q̄ and Q̲ of a row of step h with counts `c`, from V̄_{h+1} (`up`) and
+/// V̲_{h+1} (`low`); L is [`log_factor`], `scale` the bonus scale.
+fn row_values(
+    set: &Setting,
+    h: usize,
+    c: &RowCounts,
+    l: f64,
+    scale: f64,
+    up: &[f64],
+    low: &[f64],
+) -> (f64, f64) {
+    let hh = set.horizon as f64;
+    let clip = (set.horizon - h) as f64;
+    if c.n == 0 {
+        return (clip, 0.0);
     }
+    let (mut m_up, mut m2_up, mut m_low, mut gap2) = (0.0, 0.0, 0.0, 0.0);
+    for &(y, k) in &c.next {
+        let (u, w, k) = (up[y as usize], low[y as usize], k as f64);
+        m_up += k * u;
+        m2_up += k * u * u;
+        m_low += k * w;
+        gap2 += k * (u - w) * (u - w);
+    }
+    let n = c.n as f64;
+    let (pv_up, pv_low) = (m_up / n, m_low / n);
+    let var = (m2_up / n - pv_up * pv_up).max(0.0);
+    let gap = (gap2 / n).sqrt();
+    // B_v = √(2L), B_p = H·√(2L), J = H·L/3.
+    let b_v = (2.0 * l).sqrt();
+    let (b_p, j) = (hh * b_v, hh * l / 3.0);
+    let transition = (2.0 * var * l / n).sqrt() + b_v * gap / n.sqrt() + (4.0 * j + b_p) / n;
+    let bonus = scale * (reward_bonus(c, l) + transition);
+    let r = c.mean_reward();
+    ((r + pv_up + bonus).min(clip), (r + pv_low - bonus).max(0.0))
 }
 
 impl Learner for Euler {
     fn begin_episode(&mut self, rng: &mut LearnRng) {
-        let (s_n, a_n) = (self.set.states, self.set.actions);
-        let mut q = vec![0.0; a_n];
-        let mut changed = false;
-        for h in (0..self.set.horizon).rev() {
-            for s in 0..s_n {
-                for (a, x) in q.iter_mut().enumerate() {
-                    let (up, low) = self.row_values(h, s, a);
-                    let row = self.set.row(h, s, a);
-                    self.q_up[row] = up;
-                    self.q_low[row] = low;
-                    *x = up;
-                }
-                let best = argmax_random(&q, rng);
-                let i = h * s_n + s;
-                self.v_up[i] = q[best];
-                self.v_low[i] = self.q_low[self.set.row(h, s, best)];
-                changed |= self.policy[i] != best as u32;
-                self.policy[i] = best as u32;
-            }
-        }
-        if changed {
-            self.version += 1;
-        }
-        self.updates += 1;
+        let (set, l, scale, counts) = (self.set, self.l, self.scale, &self.counts);
+        self.plan.replan(rng, |h, s, a, up, low| {
+            row_values(&set, h, &counts[set.row(h, s, a)], l, scale, up, low)
+        });
     }
 
     fn policy(&self) -> PolicyView<'_> {
-        PolicyView::Greedy(&self.policy)
+        PolicyView::Greedy(self.plan.policy())
     }
 
     fn policy_version(&self) -> u64 {
-        self.version
+        self.plan.version()
     }
 
     fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
-        self.policy[h * self.set.states + s] as usize
+        self.plan.action(h, s)
     }
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
@@ -245,6 +213,6 @@ impl Learner for Euler {
     }
 
     fn model_updates(&self) -> u64 {
-        self.updates
+        self.plan.updates()
     }
 }

@@ -28,6 +28,7 @@ mod plan;
 mod psrl;
 mod qlearn;
 mod rlsvi;
+mod two_sided;
 mod ucb_advantage;
 mod ucbvi;
 

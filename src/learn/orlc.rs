@@ -91,7 +91,8 @@
 //!   Episodic Reinforcement Learning", ML@CMU blog, 2019 (the certificate's
 //!   two ends, [V2]).
 
-use super::{LearnRng, Learner, PolicyView, RowCounts, Setting, argmax_random};
+use super::two_sided::TwoSided;
+use super::{LearnRng, Learner, PolicyView, RowCounts, Setting};
 
 /// √12, the factor on the empirical standard deviation in ψ [R].
 const SQRT_12: f64 = 3.464_101_615_137_754_6;
@@ -128,136 +129,90 @@ pub struct Orlc {
     counts: Vec<RowCounts>,
     /// φ(n) of each row at its current count.
     phi: Vec<f64>,
-    /// Q̃ and Q̲ of every row, as last planned.
-    q_up: Vec<f64>,
-    q_low: Vec<f64>,
-    /// Ṽ_h(s) and V̲_h(s), `[h·S + s]`, (H+1)·S (row H zero).
-    v_up: Vec<f64>,
-    v_low: Vec<f64>,
-    policy: Vec<u32>,
-    version: u64,
-    updates: u64,
+    /// Q̃, Q̲, Ṽ, V̲ and π_k as last planned (Q̃ and Ṽ at H − h before the
+    /// first plan, so the first certificate is the whole range).
+    plan: TwoSided,
 }
 
 impl Orlc {
     /// ORLC with the width ψ multiplied by `bonus_scale` (1 = the constants
     /// of the module doc).
     pub fn new(set: Setting, bonus_scale: f64) -> Orlc {
-        let (s_n, h_n) = (set.states, set.horizon);
-        let mut v_up = vec![0.0; (h_n + 1) * s_n];
-        for h in 0..h_n {
-            v_up[h * s_n..(h + 1) * s_n].fill((h_n - h) as f64);
-        }
-        let mut q_up = vec![0.0; set.rows()];
-        for h in 0..h_n {
-            let rows = h * s_n * set.actions..(h + 1) * s_n * set.actions;
-            q_up[rows].fill((h_n - h) as f64);
-        }
         Orlc {
             set,
             scale: bonus_scale,
             delta_prime: delta_prime(&set),
             counts: vec![RowCounts::default(); set.rows()],
             phi: vec![1.0; set.rows()],
-            q_low: vec![0.0; set.rows()],
-            q_up,
-            v_up,
-            v_low: vec![0.0; (h_n + 1) * s_n],
-            policy: vec![u32::MAX; h_n * s_n],
-            version: 0,
-            updates: 0,
+            plan: TwoSided::new(set, true),
         }
     }
 
     /// Ṽ_h(s) (h from 0) as last planned: an upper confidence bound on V*_h(s).
     pub fn upper_value(&self, h: usize, s: usize) -> f64 {
-        self.v_up[h * self.set.states + s]
+        self.plan.upper_value(h, s)
     }
 
     /// V̲_h(s) (h from 0) as last planned: a lower confidence bound on the
     /// value V^{π_k}_h(s) of the policy planned.
     pub fn lower_value(&self, h: usize, s: usize) -> f64 {
-        self.v_low[h * self.set.states + s]
+        self.plan.lower_value(h, s)
     }
 
     /// Q̃_h(s,a) as last planned.
     pub fn upper_q(&self, h: usize, s: usize, a: usize) -> f64 {
-        self.q_up[self.set.row(h, s, a)]
+        self.plan.upper_q(h, s, a)
     }
 
     /// Q̲_h(s,a) as last planned.
     pub fn lower_q(&self, h: usize, s: usize, a: usize) -> f64 {
-        self.q_low[self.set.row(h, s, a)]
+        self.plan.lower_q(h, s, a)
     }
 }
 
 impl Learner for Orlc {
     fn begin_episode(&mut self, rng: &mut LearnRng) {
         let set = self.set;
-        let (s_n, a_n, h_n) = (set.states, set.actions, set.horizon);
-        let inv_h = 1.0 / h_n as f64;
-        let scale = self.scale;
-        let mut changed = false;
-        for h in (0..h_n).rev() {
-            let vmax = (h_n - h) as f64;
-            let vmax_next = vmax - 1.0;
-            let (up_now, up_next) = self.v_up.split_at_mut((h + 1) * s_n);
-            let (low_now, low_next) = self.v_low.split_at_mut((h + 1) * s_n);
-            let (up_next, low_next) = (&up_next[..s_n], &low_next[..s_n]);
-            for s in 0..s_n {
-                let first = set.row(h, s, 0);
-                for a in 0..a_n {
-                    let row = first + a;
-                    let c = &self.counts[row];
-                    let (up, low) = if c.n == 0 {
-                        (vmax, 0.0)
-                    } else {
-                        let (mut m_up, mut m2_up, mut m_low) = (0.0, 0.0, 0.0);
-                        for &(y, k) in &c.next {
-                            let (k, y) = (k as f64, y as usize);
-                            let u = up_next[y];
-                            m_up += k * u;
-                            m2_up += k * u * u;
-                            m_low += k * low_next[y];
-                        }
-                        let inv_n = 1.0 / c.n as f64;
-                        let (m_up, m2_up, m_low) = (m_up * inv_n, m2_up * inv_n, m_low * inv_n);
-                        let sd = (m2_up - m_up * m_up).max(0.0).sqrt();
-                        let phi = self.phi[row];
-                        let psi = scale
-                            * ((1.0 + SQRT_12 * sd) * phi
-                                + PHI_SQUARED * vmax_next * phi * phi
-                                + inv_h * (m_up - m_low));
-                        let r = c.mean_reward();
-                        ((r + m_up + psi).min(vmax), (r + m_low - psi).max(0.0))
-                    };
-                    self.q_up[row] = up;
-                    self.q_low[row] = low;
-                }
-                let best = argmax_random(&self.q_up[first..first + a_n], rng);
-                up_now[h * s_n + s] = self.q_up[first + best];
-                low_now[h * s_n + s] = self.q_low[first + best];
-                let slot = &mut self.policy[h * s_n + s];
-                changed |= *slot != best as u32;
-                *slot = best as u32;
+        let inv_h = 1.0 / set.horizon as f64;
+        let (scale, counts, phi) = (self.scale, &self.counts, &self.phi);
+        self.plan.replan(rng, |h, s, a, up_next, low_next| {
+            let vmax = (set.horizon - h) as f64;
+            let row = set.row(h, s, a);
+            let c = &counts[row];
+            if c.n == 0 {
+                return (vmax, 0.0);
             }
-        }
-        if changed {
-            self.version += 1;
-        }
-        self.updates += 1;
+            let (mut m_up, mut m2_up, mut m_low) = (0.0, 0.0, 0.0);
+            for &(y, k) in &c.next {
+                let (k, y) = (k as f64, y as usize);
+                let u = up_next[y];
+                m_up += k * u;
+                m2_up += k * u * u;
+                m_low += k * low_next[y];
+            }
+            let inv_n = 1.0 / c.n as f64;
+            let (m_up, m2_up, m_low) = (m_up * inv_n, m2_up * inv_n, m_low * inv_n);
+            let sd = (m2_up - m_up * m_up).max(0.0).sqrt();
+            let phi = phi[row];
+            let psi = scale
+                * ((1.0 + SQRT_12 * sd) * phi
+                    + PHI_SQUARED * (vmax - 1.0) * phi * phi
+                    + inv_h * (m_up - m_low));
+            let r = c.mean_reward();
+            ((r + m_up + psi).min(vmax), (r + m_low - psi).max(0.0))
+        });
     }
 
     fn policy(&self) -> PolicyView<'_> {
-        PolicyView::Greedy(&self.policy)
+        PolicyView::Greedy(self.plan.policy())
     }
 
     fn policy_version(&self) -> u64 {
-        self.version
+        self.plan.version()
     }
 
     fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
-        self.policy[h * self.set.states + s] as usize
+        self.plan.action(h, s)
     }
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, _rng: &mut LearnRng) {
@@ -268,7 +223,7 @@ impl Learner for Orlc {
     }
 
     fn model_updates(&self) -> u64 {
-        self.updates
+        self.plan.updates()
     }
 
     /// Ṽ₁(s) − V̲₁(s): ORLC's optimality certificate for the coming episode.
