@@ -12,8 +12,8 @@
 use serde::Serialize;
 
 use super::{
-    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, PolicyView, Psrl, QUcb, Rlsvi, Setting, Ucb1,
-    Ucbvi, Uniform,
+    EpsGreedy, LearnRng, Learner, Mvp, MvpSamples, Opsrl, PolicyView, Psrl, QUcb, Rlsvi, Setting,
+    Ucb1, Ucbvi, Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -27,6 +27,7 @@ pub enum AlgorithmKind {
     QUcbHoeffding,
     QUcbBernstein,
     Psrl,
+    Opsrl,
     Rlsvi,
     Ucb1,
     EpsGreedy,
@@ -216,6 +217,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bound: Some(theory::psrl),
     },
     AlgorithmInfo {
+        kind: AlgorithmKind::Opsrl,
+        key: "opsrl",
+        name: "OPSRL (optimistic posterior sampling)",
+        param: Some(&BONUS),
+        reference: "Tiapkin, Belomestny, Calandriello, Moulines, Munos, Naumov, Rowland, Valko & Ménard, Optimistic Posterior Sampling for Reinforcement Learning with Few Samples and Tight Guarantees, NeurIPS 2022, arXiv:2209.14414 (abstract read; the algorithm's constants recalled)",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::opsrl),
+    },
+    AlgorithmInfo {
         kind: AlgorithmKind::Rlsvi,
         key: "rlsvi",
         name: "RLSVI (randomised value functions)",
@@ -378,6 +389,7 @@ impl Algorithm {
             AlgorithmKind::QUcbHoeffding => AnyLearner::QUcb(QUcb::new(set, x, false)),
             AlgorithmKind::QUcbBernstein => AnyLearner::QUcb(QUcb::new(set, x, true)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
+            AlgorithmKind::Opsrl => AnyLearner::Opsrl(Opsrl::new(set, x)),
             AlgorithmKind::Rlsvi => AnyLearner::Rlsvi(Rlsvi::new(set, x)),
             AlgorithmKind::Ucb1 => AnyLearner::Ucb1(Ucb1::new(set.actions, x)),
             AlgorithmKind::EpsGreedy => AnyLearner::EpsGreedy(EpsGreedy::new(set, x)),
@@ -394,6 +406,7 @@ pub enum AnyLearner {
     Ucbvi(Ucbvi),
     QUcb(QUcb),
     Psrl(Psrl),
+    Opsrl(Opsrl),
     Rlsvi(Rlsvi),
     Ucb1(Ucb1),
     EpsGreedy(EpsGreedy),
@@ -414,6 +427,7 @@ macro_rules! with_learner {
             $crate::learn::AnyLearner::Ucbvi($l) => $body,
             $crate::learn::AnyLearner::QUcb($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
+            $crate::learn::AnyLearner::Opsrl($l) => $body,
             $crate::learn::AnyLearner::Rlsvi($l) => $body,
             $crate::learn::AnyLearner::Ucb1($l) => $body,
             $crate::learn::AnyLearner::EpsGreedy($l) => $body,

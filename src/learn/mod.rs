@@ -21,6 +21,7 @@ mod contract;
 mod counts;
 mod guest;
 mod mvp;
+mod opsrl;
 mod plan;
 mod psrl;
 mod qlearn;
@@ -41,6 +42,10 @@ pub use guest::{
 pub use mvp::{
     FrozenStats, Mvp, MvpSamples, largest_bonus as mvp_largest_bonus, log_factor as mvp_log_factor,
     visits_for_bonus_below_h as mvp_visits_for_bonus_below_h,
+};
+pub use opsrl::{
+    Opsrl, OpsrlParams, dirichlet as opsrl_dirichlet, log_term as opsrl_log_term,
+    optimistic_probability as opsrl_optimistic_probability, samples as opsrl_samples,
 };
 pub use plan::{Plan, StaleRows, argmax_random};
 pub use psrl::Psrl;
