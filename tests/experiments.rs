@@ -55,7 +55,7 @@ fn bad_experiments_name_every_problem() {
             "episodes: expected a whole number in 1..=1000000000, found 0",
             "delta: expected 0 < delta < 1, found 1.5",
             "learners[0].epsilon: mvp takes no epsilon",
-            "learners[1].algorithm: unknown algorithm \"ucb9\"; known ones are mvp, mvp-2021, ucbvi-hoeffding, ucbvi-bernstein, euler, orlc, q-ucb-hoeffding, q-ucb-bernstein, ucb-advantage, q-early-settled, psrl, rlsvi, ucb1, eps-greedy, uniform",
+            "learners[1].algorithm: unknown algorithm \"ucb9\"; known ones are mvp, mvp-2021, ucbvi-hoeffding, ucbvi-bernstein, euler, orlc, q-ucb-hoeffding, q-ucb-bernstein, ucb-advantage, q-early-settled, psrl, opsrl, rlsvi, ucb1, eps-greedy, uniform",
         ]
     );
     assert_eq!(
@@ -293,6 +293,7 @@ fn every_demo_model_runs_with_every_learner() {
             json!({"algorithm": "q-ucb-bernstein"}),
             json!({"algorithm": "q-early-settled"}),
             json!({"algorithm": "psrl"}),
+            json!({"algorithm": "opsrl"}),
             json!({"algorithm": "rlsvi"}),
             json!({"algorithm": "eps-greedy"}),
             json!({"algorithm": "uniform"}),

@@ -12,8 +12,8 @@
 use serde::Serialize;
 
 use super::{
-    EpsGreedy, Euler, LearnRng, Learner, Mvp, MvpSamples, Orlc, PolicyView, Psrl, QEarlySettled,
-    QUcb, Rlsvi, Setting, Ucb1, UcbAdvantage, Ucbvi, Uniform,
+    EpsGreedy, Euler, LearnRng, Learner, Mvp, MvpSamples, Opsrl, Orlc, PolicyView, Psrl,
+    QEarlySettled, QUcb, Rlsvi, Setting, Ucb1, UcbAdvantage, Ucbvi, Uniform,
 };
 use crate::theory::{self, Bound};
 
@@ -31,6 +31,7 @@ pub enum AlgorithmKind {
     UcbAdvantage,
     QEarlySettled,
     Psrl,
+    Opsrl,
     Rlsvi,
     Ucb1,
     EpsGreedy,
@@ -260,6 +261,16 @@ pub static ALGORITHMS: &[AlgorithmInfo] = &[
         bound: Some(theory::psrl),
     },
     AlgorithmInfo {
+        kind: AlgorithmKind::Opsrl,
+        key: "opsrl",
+        name: "OPSRL (optimistic posterior sampling)",
+        param: Some(&BONUS),
+        reference: "Tiapkin, Belomestny, Calandriello, Moulines, Munos, Naumov, Rowland, Valko & Ménard, Optimistic Posterior Sampling for Reinforcement Learning with Few Samples and Tight Guarantees, NeurIPS 2022, arXiv:2209.14414 (abstract read; the algorithm's constants recalled)",
+        bandit_only: false,
+        has_bound: true,
+        bound: Some(theory::opsrl),
+    },
+    AlgorithmInfo {
         kind: AlgorithmKind::Rlsvi,
         key: "rlsvi",
         name: "RLSVI (randomised value functions)",
@@ -426,6 +437,7 @@ impl Algorithm {
             AlgorithmKind::UcbAdvantage => AnyLearner::UcbAdvantage(UcbAdvantage::new(set, x)),
             AlgorithmKind::QEarlySettled => AnyLearner::QEarlySettled(QEarlySettled::new(set, x)),
             AlgorithmKind::Psrl => AnyLearner::Psrl(Psrl::new(set, x)),
+            AlgorithmKind::Opsrl => AnyLearner::Opsrl(Opsrl::new(set, x)),
             AlgorithmKind::Rlsvi => AnyLearner::Rlsvi(Rlsvi::new(set, x)),
             AlgorithmKind::Ucb1 => AnyLearner::Ucb1(Ucb1::new(set.actions, x)),
             AlgorithmKind::EpsGreedy => AnyLearner::EpsGreedy(EpsGreedy::new(set, x)),
@@ -446,6 +458,7 @@ pub enum AnyLearner {
     UcbAdvantage(UcbAdvantage),
     QEarlySettled(QEarlySettled),
     Psrl(Psrl),
+    Opsrl(Opsrl),
     Rlsvi(Rlsvi),
     Ucb1(Ucb1),
     EpsGreedy(EpsGreedy),
@@ -470,6 +483,7 @@ macro_rules! with_learner {
             $crate::learn::AnyLearner::UcbAdvantage($l) => $body,
             $crate::learn::AnyLearner::QEarlySettled($l) => $body,
             $crate::learn::AnyLearner::Psrl($l) => $body,
+            $crate::learn::AnyLearner::Opsrl($l) => $body,
             $crate::learn::AnyLearner::Rlsvi($l) => $body,
             $crate::learn::AnyLearner::Ucb1($l) => $body,
             $crate::learn::AnyLearner::EpsGreedy($l) => $body,

@@ -23,6 +23,7 @@ mod early_settled;
 mod euler;
 mod guest;
 mod mvp;
+mod opsrl;
 mod orlc;
 mod plan;
 mod psrl;
@@ -50,6 +51,10 @@ pub use guest::{
 pub use mvp::{
     FrozenStats, Mvp, MvpSamples, largest_bonus as mvp_largest_bonus, log_factor as mvp_log_factor,
     visits_for_bonus_below_h as mvp_visits_for_bonus_below_h,
+};
+pub use opsrl::{
+    Opsrl, OpsrlParams, dirichlet as opsrl_dirichlet, log_term as opsrl_log_term,
+    optimistic_probability as opsrl_optimistic_probability, samples as opsrl_samples,
 };
 pub use orlc::{Orlc, delta_prime as orlc_delta_prime, phi as orlc_phi};
 pub use plan::{Plan, StaleRows, argmax_random};
