@@ -4,8 +4,8 @@
 //! background by at least 3:1 (WCAG 2.1, non-text contrast), every pair
 //! stays apart for readers with protanopia, deuteranopia and tritanopia
 //! (simulated with the matrices of Machado, Oliveira & Fernandes 2009), and
-//! none is within ΔE 8 of a stock colour of common plotting palettes (tests/palette.rs lists them); tests/palette.rs
-//! checks all three. The page's transition graph colours actions with them
+//! none is within ΔE 8 of a stock colour of common plotting palettes;
+//! tests/palette.rs checks all three and lists those palettes. The page's transition graph colours actions with them
 //! (through the catalogue).
 
 /// An sRGB colour.

@@ -200,7 +200,7 @@ pub static GENERATORS: &[GeneratorInfo] = &[
     GeneratorInfo {
         kind: "river",
         name: "River chain",
-        about: "River-swim-style chain (after Strehl & Littman 2008).",
+        about: "The RiverSwim chain, a published construction (Strehl & Littman, JCSS 2008).",
         source: "Strehl & Littman, An analysis of model-based Interval Estimation for Markov Decision Processes, J. Computer and System Sciences 74(8), 2008",
         seeded: false,
         params: river::PARAMS,
