@@ -76,7 +76,9 @@ export class ExperimentView {
     });
     /** The user's learners loaded in this page: name → {source, file}. Never saved unless kept. */
     this.guests = new Map();
-    $('add-guest').addEventListener('click', () => $('guest-file').click());
+    $('add-guest').addEventListener('click', () => this.showGuestContract());
+    $('guest-add-choose').addEventListener('click', () => { $('guest-add').close(); $('guest-file').click(); });
+    $('guest-add-close').addEventListener('click', () => $('guest-add').close());
     $('guest-file').addEventListener('change', (e) => { const f = e.target.files[0]; e.target.value = ''; if (f) this.loadGuestFile(f); });
     const drop = $('guest-drop');
     drop.addEventListener('dragover', (e) => { e.preventDefault(); e.stopPropagation(); drop.classList.add('over'); });
@@ -247,6 +249,20 @@ export class ExperimentView {
   /** Rebuilds every row's algorithm menu, keeping each row's choice. */
   refreshAlgorithmMenus() {
     for (const sel of this.rows.querySelectorAll('select')) this.fillAlgorithms(sel, sel.value);
+  }
+
+  /** The "Add your learner…" dialog: the contract's first call and the smallest module, read from the file it offers. */
+  async showGuestContract() {
+    const code = $('guest-add-code');
+    $('guest-add').showModal();
+    if (code.textContent) return;
+    try {
+      const r = await fetch($('guest-add-download').href);
+      if (!r.ok) throw new Error(`HTTP ${r.status}`);
+      code.textContent = await r.text();
+    } catch (err) {
+      code.textContent = `examples/smallest.mjs could not be read (${err.message}); docs/formats.md, "Guest learners", shows it.`;
+    }
   }
 
   /** The name a learner file gives: its base name, in the letters a name may use. */
