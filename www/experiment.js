@@ -41,6 +41,9 @@ export const resultsOf = (doc, experiment = null) => ({
   text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, chartText: doc.chartText, readings: doc.readings, scaling: doc.scaling, tables: doc.tables || [], experiment,
 });
 
+/** Why results opened from a results file cannot go to the library. */
+const SAVE_WHY_NOT = 'Not in the library: a results file does not hold the experiment that made it, and a library entry keeps both. Keep the file itself (Results JSON), or open the experiment and run it.';
+
 /** Resolves in a later task (after the browser has had its turn). */
 const nextTask = () => new Promise((resolve) => setTimeout(resolve, 0));
 
@@ -620,7 +623,11 @@ export class ExperimentView {
     $('export-cells').disabled = !anyCells || !this.results.cellsCsv;
     for (const o of $('heat-view').options) if (o.value !== 'visits') o.disabled = !decomposed || (o.value === 'regret-diff' && data.learners.length < 2);
     if ($('heat-view').selectedOptions[0]?.disabled) $('heat-view').value = 'visits';
+    // A results file does not hold the experiment that made it, which a
+    // library entry keeps beside its results: the page says so.
     $('save-results').disabled = !r.experiment;
+    $('save-results').title = r.experiment ? 'Keep the model, the experiment and these results in this browser' : SAVE_WHY_NOT;
+    $('save-results-why').hidden = Boolean(r.experiment);
     $('results').hidden = false;
     const heatSel = $('heat-learner');
     heatSel.replaceChildren();
@@ -872,6 +879,8 @@ export class ExperimentView {
     // A caption the user wrote is kept for these results until new ones come.
     $('present-caption').value = this.presentCaption ?? this.chart.caption(this.chartOptions(true));
     $('presenter').hidden = false;
+    // The page under the presentation does not scroll, so its scrollbar does not show through.
+    document.documentElement.classList.add('presenting');
     this.drawPresent();
     $('present-close').focus();
   }
@@ -887,6 +896,7 @@ export class ExperimentView {
 
   closePresent() {
     $('presenter').hidden = true;
+    document.documentElement.classList.remove('presenting');
     $('present').focus();
   }
 }
