@@ -209,7 +209,7 @@ pub static GENERATORS: &[GeneratorInfo] = &[
     GeneratorInfo {
         kind: "drift-grid",
         name: "Drift grid",
-        about: "Rectangle of cells whose moves drift sideways, with one paying goal cell.",
+        about: "Board of cells c0r0, c1r0, … whose moves drift sideways, from a start inside it to one paying goal cell.",
         source: "common practice (grids with slip appear throughout the literature; no single source)",
         seeded: false,
         params: drift_grid::PARAMS,
