@@ -1,6 +1,6 @@
 //! Generators: valid, reproducible models with the structure their sources describe.
 
-use burnin::generate::{Bandit, DriftGrid, Garnet, Lock, LowerBound, RiverSwim};
+use burnin::generate::{Bandit, DriftGrid, Garnet, Lock, LowerBound, RiverChain};
 use burnin::solve::{Policy, evaluate, solve};
 use burnin::{Mdp, parse_model, write_model};
 use ndarray::Array3;
@@ -114,40 +114,68 @@ fn lock_pays_one_to_the_right_code_and_a_to_the_minus_h_to_a_guesser() {
 
 #[test]
 fn drift_grid_without_slip_is_worth_the_steps_left_after_the_shortest_path() {
-    // Derived by hand: from (0,0) the goal (x, y) is x + y moves away; every
-    // step from arrival on pays 1. By default the goal is one in from the
-    // east edge on the northern row: (w−2, h−1).
-    let grid = |goal_column, goal_row| DriftGrid {
+    // Derived by hand: from the start (a, b) the goal (x, y) is |x − a| +
+    // |y − b| moves away; every step from arrival on pays 1. By default the
+    // start is (⌊w/4⌋, ⌊h/2⌋) and the goal its mirror through the board's
+    // centre, (w − 1 − a, h − 1 − b).
+    let grid = |start: Option<(usize, usize)>, goal: Option<(usize, usize)>| DriftGrid {
         width: 4,
         height: 3,
         slip: 0.0,
         horizon: 12,
         goal_reward: 1.0,
-        goal_column,
-        goal_row,
+        start_column: start.map(|s| s.0),
+        start_row: start.map(|s| s.1),
+        goal_column: goal.map(|g| g.0),
+        goal_row: goal.map(|g| g.1),
     };
+    // 4×3: start (1, 1), goal (2, 1), one move apart.
     let m = grid(None, None).generate().unwrap();
-    assert_eq!(solve(&m).optimal_value, (12 - 4) as f64);
+    assert_eq!(solve(&m).optimal_value, (12 - 1) as f64);
+    assert_eq!(m.start()[4 + 1], 1.0);
     round_trips(&m);
-    let corner = grid(Some(3), Some(0)).generate().unwrap();
+    let corner = grid(None, Some((3, 0))).generate().unwrap();
     assert_eq!(solve(&corner).optimal_value, (12 - 3) as f64);
-    // The default is 5 wide and 3 high, its goal 3 + 2 moves away; slip
-    // makes the goal later in expectation.
+    let from_corner = grid(Some((0, 0)), Some((3, 2))).generate().unwrap();
+    assert_eq!(solve(&from_corner).optimal_value, (12 - 5) as f64);
+    // The default is 7 wide and 4 high: start c1r2 and goal c5r1, neither
+    // on an edge, 4 + 1 moves apart; slip makes the goal later in
+    // expectation.
     let d = DriftGrid::default();
     assert_eq!(
-        (d.width, d.height, d.goal_column, d.goal_row),
-        (5, 3, None, None)
+        (d.width, d.height, d.start_column, d.start_row),
+        (7, 4, None, None)
     );
+    assert_eq!((d.goal_column, d.goal_row), (None, None));
     let slippery = d.generate().unwrap();
+    let labels = slippery.states();
+    let start = slippery.start().iter().position(|&p| p == 1.0).unwrap();
+    assert_eq!(labels[start], "c1r2");
+    assert_eq!(labels[7 + 5], "c5r1");
+    assert_eq!(slippery.actions(), ["c+1", "r+1", "c-1", "r-1"]);
     assert!(solve(&slippery).optimal_value < (12 - 5) as f64);
+    let sure = DriftGrid { slip: 0.0, ..d }.generate().unwrap();
+    assert_eq!(solve(&sure).optimal_value, (12 - 5) as f64);
+    // A one-column board of odd height: the mirror of the middle cell is
+    // itself, so the goal is the last cell, one move up.
+    let column = DriftGrid {
+        width: 1,
+        height: 3,
+        slip: 0.0,
+        ..DriftGrid::default()
+    };
+    assert_eq!(solve(&column.generate().unwrap()).optimal_value, 11.0);
     // The goal may not be the start cell, nor outside the grid.
+    let e = grid(None, Some((1, 1))).generate().unwrap_err();
+    assert_eq!(e.param, "goal_column");
+    assert!(e.message.contains("c1r1"), "{e}");
     assert_eq!(
-        grid(Some(0), Some(0)).generate().unwrap_err().param,
-        "goal_column"
+        grid(None, Some((1, 3))).generate().unwrap_err().message,
+        "3 is outside 0..=2"
     );
     assert_eq!(
-        grid(Some(1), Some(3)).generate().unwrap_err().message,
-        "3 is outside 0..=2"
+        grid(Some((4, 0)), None).generate().unwrap_err().param,
+        "start_column"
     );
 }
 
@@ -155,7 +183,7 @@ fn drift_grid_without_slip_is_worth_the_steps_left_after_the_shortest_path() {
 fn river_chain_with_a_sure_current_reaches_the_far_end() {
     // Derived by hand: with p_forward = 1 the far end is n−1 steps away and
     // pays big_reward at every later step.
-    let m = RiverSwim {
+    let m = RiverChain {
         states: 5,
         horizon: 10,
         p_forward: 1.0,
@@ -166,9 +194,46 @@ fn river_chain_with_a_sure_current_reaches_the_far_end() {
     .generate()
     .unwrap();
     assert_eq!(solve(&m).optimal_value, 6.0);
-    let d = RiverSwim::default().generate().unwrap();
+    let d = RiverChain::default().generate().unwrap();
     assert_eq!((d.n_states(), d.n_actions()), (6, 2));
     round_trips(&d);
+}
+
+/// The river chain is a published construction (Strehl & Littman 2008),
+/// kept as a reference: cited in the catalogue like Garnet and the
+/// lower-bound family, and in no demo, no ready experiment and no default
+/// (the page's generator form opens on the catalogue's first entry).
+#[test]
+fn the_river_chain_is_cited_and_in_no_demo_or_default() {
+    let river = burnin::generate::catalog::info("river").unwrap();
+    assert!(
+        river.source.contains("Strehl & Littman"),
+        "{}",
+        river.source
+    );
+    assert!(river.about.contains("Strehl & Littman"), "{}", river.about);
+    assert_ne!(burnin::generate::GENERATORS[0].kind, "river");
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-models");
+    let mut files = Vec::new();
+    for dir in [root.clone(), root.join("experiments")] {
+        for e in std::fs::read_dir(dir).unwrap() {
+            let p = e.unwrap().path();
+            if p.extension().is_some_and(|e| e == "json") {
+                files.push(p);
+            }
+        }
+    }
+    assert!(files.len() >= 8, "{files:?}");
+    for f in files {
+        let text = std::fs::read_to_string(&f).unwrap();
+        let v: serde_json::Value = serde_json::from_str(&text).unwrap();
+        assert_ne!(v["generator"]["kind"], "river", "{}", f.display());
+        assert!(
+            !text.to_lowercase().contains("river"),
+            "{} mentions a river",
+            f.display()
+        );
+    }
 }
 
 #[test]

@@ -13,8 +13,11 @@
 //!   IEEE TVCG 15(6), 2009; the matrix entries are from memory). The
 //!   threshold 20 is ours: about ten times the just-noticeable difference;
 //! - no colour within ΔE*ab = 8 of a stock colour of widely used plotting
-//!   defaults (matplotlib's and d3's category-10, ColorBrewer Set1, the
-//!   Okabe–Ito set; hex values from memory).
+//!   defaults (matplotlib's and d3's category-10, ColorBrewer Set1 and
+//!   Dark2, the Okabe–Ito set, Tableau 10, Plotly's default and Dark24,
+//!   seaborn's deep, muted, bright, dark and colorblind, Paul Tol's bright,
+//!   vibrant and muted, MATLAB's default lines, Observable 10; hex values
+//!   from memory).
 
 const CARD: [u8; 3] = [0xff, 0xfd, 0xf8];
 
@@ -156,7 +159,36 @@ fn no_colour_is_a_stock_plotting_colour() {
         "#999999", // Okabe–Ito
         "#e69f00", "#56b4e9", "#009e73", "#f0e442", "#0072b2", "#d55e00", "#cc79a7",
         // ColorBrewer YlGnBu's blue, used by many defaults
-        "#2c7fb8",
+        "#2c7fb8", // ColorBrewer Dark2
+        "#1b9e77", "#d95f02", "#7570b3", "#e7298a", "#66a61e", "#e6ab02", "#a6761d", "#666666",
+        // Tableau 10
+        "#4e79a7", "#f28e2b", "#e15759", "#76b7b2", "#59a14f", "#edc948", "#b07aa1", "#ff9da7",
+        "#9c755f", "#bab0ac", // Plotly's default
+        "#636efa", "#ef553b", "#00cc96", "#ab63fa", "#ffa15a", "#19d3f3", "#ff6692", "#b6e880",
+        "#ff97ff", "#fecb52", // Plotly Dark24
+        "#2e91e5", "#e15f99", "#1ca71c", "#fb0d0d", "#da16ff", "#222a2a", "#b68100", "#750d86",
+        "#eb663b", "#511cb9", "#00a08b", "#fb00d1", "#fc0080", "#b2828d", "#6c7c32", "#778aae",
+        "#862a16", "#a777f1", "#620042", "#1616a7", "#da60ca", "#6c4516", "#0d2a63", "#af0038",
+        // seaborn deep
+        "#4c72b0", "#dd8452", "#55a868", "#c44e52", "#8172b3", "#937860", "#da8bc3", "#8c8c8c",
+        "#ccb974", "#64b5cd", // seaborn muted
+        "#4878d0", "#ee854a", "#6acc64", "#d65f5f", "#956cb4", "#8c613c", "#dc7ec0", "#797979",
+        "#d5bb67", "#82c6e2", // seaborn bright
+        "#023eff", "#ff7c00", "#1ac938", "#e8000b", "#8b2be2", "#9f4800", "#f14cc1", "#a3a3a3",
+        "#ffc400", "#00d7ff", // seaborn dark
+        "#001c7f", "#b1400d", "#12711c", "#8c0800", "#591e71", "#592f0d", "#a23582", "#3c3c3c",
+        "#b8850a", "#006374", // seaborn colorblind
+        "#0173b2", "#de8f05", "#029e73", "#d55e00", "#cc78bc", "#ca9161", "#fbafe4", "#949494",
+        "#ece133", "#56b4e9", // Paul Tol bright
+        "#4477aa", "#ee6677", "#228833", "#ccbb44", "#66ccee", "#aa3377", "#bbbbbb",
+        // Paul Tol vibrant
+        "#ee7733", "#0077bb", "#33bbee", "#ee3377", "#cc3311", "#009988", // Paul Tol muted
+        "#332288", "#88ccee", "#44aa99", "#117733", "#999933", "#ddcc77", "#cc6677", "#882255",
+        "#aa4499", // MATLAB's default lines
+        "#0072bd", "#d95319", "#edb120", "#7e2f8e", "#77ac30", "#4dbeee", "#a2142f",
+        // Observable 10
+        "#4269d0", "#efb118", "#ff725c", "#6cc5b0", "#3ca951", "#ff8ab7", "#a463f2", "#97bbf5",
+        "#9c6b4e", "#9498a0",
     ];
     for c in palette() {
         for s in stock {

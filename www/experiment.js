@@ -41,6 +41,9 @@ export const resultsOf = (doc, experiment = null) => ({
   text: doc.json, csv: doc.csv, cellsCsv: doc.cellsCsv, summaryCsv: doc.summaryCsv, seedsCsv: doc.seedsCsv, chartText: doc.chartText, readings: doc.readings, scaling: doc.scaling, tables: doc.tables || [], experiment,
 });
 
+/** Why results opened from a results file cannot go to the library. */
+const SAVE_WHY_NOT = 'Not in the library: a results file does not hold the experiment that made it, and a library entry keeps both. Keep the file itself (Results JSON), or open the experiment and run it.';
+
 /** Resolves in a later task (after the browser has had its turn). */
 const nextTask = () => new Promise((resolve) => setTimeout(resolve, 0));
 
@@ -76,7 +79,9 @@ export class ExperimentView {
     });
     /** The user's learners loaded in this page: name → {source, file}. Never saved unless kept. */
     this.guests = new Map();
-    $('add-guest').addEventListener('click', () => $('guest-file').click());
+    $('add-guest').addEventListener('click', () => this.showGuestContract());
+    $('guest-add-choose').addEventListener('click', () => { $('guest-add').close(); $('guest-file').click(); });
+    $('guest-add-close').addEventListener('click', () => $('guest-add').close());
     $('guest-file').addEventListener('change', (e) => { const f = e.target.files[0]; e.target.value = ''; if (f) this.loadGuestFile(f); });
     const drop = $('guest-drop');
     drop.addEventListener('dragover', (e) => { e.preventDefault(); e.stopPropagation(); drop.classList.add('over'); });
@@ -247,6 +252,20 @@ export class ExperimentView {
   /** Rebuilds every row's algorithm menu, keeping each row's choice. */
   refreshAlgorithmMenus() {
     for (const sel of this.rows.querySelectorAll('select')) this.fillAlgorithms(sel, sel.value);
+  }
+
+  /** The "Add your learner…" dialog: the contract's first call and the smallest module, read from the file it offers. */
+  async showGuestContract() {
+    const code = $('guest-add-code');
+    $('guest-add').showModal();
+    if (code.textContent) return;
+    try {
+      const r = await fetch($('guest-add-download').href);
+      if (!r.ok) throw new Error(`HTTP ${r.status}`);
+      code.textContent = await r.text();
+    } catch (err) {
+      code.textContent = `examples/smallest.mjs could not be read (${err.message}); docs/formats.md, "Guest learners", shows it.`;
+    }
   }
 
   /** The name a learner file gives: its base name, in the letters a name may use. */
@@ -604,7 +623,11 @@ export class ExperimentView {
     $('export-cells').disabled = !anyCells || !this.results.cellsCsv;
     for (const o of $('heat-view').options) if (o.value !== 'visits') o.disabled = !decomposed || (o.value === 'regret-diff' && data.learners.length < 2);
     if ($('heat-view').selectedOptions[0]?.disabled) $('heat-view').value = 'visits';
+    // A results file does not hold the experiment that made it, which a
+    // library entry keeps beside its results: the page says so.
     $('save-results').disabled = !r.experiment;
+    $('save-results').title = r.experiment ? 'Keep the model, the experiment and these results in this browser' : SAVE_WHY_NOT;
+    $('save-results-why').hidden = Boolean(r.experiment);
     $('results').hidden = false;
     const heatSel = $('heat-learner');
     heatSel.replaceChildren();
@@ -856,6 +879,8 @@ export class ExperimentView {
     // A caption the user wrote is kept for these results until new ones come.
     $('present-caption').value = this.presentCaption ?? this.chart.caption(this.chartOptions(true));
     $('presenter').hidden = false;
+    // The page under the presentation does not scroll, so its scrollbar does not show through.
+    document.documentElement.classList.add('presenting');
     this.drawPresent();
     $('present-close').focus();
   }
@@ -871,6 +896,7 @@ export class ExperimentView {
 
   closePresent() {
     $('presenter').hidden = true;
+    document.documentElement.classList.remove('presenting');
     $('present').focus();
   }
 }

@@ -29,7 +29,7 @@ export function initGeneratorForm(kindSelect, paramsBox, generators) {
         input.step = p.kind === 'number' ? 'any' : '1';
         input.min = String(p.min);
         input.max = String(p.max);
-        if (p.kind === 'optional-whole') input.placeholder = 'from the seed';
+        if (p.kind === 'optional-whole') input.placeholder = g.seeded ? 'from the seed' : 'default';
         else input.value = String(p.default);
       }
       const label = el('label', p.name.replace(/_/g, ' '), { title: p.help });

@@ -4,8 +4,8 @@
 //! background by at least 3:1 (WCAG 2.1, non-text contrast), every pair
 //! stays apart for readers with protanopia, deuteranopia and tritanopia
 //! (simulated with the matrices of Machado, Oliveira & Fernandes 2009), and
-//! none is a stock colour of common plotting defaults; tests/palette.rs
-//! checks all three. The page's transition graph colours actions with them
+//! none is within ΔE 8 of a stock colour of common plotting palettes;
+//! tests/palette.rs checks all three and lists those palettes. The page's transition graph colours actions with them
 //! (through the catalogue).
 
 /// An sRGB colour.
@@ -21,14 +21,14 @@ impl Rgb {
 
 /// Series colours, in the order learners get them.
 pub const SERIES: [Rgb; 8] = [
-    Rgb(0x1f, 0x6f, 0x78), // deep teal
+    Rgb(0x0d, 0x6b, 0x66), // deep teal
     Rgb(0xcb, 0x80, 0x19), // ochre
-    Rgb(0xad, 0x75, 0xf4), // lilac
+    Rgb(0x89, 0x61, 0xdc), // violet
     Rgb(0x57, 0x3e, 0x0c), // umber
     Rgb(0x53, 0x24, 0x9a), // indigo
     Rgb(0x80, 0x98, 0x6e), // sage
-    Rgb(0xec, 0x55, 0xbe), // orchid
-    Rgb(0x82, 0x0f, 0x44), // claret
+    Rgb(0xf8, 0x31, 0xae), // orchid
+    Rgb(0x5e, 0x00, 0x28), // claret
 ];
 
 /// The colour of series `i` (the palette repeats past eight).

@@ -200,7 +200,7 @@ pub static GENERATORS: &[GeneratorInfo] = &[
     GeneratorInfo {
         kind: "river",
         name: "River chain",
-        about: "River-swim-style chain (after Strehl & Littman 2008).",
+        about: "The RiverSwim chain, a published construction (Strehl & Littman, JCSS 2008).",
         source: "Strehl & Littman, An analysis of model-based Interval Estimation for Markov Decision Processes, J. Computer and System Sciences 74(8), 2008",
         seeded: false,
         params: river::PARAMS,
@@ -209,7 +209,7 @@ pub static GENERATORS: &[GeneratorInfo] = &[
     GeneratorInfo {
         kind: "drift-grid",
         name: "Drift grid",
-        about: "Rectangle of cells whose moves drift sideways, with one paying goal cell.",
+        about: "Board of cells c0r0, c1r0, … whose moves drift sideways, from a start inside it to one paying goal cell.",
         source: "common practice (grids with slip appear throughout the literature; no single source)",
         seeded: false,
         params: drift_grid::PARAMS,

@@ -1,12 +1,12 @@
-//! The drift grid: a rectangle of cells with slip and one paying goal cell.
+//! The drift grid: a board of cells with slip, a start inside it and one paying goal cell.
 
 use super::catalog::{GenParam, Values};
 use super::{ParamError, Sizes, add, bad, finish, need_range, point_start};
 use crate::model::limits::MAX_HORIZON;
 use crate::model::{Mdp, MdpParts, Reward, StepParts};
 
-static WIDTH: GenParam = GenParam::whole("width", 5, 1, 300, "cells from west to east");
-static HEIGHT: GenParam = GenParam::whole("height", 3, 1, 300, "cells from south to north");
+static WIDTH: GenParam = GenParam::whole("width", 7, 1, 300, "columns, c0 … c(width−1)");
+static HEIGHT: GenParam = GenParam::whole("height", 4, 1, 300, "rows, r0 … r(height−1)");
 static SLIP: GenParam = GenParam::number(
     "slip",
     0.1,
@@ -27,13 +27,25 @@ static GOAL_COLUMN: GenParam = GenParam::optional_whole(
     "goal_column",
     0,
     299,
-    "column of the goal, 0-based from the west (default: one in from the east edge)",
+    "column of the goal, 0-based (default: the start's column mirrored through the board's centre)",
 );
 static GOAL_ROW: GenParam = GenParam::optional_whole(
     "goal_row",
     0,
     299,
-    "row of the goal, 0-based from the south (default: the northern row)",
+    "row of the goal, 0-based (default: the start's row mirrored through the board's centre)",
+);
+static START_COLUMN: GenParam = GenParam::optional_whole(
+    "start_column",
+    0,
+    299,
+    "column of the start cell, 0-based (default: a quarter of the way in, ⌊width/4⌋)",
+);
+static START_ROW: GenParam = GenParam::optional_whole(
+    "start_row",
+    0,
+    299,
+    "row of the start cell, 0-based (default: half-way, ⌊height/2⌋)",
 );
 
 pub(super) static PARAMS: &[&GenParam] = &[
@@ -42,21 +54,28 @@ pub(super) static PARAMS: &[&GenParam] = &[
     &SLIP,
     &HORIZON,
     &GOAL_REWARD,
+    &START_COLUMN,
+    &START_ROW,
     &GOAL_COLUMN,
     &GOAL_ROW,
 ];
 
-/// A `width`×`height` grid whose moves drift: actions north, east, south,
-/// west; the intended move happens with probability 1 − `slip`, each of the
-/// two perpendicular moves with `slip`/2; a move into the edge stays put.
-/// The goal cell (`goal_column`, `goal_row`; by default one in from the east
-/// edge on the northern row, so not a corner once the grid is 3 or more
-/// wide) is absorbing and pays 1 (Bernoulli(`goal_reward`) when
-/// `goal_reward` < 1) for every action taken there; all else pays 0. Start:
-/// cell (0, 0), which the goal may not be. States are numbered row by row.
+/// A `width`×`height` board of cells labelled `c{column}r{row}` (0-based)
+/// whose moves drift: actions `c+1`, `r+1`, `c-1`, `r-1` (one column or row
+/// up or down); the intended move happens with probability 1 − `slip`, each
+/// of the two perpendicular moves with `slip`/2; a move off the board stays
+/// put. The start cell is (`start_column`, `start_row`), by default
+/// (⌊width/4⌋, ⌊height/2⌋); the goal cell is (`goal_column`, `goal_row`), by
+/// default the start mirrored through the board's centre, (width − 1 − start
+/// column, height − 1 − start row), or the last cell (width − 1, height − 1)
+/// when that mirror is the start itself. With the default 7×4 board the start
+/// is c1r2 and the goal c5r1, neither on an edge. The goal is absorbing and
+/// pays 1 (Bernoulli(`goal_reward`) when `goal_reward` < 1) for every action
+/// taken there; all else pays 0. The goal may not be the start. States are
+/// numbered row by row (state = row · width + column).
 ///
-/// A common-practice exploration test (slippery gridworlds appear throughout
-/// the literature; no single source).
+/// A common-practice exploration test (boards with slip appear throughout
+/// the literature; no single source). The defaults are our own.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DriftGrid {
     pub width: usize,
@@ -64,10 +83,14 @@ pub struct DriftGrid {
     pub slip: f64,
     pub horizon: usize,
     pub goal_reward: f64,
-    /// The goal's column (None: width − 2, or 0 in a grid one cell wide).
+    /// The goal's column (None: the start's mirrored, see above).
     pub goal_column: Option<usize>,
-    /// The goal's row (None: height − 1).
+    /// The goal's row (None: the start's mirrored, see above).
     pub goal_row: Option<usize>,
+    /// The start's column (None: ⌊width/4⌋).
+    pub start_column: Option<usize>,
+    /// The start's row (None: ⌊height/2⌋).
+    pub start_row: Option<usize>,
 }
 
 impl Default for DriftGrid {
@@ -87,6 +110,8 @@ fn build_from(v: &Values) -> DriftGrid {
         goal_reward: v.number("goal_reward"),
         goal_column: v.optional_whole("goal_column"),
         goal_row: v.optional_whole("goal_row"),
+        start_column: v.optional_whole("start_column"),
+        start_row: v.optional_whole("start_row"),
     }
 }
 
@@ -114,19 +139,30 @@ impl DriftGrid {
             per_row: 3,
         }
         .check("horizon")?;
-        let gx = self.goal_column.unwrap_or(w.saturating_sub(2));
-        let gy = self.goal_row.unwrap_or(hgt - 1);
+        let sx = self.start_column.unwrap_or(w / 4);
+        let sy = self.start_row.unwrap_or(hgt / 2);
+        need_range("start_column", sx, 0, w - 1)?;
+        need_range("start_row", sy, 0, hgt - 1)?;
+        let (mut gx, mut gy) = (w - 1 - sx, hgt - 1 - sy);
+        if (gx, gy) == (sx, sy) {
+            (gx, gy) = (w - 1, hgt - 1);
+        }
+        let gx = self.goal_column.unwrap_or(gx);
+        let gy = self.goal_row.unwrap_or(gy);
         need_range("goal_column", gx, 0, w - 1)?;
         need_range("goal_row", gy, 0, hgt - 1)?;
-        let goal = gy * w + gx;
-        if goal == 0 {
+        let (start, goal) = (sy * w + sx, gy * w + gx);
+        if goal == start {
             return Err(bad(
                 "goal_column",
-                "the goal cannot be the start cell (0,0); give another goal_column or goal_row",
+                format!(
+                    "the goal cannot be the start cell c{sx}r{sy}; give another goal_column or goal_row"
+                ),
             ));
         }
-        // (dx, dy) for north, east, south, west; y grows northwards.
-        const MOVES: [(i64, i64); 4] = [(0, 1), (1, 0), (0, -1), (-1, 0)];
+        // (dx, dy) for c+1, r+1, c-1, r-1: a quarter turn apart, so the two
+        // neighbours of a move in this list are its perpendicular ones.
+        const MOVES: [(i64, i64); 4] = [(1, 0), (0, 1), (-1, 0), (0, -1)];
         let target = |s: usize, m: usize| -> usize {
             let (x, y) = ((s % w) as i64, (s / w) as i64);
             let (nx, ny) = (x + MOVES[m].0, y + MOVES[m].1);
@@ -162,14 +198,14 @@ impl DriftGrid {
             MdpParts {
                 name: format!("Drift grid {}×{} H={}", w, hgt, self.horizon),
                 notes: Some(format!(
-                    "Moves drift sideways with probability {}; the goal cell ({gx},{gy}) pays for every step spent there.",
+                    "Moves drift sideways with probability {}; from c{sx}r{sy}, the goal cell c{gx}r{gy} pays for every step spent there.",
                     self.slip
                 )),
                 horizon: self.horizon,
                 discount: None,
-                states: (0..n).map(|s| format!("({},{})", s % w, s / w)).collect(),
-                actions: vec!["north".into(), "east".into(), "south".into(), "west".into()],
-                start: point_start(n, 0),
+                states: (0..n).map(|s| format!("c{}r{}", s % w, s / w)).collect(),
+                actions: vec!["c+1".into(), "r+1".into(), "c-1".into(), "r-1".into()],
+                start: point_start(n, start),
                 stationary: true,
                 steps: vec![StepParts {
                     transitions,

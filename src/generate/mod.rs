@@ -25,7 +25,7 @@ pub use drift_grid::DriftGrid;
 pub use garnet::Garnet;
 pub use lock::Lock;
 pub use lower_bound::LowerBound;
-pub use river::RiverSwim;
+pub use river::RiverChain;
 
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;

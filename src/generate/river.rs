@@ -1,4 +1,6 @@
-//! A river-swim-style chain.
+//! The river chain: the RiverSwim construction of Strehl & Littman (2008),
+//! a published test problem kept as such (cited like Garnet and the
+//! lower-bound family) and used in no demo and no default.
 
 use super::catalog::{GenParam, Values};
 use super::{ParamError, Sizes, add, bad, finish, point_start};
@@ -45,7 +47,8 @@ pub(super) static PARAMS: &[&GenParam] = &[
     &BIG_REWARD,
 ];
 
-/// A river-swim-style chain of `states` states: action 0 ("with the current")
+/// The river chain, Strehl & Littman's RiverSwim (a published construction,
+/// not ours), with `states` states: action 0 ("with the current")
 /// moves one state left for sure; action 1 ("against the current") moves right
 /// with probability `p_forward`, left with `p_back`, else stays (at the left
 /// end it stays instead of moving left; at the right end it stays instead of
@@ -62,7 +65,7 @@ pub(super) static PARAMS: &[&GenParam] = &[
 /// it from that paper, from memory and not checked against it; the rewards
 /// are rescaled into [0, 1] (0.005 and 1). All are parameters.
 #[derive(Debug, Clone, PartialEq)]
-pub struct RiverSwim {
+pub struct RiverChain {
     pub states: usize,
     pub horizon: usize,
     pub p_forward: f64,
@@ -71,7 +74,7 @@ pub struct RiverSwim {
     pub big_reward: f64,
 }
 
-impl Default for RiverSwim {
+impl Default for RiverChain {
     fn default() -> Self {
         build_from(&Values::defaults(
             super::catalog::info("river").expect("listed"),
@@ -79,8 +82,8 @@ impl Default for RiverSwim {
     }
 }
 
-fn build_from(v: &Values) -> RiverSwim {
-    RiverSwim {
+fn build_from(v: &Values) -> RiverChain {
+    RiverChain {
         states: v.whole("states"),
         horizon: v.whole("horizon"),
         p_forward: v.number("p_forward"),
@@ -94,7 +97,7 @@ pub(super) fn build(v: &Values, _seed: u64) -> Result<Mdp, ParamError> {
     build_from(v).generate()
 }
 
-impl RiverSwim {
+impl RiverChain {
     pub fn generate(&self) -> Result<Mdp, ParamError> {
         STATES.check(self.states as f64)?;
         HORIZON.check(self.horizon as f64)?;
@@ -134,7 +137,7 @@ impl RiverSwim {
             MdpParts {
             name: format!("River chain S={} H={}", n, self.horizon),
             notes: Some(
-                "River-swim-style chain (after Strehl & Littman 2008): a small sure reward at the left bank, a large one upstream.".into(),
+                "The RiverSwim chain of Strehl & Littman (JCSS 2008), a published construction: a small sure reward at the left bank, a large one upstream.".into(),
             ),
             horizon: self.horizon,
             discount: None,

@@ -169,7 +169,7 @@ pub(crate) fn build_wasm() -> Result<PathBuf> {
     let ex = www.join("examples");
     let _ = std::fs::remove_dir_all(&ex);
     std::fs::create_dir_all(&ex).map_err(|e| e.to_string())?;
-    for name in ["uniform.mjs", "optimist.mjs"] {
+    for name in ["smallest.mjs", "uniform.mjs", "optimist.mjs"] {
         std::fs::copy(root().join("examples").join(name), ex.join(name))
             .map_err(|e| format!("examples/{name}: {e}"))?;
     }

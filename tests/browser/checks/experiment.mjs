@@ -224,6 +224,8 @@ await check('the generator form and the sweep list come from the core\'s catalog
   }
   assertEqual(await page.locator('#gen-special_step').getAttribute('placeholder'), 'from the seed', 'optional parameter');
   await page.selectOption('#gen-kind', 'drift-grid');
+  // The drift grid's start and goal are computed from the board when left empty, not drawn.
+  for (const p of ['start_column', 'start_row', 'goal_column', 'goal_row']) assertEqual(await page.locator(`#gen-${p}`).getAttribute('placeholder'), 'default', `${p} has a default of its own`);
   await page.fill('#gen-width', '3');
   await page.fill('#gen-height', '2');
   await page.fill('#gen-horizon', '6');
@@ -231,7 +233,7 @@ await check('the generator form and the sweep list come from the core\'s catalog
   await shownValue(page, 'Drift grid 3×2 H=6');
   await page.click('#tab-experiment');
   const keys = await page.locator('#sweep-param option').evaluateAll((os) => os.map((o) => o.value));
-  for (const k of ['delta', 'bonus_scale', 'epsilon', 'prior', 'width', 'height', 'slip', 'horizon', 'goal_reward', 'goal_column', 'goal_row']) assert(keys.includes(k), `sweep offers ${k}: ${keys}`);
+  for (const k of ['delta', 'bonus_scale', 'epsilon', 'prior', 'width', 'height', 'slip', 'horizon', 'goal_reward', 'start_column', 'start_row', 'goal_column', 'goal_row']) assert(keys.includes(k), `sweep offers ${k}: ${keys}`);
   await page.fill('#exp-episodes', '200');
   await page.fill('#exp-seeds', '2');
   const rows = page.locator('#learner-rows tr');

@@ -3,7 +3,7 @@
 
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { checks, expected, out, fixtures, index, defaultName, shownValue, openPage, upload, startRun, runAndWait, resultsJson, assert, assertEqual } from './helpers.mjs';
+import { checks, expected, out, fixtures, index, defaultName, shownValue, openPage, upload, startRun, runAndWait, resultsJson, downloadText, assert, assertEqual } from './helpers.mjs';
 
 const check = checks('guests', import.meta.url);
 
@@ -139,4 +139,44 @@ await check('a kept learner is shown as code before it runs, and links and files
   await page.waitForFunction(() => /"uniform" is loaded/.test(document.getElementById('guest-status').textContent), null, { timeout: 15000 });
   await runAndWait(page);
   assertEqual(await page.locator('#results-table tbody tr').count(), 2, 'it runs');
+});
+
+await check('"Add your learner…" says what the first decide receives and shows the smallest complete module, downloadable; both run', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  await page.click('#add-guest');
+  await page.waitForSelector('#guest-add[open]');
+  const smallest = readFileSync(join(examples, 'smallest.mjs'), 'utf8');
+  await page.waitForFunction(() => document.getElementById('guest-add-code').textContent.length > 0);
+  assertEqual(await page.locator('#guest-add-code').textContent(), smallest, 'the dialog shows examples/smallest.mjs');
+  const first = (await page.locator('#guest-add-first').textContent()).replace(/\s+/g, ' ');
+  for (const said of ['batch.done = 0', 'batch.episodes = 0', 'batch.states, batch.actions, batch.rewards, batch.next are empty arrays', 'not keep']) {
+    assert(first.includes(said), `the first call: "${said}" in ${first}`);
+  }
+  const dl = await downloadText(page, '#guest-add-download');
+  assertEqual(dl.name, 'smallest.mjs', 'downloaded file name');
+  assertEqual(dl.text, smallest, 'the download is the module shown');
+  // At a phone's width the dialog and its code fit without sideways scrolling.
+  await page.setViewportSize({ width: 390, height: 800 });
+  const fit = await page.evaluate(() => {
+    const d = document.getElementById('guest-add').getBoundingClientRect();
+    const pre = document.getElementById('guest-add-code');
+    return { left: d.left, right: d.right, over: pre.scrollWidth - pre.clientWidth };
+  });
+  assert(fit.left >= 0 && fit.right <= 390 && fit.over <= 0, `fits at 390 px: ${JSON.stringify(fit)}`);
+  await page.setViewportSize({ width: 1280, height: 900 });
+  // "Choose a module file…" opens the file chooser; a module checking every
+  // call against what the dialog says runs beside the smallest one.
+  const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.click('#guest-add-choose')]);
+  assert(!(await page.evaluate(() => document.getElementById('guest-add').open)), 'the dialog closes');
+  await chooser.setFiles({ name: 'first-call.mjs', mimeType: 'text/javascript', buffer: readFileSync(join(browserDir, 'guests/first-call.mjs')) });
+  await page.waitForFunction(() => document.getElementById('guest-status').textContent.includes('"first-call"'), null, { timeout: 15000 });
+  await loadGuest(page, 'smallest.mjs', smallest);
+  await page.fill('#exp-episodes', '30');
+  await page.fill('#exp-seeds', '2');
+  await runAndWait(page);
+  const r = await resultsJson(page);
+  assertEqual(JSON.stringify(r.failed ?? []), '[]', 'no learner failed');
+  const labels = r.learners.map((l) => l.label);
+  assert(labels.includes('first-call') && labels.includes('smallest'), `both ran: ${labels}`);
 });
