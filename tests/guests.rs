@@ -640,3 +640,136 @@ fn the_estimate_counts_a_guests_largest_batch() {
     );
     assert!(builtin < 20e6, "{builtin}");
 }
+
+/// A bandit (S = 1, H = 1) with Bernoulli arms of these means, as a model
+/// object.
+fn bandit(means: &[f64]) -> Value {
+    let n = means.len();
+    json!({"format": "burnin-model", "version": 1, "name": "arms", "horizon": 1,
+           "states": ["s"], "actions": (0..n).map(|a| format!("a{a}")).collect::<Vec<_>>(),
+           "start": [1],
+           "steps": [{"transitions": [vec![json!([[0, 1]]); n]],
+                      "rewards": [means.iter().map(|m| json!({"bernoulli": m})).collect::<Vec<_>>()]}]})
+}
+
+/// A Rust guest that gives one probability table and keeps it.
+struct Rows(Vec<f64>);
+
+impl Guest for Rows {
+    fn decide(&mut self, b: Batch<'_>) -> Result<Decision, String> {
+        Ok(if b.done == 0 {
+            Decision::new(GuestPolicy::Probabilities(self.0.clone()), 1000)
+        } else {
+            Decision::keep(1000)
+        })
+    }
+}
+
+/// #35 §2: a probability row accepted within the 10⁻⁹ tolerance is the
+/// distribution it is scaled to, so a guest always playing an optimal arm
+/// has regret exactly 0 at every checkpoint, whether its row sums to
+/// 1 + 9·10⁻¹⁰ or 1 − 9·10⁻¹⁰ (it was −0.0008 and +0.0008 at K = 10⁶, the
+/// second with a slope of 1), and so does one mixing two optimal arms. On
+/// two arms of means 0.3 and 0.8 the optimal value is 0.8 (derived by hand);
+/// the third table's model has two arms of 0.8.
+#[test]
+fn an_optimal_policy_given_as_rows_within_the_tolerance_has_regret_exactly_zero() {
+    for (means, row) in [
+        (vec![0.3, 0.8], vec![0.0, 1.000_000_000_9]),
+        (vec![0.3, 0.8], vec![0.0, 0.999_999_999_1]),
+        (vec![0.3, 0.8, 0.8], vec![0.0, 0.3, 0.700_000_000_9]),
+    ] {
+        let text = json!({"format": "burnin-experiment", "version": 1, "model": bandit(&means),
+                          "episodes": 1_000_000, "seeds": 2, "learners": [{"guest": "rows"}]})
+        .to_string();
+        let table = row.clone();
+        let host: Guests = Arc::new(
+            move |_: &str, _: &GuestIntro| -> Result<Box<dyn Guest>, String> {
+                Ok(Box::new(Rows(table.clone())))
+            },
+        );
+        let p = Point::with_guests(parse_experiment(&text, None).unwrap(), Some(host));
+        for r in try_run_all(&p).unwrap() {
+            assert!(
+                r.regret.iter().chain(&r.episode_regret).all(|&x| x == 0.0),
+                "{row:?}: regret {:?}",
+                r.regret
+            );
+        }
+    }
+}
+
+/// #35 §2, as `burnin run` reads a process's rows: the optimal arm's row
+/// written as `[0, 1.0000000009]` or `[0, 0.9999999991]` gives regret
+/// exactly 0 and a flat curve at K = 10⁶ (V* = 0.8 on arms 0.3 and 0.8).
+#[test]
+fn a_process_playing_the_optimal_arm_with_a_row_within_the_tolerance_has_regret_exactly_zero() {
+    let d = scratch("rows");
+    d.file("arms.json", &bandit(&[0.3, 0.8]).to_string());
+    let e = write_experiment(
+        &d,
+        "e.json",
+        experiment("arms.json", 1_000_000, 2, json!([{"guest": "rows"}])),
+    );
+    for row in ["0 1.0000000009", "0 0.9999999991"] {
+        let cmd = format!("rows=python3 tests/guests/rows.py {row}");
+        let v = results(&["run", e.to_str().unwrap(), "--json", "--learner", &cmd]);
+        assert_eq!(v["optimal_value"].as_f64(), Some(0.8));
+        for key in ["regret_mean", "final_regret"] {
+            assert!(
+                curve(&v, 0, key).iter().all(|&x| x == 0.0),
+                "{row}: {key} {:?}",
+                v["learners"][0][key]
+            );
+        }
+    }
+}
+
+/// #35 §2, the other probabilities the core accepts within a tolerance:
+/// model rows (and the start distribution) within 10⁻⁶ of 1, and a policy
+/// given to `solve::evaluate`. On a model whose optimal rows sum to
+/// 1 + 5·10⁻⁷ and 1 − 4·10⁻¹³ (rescaled, and kept as given below 10⁻¹²),
+/// a guest playing the optimal policy has regret exactly 0; and the
+/// optimal arm's row [0, 1 + 5·10⁻⁷] is worth V* = 0.8 exactly.
+#[test]
+fn model_rows_and_evaluated_policies_within_the_tolerance_keep_exact_regret() {
+    use burnin::solve::{Policy, evaluate, solve};
+    // Two doors with rows off by the amounts above: from the hall, right
+    // goes to the garden with 1.0000005; left stays with 0.4999999999996
+    // and goes to the garden with 0.5 (optimal at step 1: 0.8 + 0.4 + 0.5
+    // against 0 + 1); the start row is 1.0000005.
+    let mut model: Value = serde_json::from_str(&two_doors()).unwrap();
+    model["start"] = json!([1.0000005, 0]);
+    model["steps"][0]["transitions"][0] =
+        json!([[[0, 0.4999999999996], [1, 0.5]], [[1, 1.0000005]]]);
+    let text = json!({"format": "burnin-experiment", "version": 1, "model": model,
+                      "episodes": 20_000, "seeds": 2, "learners": [{"guest": "best"}]})
+    .to_string();
+    let exp = parse_experiment(&text, None).unwrap();
+    let sol = solve(&exp.model);
+    let best: Vec<u32> = sol.policy.iter().copied().collect();
+    struct Fixed(Vec<u32>);
+    impl Guest for Fixed {
+        fn decide(&mut self, b: Batch<'_>) -> Result<Decision, String> {
+            Ok(if b.done == 0 {
+                Decision::new(GuestPolicy::Actions(self.0.clone()), 100)
+            } else {
+                Decision::keep(100)
+            })
+        }
+    }
+    let host: Guests = Arc::new(
+        move |_: &str, _: &GuestIntro| -> Result<Box<dyn Guest>, String> {
+            Ok(Box::new(Fixed(best.clone())))
+        },
+    );
+    for r in try_run_all(&Point::with_guests(exp, Some(host))).unwrap() {
+        assert!(r.regret.iter().all(|&x| x == 0.0), "{:?}", r.regret);
+    }
+    let arms = serde_json::to_string(&bandit(&[0.3, 0.8])).unwrap();
+    let m = burnin::parse_model(&arms).unwrap();
+    let p = ndarray::Array3::from_shape_vec((1, 1, 2), vec![0.0, 1.0 + 5e-7]).unwrap();
+    let v = evaluate(&m, &Policy::Stochastic(p)).unwrap();
+    assert_eq!(v[[0, 0]], 0.8);
+    assert_eq!(solve(&m).optimal_value, 0.8);
+}

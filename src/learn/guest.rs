@@ -482,9 +482,17 @@ impl GuestLearner {
                 self.stochastic = false;
                 self.version += 1;
             }
-            Some(GuestPolicy::Probabilities(p)) if !self.stochastic || p != self.probs => {
-                self.install_rows(p);
-                self.version += 1;
+            Some(GuestPolicy::Probabilities(mut p)) => {
+                // A row accepted within the tolerance is the distribution it
+                // is scaled to: drawn and evaluated as such, so an optimal
+                // policy's regret stays exactly 0.
+                for row in p.chunks_exact_mut(self.set.actions) {
+                    crate::model::check::normalise(row, |x| x);
+                }
+                if !self.stochastic || p != self.probs {
+                    self.install_rows(p);
+                    self.version += 1;
+                }
             }
             // "keep", or the same policy again.
             _ => {}
