@@ -773,3 +773,53 @@ fn model_rows_and_evaluated_policies_within_the_tolerance_keep_exact_regret() {
     assert_eq!(v[[0, 0]], 0.8);
     assert_eq!(solve(&m).optimal_value, 0.8);
 }
+
+/// #35: a guest's own process group does not get the terminal's Ctrl-C,
+/// so Burnin ends the groups of its running guests when it is interrupted:
+/// after SIGINT to Burnin alone, nothing of a guest that lingers after its
+/// input closes (nor the helper it started) is left.
+#[cfg(target_os = "linux")]
+#[test]
+fn an_interrupted_run_leaves_no_guest_behind() {
+    let d = scratch("interrupt");
+    let e = write_experiment(
+        &d,
+        "e.json",
+        experiment("two-doors.json", 1_000_000_000, 1, json!([{"guest": "g"}])),
+    );
+    let marker = format!("burnin-test-marker-interrupt-{}", std::process::id());
+    let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_burnin"))
+        .args([
+            "run",
+            e.to_str().unwrap(),
+            "--no-budget",
+            "--learner",
+            &format!("g=python3 tests/guests/misbehave.py linger {marker}"),
+        ])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .stdin(std::process::Stdio::null())
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .unwrap();
+    let until = std::time::Instant::now() + std::time::Duration::from_secs(60);
+    while running(&marker).len() < 2 {
+        assert!(std::time::Instant::now() < until, "the guest never started");
+        std::thread::sleep(std::time::Duration::from_millis(50));
+    }
+    std::thread::sleep(std::time::Duration::from_millis(300));
+    let killed = std::process::Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(killed.success());
+    let status = child.wait().unwrap();
+    assert!(!status.success(), "{status}");
+    let until = std::time::Instant::now() + std::time::Duration::from_secs(5);
+    let mut left = running(&marker);
+    while !left.is_empty() && std::time::Instant::now() < until {
+        std::thread::sleep(std::time::Duration::from_millis(50));
+        left = running(&marker);
+    }
+    assert!(left.is_empty(), "left running: {left:?}");
+}

@@ -67,6 +67,7 @@ impl GuestProcess {
             .stderr(Stdio::piped())
             .spawn()
             .map_err(|e| format!("cannot start `{cmd}`: {e}"))?;
+        crate::guest_groups::register(child.id());
         let stdin = child.stdin.take().expect("piped");
         let stdout = child.stdout.take().expect("piped");
         let mut stderr = child.stderr.take().expect("piped");
@@ -233,6 +234,7 @@ impl GuestProcess {
                 libc::kill(-(self.child.id() as libc::pid_t), libc::SIGKILL);
             }
             let _ = self.child.kill();
+            crate::guest_groups::unregister(self.child.id());
         }
         self.reaped = true;
         match self.child.wait() {
