@@ -194,10 +194,18 @@ pub fn evaluate(m: &Mdp, policy: &Policy) -> Result<Array2<f64>, PolicyError> {
             };
             let x = match policy {
                 Policy::Deterministic(p) => q(p[[h, s]] as usize),
-                Policy::Stochastic(p) => (0..a_n)
-                    .filter(|&a| p[[h, s, a]] > 0.0)
-                    .map(|a| p[[h, s, a]] * q(a))
-                    .sum(),
+                Policy::Stochastic(p) => {
+                    // A row accepted within the tolerance is the
+                    // distribution it is scaled to (as model rows are), so
+                    // an optimal policy is worth V* exactly.
+                    let sum: f64 = (0..a_n).map(|a| p[[h, s, a]]).sum();
+                    let exact = (sum - 1.0).abs() <= crate::model::check::SUM_EXACT;
+                    let scale = if exact { 1.0 } else { sum };
+                    (0..a_n)
+                        .filter(|&a| p[[h, s, a]] > 0.0)
+                        .map(|a| p[[h, s, a]] / scale * q(a))
+                        .sum()
+                }
             };
             v[[h, s]] = x;
         }

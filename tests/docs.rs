@@ -358,7 +358,7 @@ fn formats_lists_every_limit_with_its_value() {
     use burnin::model::limits as m;
     let md = read("docs/formats.md");
     let rows = table(&md, "| what | limit | constant |");
-    let consts: [(&str, u64); 24] = [
+    let consts: [(&str, u64); 25] = [
         ("MAX_FILE_BYTES", m::MAX_FILE_BYTES as u64),
         ("MAX_STATES", m::MAX_STATES as u64),
         ("MAX_ACTIONS", m::MAX_ACTIONS as u64),
@@ -380,6 +380,7 @@ fn formats_lists_every_limit_with_its_value() {
         ("BOUNDED_ITEMS", burnin::format::BOUNDED_ITEMS as u64),
         ("MAX_SHARDS", e::MAX_SHARDS as u64),
         ("MAX_BATCH", burnin::learn::MAX_BATCH),
+        ("MAX_BATCH_STEPS", burnin::learn::MAX_BATCH_STEPS),
         ("MAX_SEED_CURVE_VALUES", e::MAX_SEED_CURVE_VALUES as u64),
         ("MAX_REPORTED_PROBLEMS", m::MAX_REPORTED_PROBLEMS as u64),
         (

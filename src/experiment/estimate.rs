@@ -223,12 +223,26 @@ fn record_bytes(c: &Point) -> f64 {
 
 /// A learner's state at its largest: per (h, s, a) its counts and
 /// estimates (about 100 bytes, the next states it has seen growing up to
-/// one entry per step run), its plan, and the evaluator's tables.
+/// one entry per step run), its plan, and the evaluator's tables. A guest
+/// learner's is its largest batch (at most
+/// [`MAX_BATCH_STEPS`](crate::learn::MAX_BATCH_STEPS) steps, 24 bytes each
+/// held, and up to three messages of a process's protocol being built,
+/// waiting and written, [`MAX_STEP_TEXT`](crate::learn::MAX_STEP_TEXT)
+/// bytes a step) beside its policy (an answer's text and its table, within
+/// the 100 bytes a cell).
 fn learner_bytes(c: &Point) -> f64 {
+    use crate::learn::{MAX_BATCH_STEPS, MAX_STEP_TEXT};
     let m = &c.exp.model;
     let cells = (m.horizon() * m.n_states() * m.n_actions()) as f64;
-    let seen = (m.entries() as f64).min((c.exp.episodes * m.horizon() as u64) as f64);
-    100.0 * cells + 8.0 * seen + 16.0 * m.n_states() as f64
+    let steps_run = c.exp.episodes as f64 * m.horizon() as f64;
+    let seen = (m.entries() as f64).min(steps_run);
+    let own = 100.0 * cells + 8.0 * seen + 16.0 * m.n_states() as f64;
+    if c.exp.learners.iter().any(|l| l.guest().is_some()) {
+        let batch = (MAX_BATCH_STEPS as f64).min(steps_run);
+        own.max(100.0 * cells + batch * (24.0 + 3.0 * MAX_STEP_TEXT as f64))
+    } else {
+        own
+    }
 }
 
 /// A duration as people say it: "40 s", "12 min", "3 h 20 min", "5 days".

@@ -34,6 +34,23 @@ pub const GUEST_VERSION: u32 = 1;
 /// Largest batch a guest may ask for in one decision.
 pub const MAX_BATCH: u64 = 1 << 20;
 
+/// Most steps (episodes × H) in one batch: a batch's trajectories are held
+/// whole and handed over at once, so this bounds the memory a guest's batch
+/// takes (24 bytes a step held, at most [`MAX_STEP_TEXT`] bytes a step
+/// written for a process) whatever the horizon.
+pub const MAX_BATCH_STEPS: u64 = 1 << 20;
+
+/// Most bytes one step takes in a batch message of the process protocol:
+/// `[s,a,r,s'],` with S below 10⁵, A below 10³ and r written in at most 24
+/// characters, plus an episode's brackets.
+pub const MAX_STEP_TEXT: u64 = 46;
+
+/// The largest batch a guest may ask for at horizon `h`: [`MAX_BATCH`]
+/// episodes, and at most [`MAX_BATCH_STEPS`] steps.
+pub fn max_batch(horizon: usize) -> u64 {
+    (MAX_BATCH_STEPS / horizon.max(1) as u64).clamp(1, MAX_BATCH)
+}
+
 /// How far a probability row's sum may be from 1.
 pub const ROW_SUM_TOLERANCE: f64 = 1e-9;
 
@@ -109,11 +126,19 @@ impl Decision {
     /// Checks the decision against the setting; the message names the first
     /// entry at fault.
     pub fn check(&self, set: &Setting, first: bool) -> Result<(), String> {
-        if self.episodes == 0 || self.episodes > MAX_BATCH {
-            return Err(format!(
-                "\"episodes\" must be 1 … {MAX_BATCH}, found {}",
-                self.episodes
-            ));
+        let most = max_batch(set.horizon);
+        if self.episodes == 0 || self.episodes > most {
+            return Err(if most < MAX_BATCH {
+                format!(
+                    "\"episodes\" must be 1 … {most} (at most {MAX_BATCH_STEPS} steps a batch at H = {}), found {}",
+                    set.horizon, self.episodes
+                )
+            } else {
+                format!(
+                    "\"episodes\" must be 1 … {MAX_BATCH}, found {}",
+                    self.episodes
+                )
+            });
         }
         let (s_n, a_n) = (set.states, set.actions);
         match &self.policy {
@@ -244,6 +269,33 @@ impl Decision {
         };
         Ok(Decision { policy, episodes })
     }
+}
+
+/// The first key an answer's text gives twice at its top level (serde's
+/// value type keeps the last silently; every reader of Burnin's files
+/// refuses a repeated key, and so does the reader of answers), or None.
+pub fn repeated_key(text: &str) -> Option<String> {
+    use serde::de::{Deserializer, IgnoredAny, MapAccess, Visitor};
+    struct Keys;
+    impl<'de> Visitor<'de> for Keys {
+        type Value = Option<String>;
+        fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+            f.write_str("an object")
+        }
+        fn visit_map<M: MapAccess<'de>>(self, mut map: M) -> Result<Option<String>, M::Error> {
+            let mut seen = std::collections::HashSet::new();
+            let mut twice = None;
+            while let Some(k) = map.next_key::<String>()? {
+                map.next_value::<IgnoredAny>()?;
+                if twice.is_none() && !seen.insert(k.clone()) {
+                    twice = Some(k);
+                }
+            }
+            Ok(twice)
+        }
+    }
+    let mut de = serde_json::Deserializer::from_str(text);
+    de.deserialize_map(Keys).ok().flatten()
 }
 
 /// Calls `f` on each entry of an H × S nested list, with its path.
@@ -430,9 +482,17 @@ impl GuestLearner {
                 self.stochastic = false;
                 self.version += 1;
             }
-            Some(GuestPolicy::Probabilities(p)) if !self.stochastic || p != self.probs => {
-                self.install_rows(p);
-                self.version += 1;
+            Some(GuestPolicy::Probabilities(mut p)) => {
+                // A row accepted within the tolerance is the distribution it
+                // is scaled to: drawn and evaluated as such, so an optimal
+                // policy's regret stays exactly 0.
+                for row in p.chunks_exact_mut(self.set.actions) {
+                    crate::model::check::normalise(row, |x| x);
+                }
+                if !self.stochastic || p != self.probs {
+                    self.install_rows(p);
+                    self.version += 1;
+                }
             }
             // "keep", or the same policy again.
             _ => {}

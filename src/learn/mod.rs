@@ -46,7 +46,8 @@ pub use early_settled::{
 pub use euler::{Euler, log_factor as euler_log_factor};
 pub use guest::{
     Batch, Decision, GUEST_PROTOCOL, GUEST_VERSION, Guest, GuestHost, GuestIntro, GuestLearner,
-    GuestPolicy, GuestStep, Guests, MAX_BATCH, ROW_SUM_TOLERANCE,
+    GuestPolicy, GuestStep, Guests, MAX_BATCH, MAX_BATCH_STEPS, MAX_STEP_TEXT, ROW_SUM_TOLERANCE,
+    max_batch, repeated_key,
 };
 pub use mvp::{
     FrozenStats, Mvp, MvpSamples, largest_bonus as mvp_largest_bonus, log_factor as mvp_log_factor,

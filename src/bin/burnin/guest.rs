@@ -1,26 +1,33 @@
 //! Guest learners as processes: `burnin run --learner NAME=CMD` starts CMD
-//! (through the shell) once per run and speaks the guest protocol with it,
-//! one JSON object per line (docs/formats.md, "Guest learners"): Burnin
-//! writes the introduction and then each batch's trajectories to the
-//! process's standard input, and reads one decision per line from its
-//! standard output. The process's standard error is kept (its last lines)
+//! (through the shell, in a process group of its own) once per run and
+//! speaks the guest protocol with it, one JSON object per line
+//! (docs/formats.md, "Guest learners"): Burnin writes the introduction and
+//! then each batch's trajectories to the process's standard input, and
+//! reads one decision per line from its standard output. The process's
+//! standard error is kept (its last lines, as bytes, each cut at a length)
 //! for the message when it fails.
+//!
+//! A guest can neither hang nor flood a run: every wait on it ends at
+//! `--learner-timeout` (writing a message, reading an answer, waiting for a
+//! process that closed its output), at most one message waits to be
+//! written and one answer is read ahead, and when its run ends, or it fails,
+//! its whole process group is ended (whatever the shell or the guest
+//! started), so no process outlives the run.
 //!
 //! A file names a guest; only the command line says what it runs.
 
 use std::collections::{HashMap, VecDeque};
-use std::io::{BufRead, BufReader, Read, Write};
-use std::process::{Child, Command, Stdio};
-use std::sync::mpsc::{self, Receiver, RecvTimeoutError, Sender};
-use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
 
 use burnin::learn::{Batch, Decision, Guest, GuestHost, GuestIntro, Setting};
 
+use crate::guest_process::{GuestProcess, Wait};
+
 /// Lines of a guest's standard error kept for messages.
 const STDERR_LINES: usize = 8;
-/// Longest answer line read (a policy of the largest model is far shorter).
-const MAX_LINE: usize = 256 << 20;
+/// Bytes kept of each of those lines; the rest of a longer line (or of
+/// output that never ends its line) is dropped as it is read.
+const STDERR_LINE_BYTES: usize = 400;
 
 /// The guests given on the command line: name → shell command.
 pub struct ProcessHost {
@@ -38,12 +45,77 @@ impl GuestHost for ProcessHost {
     }
 }
 
+/// The end of a guest's standard error: its last lines, each cut at
+/// [`STDERR_LINE_BYTES`], and the line it is writing.
+#[derive(Default)]
+pub struct Tail {
+    lines: VecDeque<Vec<u8>>,
+    current: Vec<u8>,
+    cut: bool,
+}
+
+impl Tail {
+    pub fn push(&mut self, bytes: &[u8]) {
+        for part in bytes.split_inclusive(|&b| b == b'\n') {
+            let (text, ends) = match part.strip_suffix(b"\n") {
+                Some(t) => (t, true),
+                None => (part, false),
+            };
+            let room = STDERR_LINE_BYTES.saturating_sub(self.current.len());
+            if text.len() > room {
+                self.cut = true;
+            }
+            self.current
+                .extend_from_slice(&text[..text.len().min(room)]);
+            if ends {
+                self.end_line();
+            }
+        }
+    }
+
+    fn end_line(&mut self) {
+        let mut line = std::mem::take(&mut self.current);
+        if std::mem::take(&mut self.cut) {
+            line.extend_from_slice("…".as_bytes());
+        }
+        if line.iter().all(u8::is_ascii_whitespace) {
+            return;
+        }
+        if self.lines.len() == STDERR_LINES {
+            self.lines.pop_front();
+        }
+        self.lines.push_back(line);
+    }
+
+    /// The lines as text: bytes that are not UTF-8 replaced, control
+    /// characters escaped.
+    pub fn quoted(&self) -> String {
+        let mut current = self.current.clone();
+        if self.cut {
+            current.extend_from_slice("…".as_bytes());
+        }
+        let current = (!current.iter().all(u8::is_ascii_whitespace)).then_some(&current);
+        self.lines
+            .iter()
+            .chain(current)
+            .map(|l| {
+                let mut out = String::new();
+                for c in String::from_utf8_lossy(l).trim_end().chars() {
+                    if c.is_control() && c != '\t' {
+                        out.extend(c.escape_default());
+                    } else {
+                        out.push(c);
+                    }
+                }
+                out
+            })
+            .collect::<Vec<_>>()
+            .join(" | ")
+    }
+}
+
 struct ProcessGuest {
-    child: Child,
-    /// Lines to write; the writer thread ends when this is dropped.
-    to_child: Option<Sender<String>>,
-    from_child: Receiver<Result<String, String>>,
-    stderr: Arc<Mutex<VecDeque<String>>>,
+    process: GuestProcess,
     intro: Option<String>,
     setting: Setting,
     timeout: Duration,
@@ -52,79 +124,10 @@ struct ProcessGuest {
     command: String,
 }
 
-fn shell(cmd: &str) -> Command {
-    if cfg!(windows) {
-        let mut c = Command::new("cmd");
-        c.arg("/C").arg(cmd);
-        c
-    } else {
-        let mut c = Command::new("sh");
-        c.arg("-c").arg(cmd);
-        c
-    }
-}
-
 impl ProcessGuest {
     fn start(cmd: &str, intro: &GuestIntro, timeout: Duration) -> Result<ProcessGuest, String> {
-        let mut child = shell(cmd)
-            .stdin(Stdio::piped())
-            .stdout(Stdio::piped())
-            .stderr(Stdio::piped())
-            .spawn()
-            .map_err(|e| format!("cannot start `{cmd}`: {e}"))?;
-        let stdin = child.stdin.take().expect("piped");
-        let stdout = child.stdout.take().expect("piped");
-        let stderr = child.stderr.take().expect("piped");
-        let (to_child, for_writer) = mpsc::channel::<String>();
-        std::thread::spawn(move || {
-            let mut w = std::io::BufWriter::new(stdin);
-            for line in for_writer {
-                if w.write_all(line.as_bytes()).is_err()
-                    || w.write_all(b"\n").is_err()
-                    || w.flush().is_err()
-                {
-                    break;
-                }
-            }
-        });
-        let (to_reader, from_child) = mpsc::channel();
-        std::thread::spawn(move || {
-            let mut r = BufReader::new(stdout);
-            loop {
-                let mut line = String::new();
-                let got = Read::take(&mut r, MAX_LINE as u64).read_line(&mut line);
-                let msg = match got {
-                    Ok(0) => break,
-                    Ok(_) if !line.ends_with('\n') && line.len() >= MAX_LINE => Err(format!(
-                        "an answer line is longer than {} MB",
-                        MAX_LINE >> 20
-                    )),
-                    Ok(_) => Ok(line),
-                    Err(e) => Err(format!("cannot read its output: {e}")),
-                };
-                let stop = msg.is_err();
-                if to_reader.send(msg).is_err() || stop {
-                    break;
-                }
-            }
-        });
-        let tail = Arc::new(Mutex::new(VecDeque::new()));
-        let keep = Arc::clone(&tail);
-        std::thread::spawn(move || {
-            for line in BufReader::new(stderr).lines() {
-                let Ok(line) = line else { break };
-                let mut t = keep.lock().expect("not poisoned");
-                if t.len() == STDERR_LINES {
-                    t.pop_front();
-                }
-                t.push_back(line);
-            }
-        });
         Ok(ProcessGuest {
-            child,
-            to_child: Some(to_child),
-            from_child,
-            stderr: tail,
+            process: GuestProcess::spawn(cmd)?,
             intro: Some(intro.to_json()),
             setting: intro.setting,
             timeout,
@@ -133,32 +136,28 @@ impl ProcessGuest {
         })
     }
 
-    /// What the process's standard error said last, for a message.
-    fn stderr_tail(&self) -> String {
-        // Give the stderr reader a moment to catch the process's last words.
-        std::thread::sleep(Duration::from_millis(50));
-        let t = self.stderr.lock().expect("not poisoned");
-        if t.is_empty() {
-            String::new()
+    /// The message for a process whose output (or input) closed before
+    /// message `self.lines + 1` was answered: it has until `deadline` to
+    /// end; one still running then is stopped.
+    fn exited(&mut self, deadline: Instant, started: Instant) -> String {
+        let ended = self.process.ended_by(deadline);
+        let status = self.process.stop();
+        if ended {
+            format!(
+                "`{}` ended ({status}) without answering message {}{}",
+                self.command,
+                self.lines + 1,
+                self.process.stderr_tail()
+            )
         } else {
             format!(
-                "; its last error output: {}",
-                t.iter().cloned().collect::<Vec<_>>().join(" | ")
+                "`{}` closed its output without answering message {} and was still running {:.0} s later; it was stopped{}",
+                self.command,
+                self.lines + 1,
+                started.elapsed().as_secs_f64(),
+                self.process.stderr_tail()
             )
         }
-    }
-
-    fn exited(&mut self) -> String {
-        let status = match self.child.wait() {
-            Ok(s) => s.to_string(),
-            Err(e) => format!("unknown status ({e})"),
-        };
-        format!(
-            "`{}` ended ({status}) without answering message {}{}",
-            self.command,
-            self.lines + 1,
-            self.stderr_tail()
-        )
     }
 }
 
@@ -173,27 +172,41 @@ fn excerpt(line: &str) -> String {
 
 impl Guest for ProcessGuest {
     fn decide(&mut self, batch: Batch<'_>) -> Result<Decision, String> {
+        if self.process.reaped() {
+            return Err(format!("`{}` was stopped", self.command));
+        }
         let msg = match self.intro.take() {
             Some(intro) => intro,
             None => batch.to_json(),
         };
-        let sent = self.to_child.as_ref().is_some_and(|t| t.send(msg).is_ok());
-        if !sent {
-            return Err(self.exited());
-        }
         let started = Instant::now();
-        let line = match self.from_child.recv_timeout(self.timeout) {
+        let deadline = started + self.timeout;
+        match self.process.send(msg, deadline) {
+            Ok(()) => {}
+            Err(Wait::Closed) => return Err(self.exited(deadline, started)),
+            Err(Wait::Late) => {
+                self.process.stop();
+                return Err(format!(
+                    "`{}` did not read message {} within {:.0} s; it was stopped{}",
+                    self.command,
+                    self.lines + 1,
+                    started.elapsed().as_secs_f64(),
+                    self.process.stderr_tail()
+                ));
+            }
+        }
+        let line = match self.process.recv(deadline) {
             Ok(Ok(line)) => line,
             Ok(Err(e)) => return Err(format!("answer line {}: {e}", self.lines + 1)),
-            Err(RecvTimeoutError::Disconnected) => return Err(self.exited()),
-            Err(RecvTimeoutError::Timeout) => {
-                let _ = self.child.kill();
+            Err(Wait::Closed) => return Err(self.exited(deadline, started)),
+            Err(Wait::Late) => {
+                self.process.stop();
                 return Err(format!(
                     "`{}` gave no answer line {} within {:.0} s; it was stopped{}",
                     self.command,
                     self.lines + 1,
                     started.elapsed().as_secs_f64(),
-                    self.stderr_tail()
+                    self.process.stderr_tail()
                 ));
             }
         };
@@ -205,25 +218,15 @@ impl Guest for ProcessGuest {
                 excerpt(&line)
             )
         })?;
+        if let Some(k) = burnin::learn::repeated_key(&line) {
+            return Err(format!(
+                "answer line {}: {k:?} is given more than once",
+                self.lines
+            ));
+        }
         Decision::from_json(&v, &self.setting)
             .and_then(|d| d.check(&self.setting, self.lines == 1).map(|()| d))
             .map_err(|e| format!("answer line {}: {e}", self.lines))
-    }
-}
-
-impl Drop for ProcessGuest {
-    fn drop(&mut self) {
-        // Closing its input tells the guest the run is over.
-        self.to_child = None;
-        let until = Instant::now() + Duration::from_secs(2);
-        while Instant::now() < until {
-            if let Ok(Some(_)) = self.child.try_wait() {
-                return;
-            }
-            std::thread::sleep(Duration::from_millis(5));
-        }
-        let _ = self.child.kill();
-        let _ = self.child.wait();
     }
 }
 

@@ -11,6 +11,8 @@ mod figure;
 mod files;
 mod generate;
 mod guest;
+mod guest_groups;
+mod guest_process;
 mod merge;
 mod plot;
 mod progress;

@@ -41,7 +41,8 @@ pub struct Args {
     /// run, through the shell); repeat for each guest the file names.
     #[arg(long = "learner", value_name = "NAME=CMD")]
     pub learners: Vec<String>,
-    /// Seconds a guest learner may take to answer one message.
+    /// Seconds a guest learner may take to answer one message (and any
+    /// other wait on it: to read a message, to end after closing its output).
     #[arg(long, value_name = "SECS", default_value_t = 30.0)]
     pub learner_timeout: f64,
     /// Print the run's estimated time and memory and stop, without running.

@@ -67,6 +67,46 @@ for (const [how, want] of [
   });
 }
 
+// #35: a batch of 2²⁰ episodes at H = 1000 (2³⁰ steps) ended the whole run
+// with a wasm borrow error naming no learner; a batch is at most 2²⁰ steps,
+// so it is refused like any malformed answer, the learner named and the
+// built-in learner's results kept.
+await check('a learner module asking for a batch over 2²⁰ steps is refused and named; the built-in learner\'s results stay', async (page) => {
+  await openPage(page);
+  const text = guestFixture.replace('"horizon": 2', '"horizon": 1000').replace('"episodes": 300', '"episodes": 20').replace('"uniform", "label": "your uniform"', '"bad", "label": "my learner"');
+  await upload(page, 'two-doors-guest-experiment.json', text);
+  await page.waitForSelector('#panel-experiment:not([hidden])');
+  const source = readFileSync(join(browserDir, 'guests/misbehave.mjs'), 'utf8').replace("'BURNIN_HOW'", "'huge-batch'");
+  await loadGuest(page, 'bad.mjs', source);
+  await runAndWait(page);
+  const failed = await page.locator('#results-failed').textContent();
+  const want = '"episodes" must be 1 … 1048 (at most 1048576 steps a batch at H = 1000), found 1048576';
+  assert(failed.includes('Your learner "my learner" failed in seed') && failed.includes(want), `the fault is named: ${failed}`);
+  const r = await resultsJson(page);
+  assertEqual(r.learners.map((l) => l.label).join(), 'uniform', 'the built-in learner\'s results stay');
+});
+
+// #35 §2: a row summing to 1 within the 10⁻⁹ tolerance is the distribution
+// it is scaled to, so a module always playing the optimal action (left:
+// V* = 1.6, worked by hand in tests/guests.rs) with rows [1 ± 9·10⁻¹⁰, 0]
+// has regret exactly 0, as in `burnin run`.
+for (const p of ['1.0000000009', '0.9999999991']) {
+  await check(`a learner module playing the optimal policy with rows [${p}, 0] has regret exactly 0`, async (page) => {
+    await openPage(page);
+    await upload(page, 'two-doors-guest-experiment.json', guestFixture.replace('"uniform", "label": "your uniform"', '"rows", "label": "rows"'));
+    await page.waitForSelector('#panel-experiment:not([hidden])');
+    const source = `export default function start({ states: S, horizon: H }) {
+      const table = Array.from({ length: H }, () => Array.from({ length: S }, () => [${p}, 0]));
+      return { decide: (b) => (b.done === 0 ? { probabilities: table, episodes: 50 } : { keep: true, episodes: 50 }) };
+    }`;
+    await loadGuest(page, 'rows.mjs', source);
+    await runAndWait(page);
+    const r = await resultsJson(page);
+    const rows = r.learners.find((l) => l.label === 'rows');
+    assert(rows.regret_mean.every((x) => x === 0) && rows.final_regret.every((x) => x === 0), `regret ${rows.regret_mean}`);
+  });
+}
+
 await check('a run with a learner module cancels promptly, even while the module never answers', async (page) => {
   await openPage(page);
   // The watchdog must not be what stops it: Cancel is.

@@ -12,6 +12,8 @@ export default function start(intro) {
       if (HOW === 'throw') throw new Error('the learner divided by zero');
       if (HOW === 'malformed') return { actions: Array.from({ length: H }, () => new Array(S).fill(A)) };
       if (HOW === 'silent') for (;;) { /* never answers */ }
+      // The contract's largest batch of episodes, 2²⁰, over 2²⁰ steps when H > 1.
+      if (HOW === 'huge-batch') return { keep: true, episodes: 1 << 20 };
       return { keep: true };
     },
   };
