@@ -72,7 +72,7 @@ const KEPT_HEADING: &str = "## Measured by hand";
 /// The workloads run in rounds on the learning workload's model, in the
 /// order of the tables: the floor (`burnin bench --only floor`: the
 /// cheapest episode loop) and every learner.
-const LEARNERS: [&str; 12] = [
+const LEARNERS: [&str; 15] = [
     "floor",
     "mvp",
     "mvp-2021",
