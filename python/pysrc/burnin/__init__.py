@@ -288,7 +288,7 @@ def _generator_function(info: dict) -> Callable[..., Model]:
             default = p["default"]
         params.append(Parameter(p["name"], Parameter.KEYWORD_ONLY, default=default))
         lo, hi = p["min"], p["max"]
-        rng = "" if p["kind"] == "flag" else f" [{lo} … {'∞' if hi is None else hi}]"
+        rng = "" if p["kind"] == "flag" else f" [{lo:g} … {'∞' if hi is None else format(hi, 'g')}]"
         lines.append(f"    {p['name']} ({p['kind']}, default {default}){rng}: {p['help']}")
     params.append(Parameter("seed", Parameter.KEYWORD_ONLY, default=1))
     lines.append(
