@@ -219,8 +219,18 @@ fn test_cmd() -> Result<()> {
 
 /// The Python packages the package's build and tests need, installed
 /// into the virtualenv when missing (numpy is the package's one
-/// dependency; SciPy and pandas are outside references of its tests).
-const PYTHON_TOOLS: &[&str] = &["maturin>=1.5,<2", "pytest", "numpy", "scipy", "pandas"];
+/// dependency; SciPy and pandas are outside references of its tests,
+/// nbclient, nbformat and ipykernel execute the example notebook).
+const PYTHON_TOOLS: &[&str] = &[
+    "maturin>=1.5,<2",
+    "pytest",
+    "numpy",
+    "scipy",
+    "pandas",
+    "nbclient",
+    "nbformat",
+    "ipykernel",
+];
 
 /// The Python package (`python/`): built in place (maturin develop, the
 /// dev profile) into a virtualenv under the build folder (`pyenv`, made
@@ -242,7 +252,7 @@ fn python_checks() -> Result<()> {
     let have =
         output(Command::new(&python).args(["-c", "import maturin, pytest, numpy, scipy, pandas"]));
     if have.is_none() {
-        step("installing maturin, pytest, numpy, SciPy and pandas into the virtualenv (pip)");
+        step("installing maturin, pytest and the tests' references into the virtualenv (pip)");
         run(Command::new(&python)
             .args(["-m", "pip", "install", "--quiet"])
             .args(PYTHON_TOOLS))?;
