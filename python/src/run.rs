@@ -286,8 +286,16 @@ fn run_experiment(
             let job = s.spawn(|| runner.run(&budget, &clock, &Threads, &watch));
             let mut interrupted: Option<PyErr> = None;
             let mut last = u64::MAX;
+            let mut polls = 0u32;
             loop {
                 let finished = job.is_finished();
+                polls += 1;
+                // Signals and progress about ten times a second (and at the
+                // end), without holding a short run up for a whole period.
+                if !finished && polls % 20 != 1 {
+                    std::thread::sleep(Duration::from_millis(5));
+                    continue;
+                }
                 Python::attach(|py| {
                     if interrupted.is_none()
                         && let Err(e) = py.check_signals()
@@ -311,7 +319,7 @@ fn run_experiment(
                 if finished {
                     break;
                 }
-                std::thread::sleep(Duration::from_millis(100));
+                std::thread::sleep(Duration::from_millis(5));
             }
             (job.join(), interrupted)
         })

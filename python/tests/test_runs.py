@@ -193,3 +193,11 @@ def test_an_interrupt_stops_the_run_and_is_raised_again():
             burnin.run(exp, progress=False)
     finally:
         timer.cancel()
+
+
+def test_progress_true_shows_a_bar_or_lines_on_standard_error(capfd):
+    """With tqdm installed its bar, else a line per tenth: both on standard
+    error, both reaching 100 %."""
+    burnin.run(SMALL, progress=True)
+    err = capfd.readouterr().err
+    assert "burnin" in err and "100%" in err
