@@ -201,3 +201,16 @@ def test_progress_true_shows_a_bar_or_lines_on_standard_error(capfd):
     burnin.run(SMALL, progress=True)
     err = capfd.readouterr().err
     assert "burnin" in err and "100%" in err
+
+
+class BrokenConstructor:
+    def __init__(self, intro):
+        raise KeyError("states_count")
+
+
+def test_a_constructors_exception_names_the_first_episode():
+    exp = dict(SMALL, learners=[{"algorithm": "uniform"}, {"guest": "b", "label": "broken"}], episodes=20)
+    with pytest.raises(burnin.LearnerError) as e:
+        burnin.run(exp, learners={"b": BrokenConstructor}, progress=False)
+    assert (e.value.learner, e.value.episode) == ("broken", 1)
+    assert e.value.message.startswith("its class raised KeyError: 'states_count' (at ")
