@@ -1,17 +1,20 @@
 //! numpy arrays in and out: flat vectors with a shape, C order.
 
-use numpy::{
-    Element, PyArray1, PyArrayDyn, PyArrayMethods, PyReadonlyArrayDyn, PyUntypedArrayMethods,
-};
+use ndarray::{ArrayD, IxDyn};
+use numpy::{Element, IntoPyArray, PyArrayDyn, PyReadonlyArrayDyn, PyUntypedArrayMethods};
+use pyo3::exceptions::PyValueError;
 use pyo3::prelude::*;
 
-/// A numpy array of `shape` holding `data` (C order).
+/// A numpy array of `shape` holding `data` (C order), made in one step
+/// (no reshape call: a learner's batch makes four of these per call).
 pub fn array<'py, T: Element>(
     py: Python<'py>,
     data: Vec<T>,
     shape: &[usize],
 ) -> PyResult<Bound<'py, PyArrayDyn<T>>> {
-    PyArray1::from_vec(py, data).reshape(shape.to_vec())
+    let a = ArrayD::from_shape_vec(IxDyn(shape), data)
+        .map_err(|e| PyValueError::new_err(e.to_string()))?;
+    Ok(a.into_pyarray(py))
 }
 
 /// An input array's shape and its entries in C order (the Python side
