@@ -234,8 +234,10 @@ const PYTHON_TOOLS: &[&str] = &[
 
 /// The Python package (`python/`): built in place (maturin develop, the
 /// dev profile) into a virtualenv under the build folder (`pyenv`, made
-/// with `python3 -m venv` on first use, the tools above installed by pip
-/// when missing), then its pytest suite, with the CLI it compares against.
+/// with `python3 -m venv` on first use, or `BURNIN_PYTHON -m venv`; as
+/// root, Debian's python3-venv is installed when that fails; the tools
+/// above installed by pip when missing), then its pytest suite, with the
+/// CLI it compares against.
 fn python_checks() -> Result<()> {
     step("Python package: maturin develop and pytest (python/)");
     let venv = target_dir().join("pyenv");
@@ -247,7 +249,25 @@ fn python_checks() -> Result<()> {
     });
     if !python.exists() {
         let host = std::env::var("BURNIN_PYTHON").unwrap_or_else(|_| "python3".into());
-        run(Command::new(host).args(["-m", "venv"]).arg(&venv))?;
+        let made = run(Command::new(&host).args(["-m", "venv"]).arg(&venv));
+        if made.is_err() {
+            // Debian's python3 makes virtualenvs only with python3-venv.
+            let _ = std::fs::remove_dir_all(&venv);
+            let root_user = output(Command::new("id").arg("-u")).is_some_and(|u| u.trim() == "0");
+            if !root_user {
+                return made.map_err(|e| {
+                    format!(
+                        "{e}\n(on Debian: sudo apt-get install python3-venv; or set BURNIN_PYTHON)"
+                    )
+                });
+            }
+            step("installing python3-venv (apt-get)");
+            run(Command::new("apt-get").arg("update"))?;
+            run(Command::new("apt-get")
+                .args(["install", "-y", "--no-install-recommends", "python3-venv"])
+                .env("DEBIAN_FRONTEND", "noninteractive"))?;
+            run(Command::new(&host).args(["-m", "venv"]).arg(&venv))?;
+        }
     }
     let have =
         output(Command::new(&python).args(["-c", "import maturin, pytest, numpy, scipy, pandas"]));
