@@ -11,7 +11,7 @@ use std::time::Duration;
 
 use burnin::chart::{Options, View};
 use burnin::experiment::{
-    Budget, Estimate, Runner, Stopped, Watch, bytes_words, parse_experiment, parse_results,
+    Budget, Estimate, Pool, Runner, Stopped, Watch, bytes_words, parse_experiment, parse_results,
 };
 use burnin::learn::{Batch, Decision, Guest, GuestHost, GuestIntro, Guests, Setting};
 use burnin::native::Threads;
@@ -201,6 +201,28 @@ fn to_value(o: &Bound<'_, PyAny>) -> Result<Value, String> {
     ))
 }
 
+/// This machine's threads (`burnin::native::Threads`), each lane made
+/// known to Python once for the whole run (attached, then detached): a
+/// learner class's calls from that lane then only take the GIL, instead
+/// of making and dropping a Python thread state each time.
+struct PyThreads;
+
+impl Pool for PyThreads {
+    fn scope(&self, lanes: usize, work: &(dyn Fn(usize) + Sync)) {
+        Threads.scope(lanes, &|lane| {
+            Python::attach(|py| py.detach(|| work(lane)));
+        });
+    }
+
+    fn within(&self, seconds: f64, work: Box<dyn FnOnce() + Send>) {
+        Threads.within(seconds, work);
+    }
+
+    fn rest(&self) {
+        Threads.rest();
+    }
+}
+
 /// What the Python side hears while a run goes, and whether it asked to stop.
 struct Watcher {
     done: AtomicU64,
@@ -283,7 +305,7 @@ fn run_experiment(
     let clock = burnin::native::clock();
     let (records, interrupted) = py.detach(|| {
         std::thread::scope(|s| {
-            let job = s.spawn(|| runner.run(&budget, &clock, &Threads, &watch));
+            let job = s.spawn(|| runner.run(&budget, &clock, &PyThreads, &watch));
             let mut interrupted: Option<PyErr> = None;
             let mut last = u64::MAX;
             let mut polls = 0u32;
