@@ -192,7 +192,15 @@ fn the_runner_is_on_the_diagram_and_every_front_end_runs_through_it() {
             "the page's bindings do not call the runner's {call}"
         );
     }
+    let python = read("python/src/run.rs");
+    for call in ["Runner::new(", ".run(&budget", ".output("] {
+        assert!(
+            python.contains(call),
+            "the Python package does not call the runner's {call}"
+        );
+    }
     let mut front = vec![
+        ("python/src/run.rs".to_string(), python),
         ("src/wasm.rs".to_string(), wasm),
         ("src/native.rs".to_string(), read("src/native.rs")),
     ];

@@ -3,9 +3,10 @@
 //!
 //! - `cargo xtask serve [--port N]`: build the wasm core into `www/pkg`, copy
 //!   the demo models into `www/demo-models`, and serve `www/` on 127.0.0.1.
-//! - `cargo xtask test`: formatting, clippy, every cargo test, the wasm
-//!   build, the headless-Chromium checks of the page, and the array-job
+//! - `cargo xtask test`: formatting, clippy, every cargo test, the Python
+//!   package's build and pytest suite (`python/`), the wasm build, the headless-Chromium checks of the page, and the array-job
 //!   recipe on a single-node Slurm.
+//! - `cargo xtask python`: only the Python package's build and pytest.
 //! - `cargo xtask wasm`: only the wasm build.
 //! - `cargo xtask dist DIR`: the page as a static site for any host, which
 //!   keeps working offline (`dist.rs`).
@@ -18,7 +19,8 @@
 //!
 //! Missing tools are installed when possible: the wasm32 target (rustup), the
 //! wasm-bindgen CLI pinned to the crate's version (cargo install), Chromium
-//! (apt-get, as root), and the browser test's npm packages (npm ci).
+//! (apt-get, as root), the browser test's npm packages (npm ci), and a
+//! virtualenv with maturin and pytest for the Python package (pip).
 
 mod bench;
 mod dist;
@@ -39,6 +41,7 @@ fn main() -> ExitCode {
         Some("serve") => serve_cmd(&args[1..]),
         Some("test") => test_cmd(),
         Some("wasm") => build_wasm().map(|_| ()),
+        Some("python") => python_checks(),
         Some("dist") => dist::dist_cmd(&args[1..]),
         Some("bench") if args.iter().any(|a| a == "--split") => {
             bench::split_only(args.iter().any(|a| a == "--quick"))
@@ -51,7 +54,7 @@ fn main() -> ExitCode {
         },
         _ => {
             eprintln!(
-                "usage: cargo xtask serve [--port N] | test | wasm | dist DIR | bench [--quick] [--split] | fuzz [SECONDS]"
+                "usage: cargo xtask serve [--port N] | test | python | wasm | dist DIR | bench [--quick] [--split] | fuzz [SECONDS]"
             );
             return ExitCode::from(2);
         }
@@ -206,11 +209,84 @@ fn test_cmd() -> Result<()> {
     ]))?;
     step("cargo test");
     run(cargo().args(["test", "--workspace"]))?;
+    python_checks()?;
     let www = build_wasm()?;
     step("browser checks (headless Chromium)");
     browser_checks(www)?;
     slurm_check()?;
     fuzz(30)
+}
+
+/// The Python packages the package's build and tests need, installed
+/// into the virtualenv when missing (numpy is the package's one
+/// dependency; SciPy and pandas are outside references of its tests,
+/// nbclient, nbformat and ipykernel execute the example notebook).
+const PYTHON_TOOLS: &[&str] = &[
+    "maturin>=1.5,<2",
+    "pytest",
+    "numpy",
+    "scipy",
+    "pandas",
+    "nbclient",
+    "nbformat",
+    "ipykernel",
+];
+
+/// The Python package (`python/`): built in place (maturin develop, the
+/// dev profile) into a virtualenv under the build folder (`pyenv`, made
+/// with `python3 -m venv` on first use, or `BURNIN_PYTHON -m venv`; as
+/// root, Debian's python3-venv is installed when that fails; the tools
+/// above installed by pip when missing), then its pytest suite, with the
+/// CLI it compares against.
+fn python_checks() -> Result<()> {
+    step("Python package: maturin develop and pytest (python/)");
+    let venv = target_dir().join("pyenv");
+    let bin = venv.join(if cfg!(windows) { "Scripts" } else { "bin" });
+    let python = bin.join(if cfg!(windows) {
+        "python.exe"
+    } else {
+        "python"
+    });
+    if !python.exists() {
+        let host = std::env::var("BURNIN_PYTHON").unwrap_or_else(|_| "python3".into());
+        let made = run(Command::new(&host).args(["-m", "venv"]).arg(&venv));
+        if made.is_err() {
+            // Debian's python3 makes virtualenvs only with python3-venv.
+            let _ = std::fs::remove_dir_all(&venv);
+            let root_user = output(Command::new("id").arg("-u")).is_some_and(|u| u.trim() == "0");
+            if !root_user {
+                return made.map_err(|e| {
+                    format!(
+                        "{e}\n(on Debian: sudo apt-get install python3-venv; or set BURNIN_PYTHON)"
+                    )
+                });
+            }
+            step("installing python3-venv (apt-get)");
+            run(Command::new("apt-get").arg("update"))?;
+            run(Command::new("apt-get")
+                .args(["install", "-y", "--no-install-recommends", "python3-venv"])
+                .env("DEBIAN_FRONTEND", "noninteractive"))?;
+            run(Command::new(&host).args(["-m", "venv"]).arg(&venv))?;
+        }
+    }
+    let have =
+        output(Command::new(&python).args(["-c", "import maturin, pytest, numpy, scipy, pandas"]));
+    if have.is_none() {
+        step("installing maturin, pytest and the tests' references into the virtualenv (pip)");
+        run(Command::new(&python)
+            .args(["-m", "pip", "install", "--quiet"])
+            .args(PYTHON_TOOLS))?;
+    }
+    run(cargo().args(["build", "--bin", "burnin"]))?;
+    run_in(
+        &root().join("python"),
+        Command::new(bin.join("maturin"))
+            .args(["develop", "--quiet", "--profile", "dev"])
+            .env("VIRTUAL_ENV", &venv),
+    )?;
+    run(Command::new(&python)
+        .args(["-m", "pytest", "-q", "python/tests"])
+        .env("BURNIN_CLI", target_dir().join("debug/burnin")))
 }
 
 /// The array-job recipe of docs/array-jobs.md on a real single-node Slurm

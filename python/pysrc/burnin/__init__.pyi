@@ -1,0 +1,193 @@
+# Type stubs of the burnin package (python/pysrc/burnin/__init__.py).
+# The generator functions of `generate` are built at import from the core's
+# catalogue; their signatures here are checked against it by
+# python/tests/test_stubs.py.
+import os
+from typing import Any, Callable, Dict, List, Literal, Mapping, NamedTuple, Optional, Sequence, Tuple, TypedDict, Union
+
+import numpy as np
+
+BUILD: str
+__version__: str
+
+PathLike = Union[str, os.PathLike[str]]
+
+class Problem(NamedTuple):
+    """One problem of an input: its JSON path and what is wrong."""
+    path: str
+    message: str
+
+class InvalidInput(ValueError):
+    """Every problem the core found in an input, each `path: message`."""
+    problems: List[Problem]
+    unlisted: int
+    def __init__(self, problems: Sequence[Tuple[str, str]], unlisted: int = ...) -> None: ...
+    def lines(self) -> List[str]: ...
+
+class LearnerError(RuntimeError):
+    """A learner of yours failed: its label, the seed index and the episode."""
+    learner: str
+    seed: int
+    episode: int
+    message: str
+
+class Solution:
+    """v (H+1, S), q (H, S, A), policy (H, S) int64, gaps (H, S, A)."""
+    optimal_value: float
+    v: np.ndarray
+    q: np.ndarray
+    policy: np.ndarray
+    gaps: np.ndarray
+
+class Evaluation:
+    """v (H+1, S) and value = Σ_s ρ(s)·V^π_0(s)."""
+    value: float
+    v: np.ndarray
+
+class Model:
+    """A finite-horizon tabular MDP, checked by the core."""
+    @classmethod
+    def from_json(cls, text: str) -> Model: ...
+    @classmethod
+    def from_file(cls, path: PathLike) -> Model: ...
+    @classmethod
+    def from_dict(cls, d: Mapping[str, Any]) -> Model: ...
+    @classmethod
+    def from_arrays(
+        cls,
+        P: Any,
+        rewards: Any,
+        start: Any = ...,
+        *,
+        reward: Literal["bernoulli", "fixed"] = ...,
+        horizon: Optional[int] = ...,
+        name: str = ...,
+        states: Optional[Sequence[str]] = ...,
+        actions: Optional[Sequence[str]] = ...,
+        discount: Optional[float] = ...,
+    ) -> Model:
+        """P (H, S, A, S) or (S, A, S); rewards (H, S, A) or (S, A); start (S,) or a state."""
+    def to_json(self) -> str: ...
+    def to_dict(self) -> Dict[str, Any]: ...
+    def save(self, path: PathLike) -> None: ...
+    @property
+    def name(self) -> str: ...
+    @property
+    def horizon(self) -> int: ...
+    @property
+    def states(self) -> List[str]: ...
+    @property
+    def actions(self) -> List[str]: ...
+    @property
+    def n_states(self) -> int: ...
+    @property
+    def n_actions(self) -> int: ...
+    @property
+    def stationary(self) -> bool: ...
+    @property
+    def discount(self) -> float: ...
+    @property
+    def start(self) -> np.ndarray:
+        """ρ, (S,)."""
+    @property
+    def P(self) -> np.ndarray:
+        """(H, S, A, S)."""
+    @property
+    def mean_rewards(self) -> np.ndarray:
+        """(H, S, A)."""
+    def solve(self) -> Solution: ...
+    def evaluate(self, policy: Any) -> Evaluation:
+        """Actions (H, S) ints, or probabilities (H, S, A)."""
+    def check_learnable(self) -> None: ...
+
+def generators() -> List[Dict[str, Any]]: ...
+def algorithms() -> Dict[str, Any]: ...
+
+class _Generate:
+    """One function per entry of the core's generator catalogue."""
+    def random(self, *, states: int = 10, actions: int = 3, successors: int = 3, horizon: int = 10, time_dependent: bool = False, fixed_rewards: bool = False, seed: int = 1) -> Model:
+        """Random sparse model, Garnet-style (Archibald, McKinnon & Thomas 1995)."""
+    def river(self, *, states: int = 6, horizon: int = 20, p_forward: float = 0.3, p_back: float = 0.1, small_reward: float = 0.005, big_reward: float = 1.0, seed: int = 1) -> Model:
+        """River-swim-style chain (after Strehl & Littman 2008)."""
+    def drift_grid(self, *, width: int = 5, height: int = 3, slip: float = 0.1, horizon: int = 12, goal_reward: float = 1.0, goal_column: Optional[int] = None, goal_row: Optional[int] = None, seed: int = 1) -> Model:
+        """Rectangle of cells whose moves drift sideways, with one paying goal cell."""
+    def lock(self, *, horizon: int = 6, actions: int = 2, time_dependent: bool = False, seed: int = 1) -> Model:
+        """Combination lock: one right action per step, a wrong one jams it."""
+    def lower_bound(self, *, actions: int = 2, depth: int = 2, horizon: int = 10, wait_until: int = 3, epsilon: float = 0.2, special_step: Optional[int] = None, special_leaf: Optional[int] = None, special_action: Optional[int] = None, seed: int = 1) -> Model:
+        """Hard instance of the minimax lower bound (Domingues et al., ALT 2021)."""
+    def bandit(self, *, arms: int = 5, means: Optional[Sequence[float]] = None, seed: int = 1) -> Model:
+        """Bernoulli multi-armed bandit (S = 1, H = 1)."""
+
+generate: _Generate
+
+class Intro(TypedDict):
+    """What a learner class is given: the guest protocol's introduction."""
+    protocol: str
+    version: int
+    states: int
+    actions: int
+    horizon: int
+    episodes: int
+    delta: float
+    seed: int
+    state_labels: List[str]
+    action_labels: List[str]
+    label: str
+    seed_index: int
+
+class Batch(TypedDict):
+    """The last batch: `done` and arrays of shape (episodes, H)."""
+    done: int
+    states: np.ndarray
+    actions: np.ndarray
+    rewards: np.ndarray
+    next_states: np.ndarray
+
+class Curve:
+    """episodes (C,), mean/lo/hi (C,), seeds (n, C)."""
+    episodes: np.ndarray
+    mean: np.ndarray
+    lo: np.ndarray
+    hi: np.ndarray
+    seeds: np.ndarray
+
+class Results:
+    """The results file (`burnin run --json`) with arrays, a frame and the chart."""
+    def __init__(self, text: str) -> None: ...
+    @classmethod
+    def from_json(cls, text: str) -> Results: ...
+    @classmethod
+    def load(cls, path: PathLike) -> Results: ...
+    def to_json(self) -> str: ...
+    def save(self, path: PathLike) -> None: ...
+    def to_dict(self) -> Dict[str, Any]: ...
+    @property
+    def curves(self) -> Dict[str, Curve]: ...
+    def to_pandas(self) -> Any: ...
+    def figure(
+        self,
+        view: Optional[str] = ...,
+        log: bool = ...,
+        *,
+        bands: bool = ...,
+        lower: bool = ...,
+        bounds: bool = ...,
+        compare: Optional[Sequence[str]] = ...,
+        caption: bool = ...,
+        width: int = ...,
+        height: int = ...,
+        type_scale: float = ...,
+        format: Literal["svg", "png"] = ...,
+    ) -> Union[str, bytes]: ...
+    def table(self, format: Literal["markdown", "latex", "csv"] = ...) -> str: ...
+    def _repr_svg_(self) -> str: ...
+
+def run(
+    experiment: Union[Mapping[str, Any], str, os.PathLike[str]],
+    *,
+    learners: Optional[Mapping[str, type]] = ...,
+    threads: Optional[int] = ...,
+    progress: Union[bool, Callable[[int, int], None], None] = ...,
+    budget_minutes: Optional[float] = ...,
+) -> Results:
+    """Runs an experiment in this process (the GIL released while the core runs)."""
