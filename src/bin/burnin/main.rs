@@ -2,7 +2,7 @@
 //! codes (0 ok, 1 invalid input, 2 usage or I/O error, 3 a guest learner
 //! failed) and output formatting; all logic is in the library, shared with
 //! the page, except starting guest learners' processes (`guest.rs`). One
-//! module per command; `files.rs`, `tables.rs`, `report.rs`, `progress.rs`
+//! module per command; `files.rs`, `outputs.rs`, `tables.rs`, `report.rs`, `progress.rs`
 //! and `figure.rs` are what several commands share.
 
 mod bench;
@@ -12,6 +12,7 @@ mod files;
 mod generate;
 mod guest;
 mod merge;
+mod outputs;
 mod plot;
 mod progress;
 mod report;
