@@ -513,3 +513,82 @@ fn a_figure_that_fails_after_a_run_loses_no_results() {
     );
     assert!(!svg.exists());
 }
+
+/// Sets every number of `key` in `v` (at any depth) to `x`.
+fn set_all(v: &mut serde_json::Value, key: &str, x: f64) {
+    match v {
+        serde_json::Value::Object(m) => {
+            for (k, child) in m.iter_mut() {
+                if k == key {
+                    match child {
+                        serde_json::Value::Array(a) => {
+                            for e in a.iter_mut().filter(|e| e.is_number()) {
+                                *e = x.into();
+                            }
+                        }
+                        serde_json::Value::Number(_) => *child = x.into(),
+                        _ => set_all(child, key, x),
+                    }
+                } else {
+                    set_all(child, key, x);
+                }
+            }
+        }
+        serde_json::Value::Array(a) => a.iter_mut().for_each(|c| set_all(c, key, x)),
+        _ => {}
+    }
+}
+
+/// #35 §4: `plot --log` of results whose curves sit at 9·10³⁰⁷ (or whose
+/// `regret_hi` is 1.797·10³⁰⁸), and such sweep files, aborted trying to
+/// allocate 4 GB (a log axis of 2³¹ powers of ten). The axes are bounded:
+/// every view draws, as well-formed SVG, in linear and log axes.
+#[test]
+fn curves_near_the_largest_double_draw_on_bounded_axes() {
+    let dir = Scratch::new("plot-huge");
+    let results = ferry_results(&dir);
+    let base: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&results).unwrap()).unwrap();
+    let mut exp: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(FERRY).unwrap()).unwrap();
+    exp["episodes"] = 100.into();
+    exp["sweep"] = serde_json::json!({"parameter": "delta", "values": [0.01, 0.1, 0.5]});
+    let r = burnin(&[
+        "run",
+        "--json",
+        p(&dir.file("sweep.json", &exp.to_string())),
+    ]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let sweep: serde_json::Value = serde_json::from_str(&r.stdout).unwrap();
+    let mut cases = Vec::new();
+    for (name, v) in [("results", &base), ("sweep", &sweep)] {
+        let mut all = v.clone();
+        for k in ["regret_mean", "regret_lo", "regret_hi"] {
+            set_all(&mut all, k, 9e307);
+        }
+        cases.push((format!("{name}-at-9e307"), all));
+        let mut hi = v.clone();
+        set_all(&mut hi, "regret_hi", 1.797e308);
+        cases.push((format!("{name}-hi-at-max"), hi));
+        let mut wide = v.clone();
+        set_all(&mut wide, "regret_lo", -1.797e308);
+        set_all(&mut wide, "regret_hi", 1.797e308);
+        cases.push((format!("{name}-from-min-to-max"), wide));
+    }
+    for (name, v) in cases {
+        let file = dir.file(&format!("{name}.json"), &v.to_string());
+        for log in [false, true] {
+            let svg = dir.0.join(format!("{name}-{log}.svg"));
+            let mut args = vec!["plot", p(&file), "-o", p(&svg)];
+            if log {
+                args.push("--log");
+            }
+            let r = burnin(&args);
+            assert_eq!(r.code, 0, "{name} log={log}: {}", r.stderr);
+            let text = std::fs::read_to_string(&svg).unwrap();
+            assert!(!text.contains("NaN") && !text.contains("inf"), "{name}");
+            let (texts, _, _) = svg_parts(&text);
+            assert!(texts.len() < 200, "{name} log={log}: {} texts", texts.len());
+        }
+    }
+}
