@@ -592,3 +592,37 @@ fn curves_near_the_largest_double_draw_on_bounded_axes() {
         }
     }
 }
+
+/// #35 §4: labels with control characters or U+FFFF made `run --figure`
+/// and `plot` write SVG that an XML parser rejects. What XML forbids is
+/// shown as U+FFFD; what it allows (markup characters included) is kept.
+#[test]
+fn labels_xml_forbids_still_give_well_formed_svg() {
+    let dir = Scratch::new("plot-xml-chars");
+    let mut exp: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(FERRY).unwrap()).unwrap();
+    exp["episodes"] = 50.into();
+    exp["learners"] = serde_json::json!([
+        {"algorithm": "uniform", "label": "bell\u{7} esc\u{1b}[31m <&> \"q\""},
+        {"algorithm": "mvp", "label": "not a char \u{ffff} nor \u{fffe}"}
+    ]);
+    let file = dir.file("xml.json", &exp.to_string());
+    let from_run = dir.0.join("run.svg");
+    let r = burnin(&["run", "--json", p(&file), "--figure", p(&from_run)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let results = dir.file("results.json", &r.stdout);
+    let from_plot = dir.0.join("plot.svg");
+    let r = burnin(&["plot", p(&results), "-o", p(&from_plot)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    for svg in [&from_run, &from_plot] {
+        let (texts, _, _) = svg_parts(&std::fs::read_to_string(svg).unwrap());
+        assert!(
+            texts.contains(&"bell\u{fffd} esc\u{fffd}[31m <&> \"q\"".to_string()),
+            "{texts:?}"
+        );
+        assert!(
+            texts.contains(&"not a char \u{fffd} nor \u{fffd}".to_string()),
+            "{texts:?}"
+        );
+    }
+}
