@@ -987,6 +987,11 @@ impl SweepResults {
 /// for showing it again: the header is checked first, then the whole
 /// structure.
 pub fn parse_results(text: &str) -> Result<super::Output, Problems> {
+    // A file that is not JSON at all (cut short, empty, a byte-order mark,
+    // NaN) is told where the JSON breaks, as `run` tells it, not that its
+    // format field is wrong (#35).
+    serde_json::from_str::<serde::de::IgnoredAny>(text)
+        .map_err(|e| Problems::single("", crate::format::lax::syntax_problem(&e)))?;
     let format = crate::format::identify(text);
     // Only the version is read here (the rest is skipped, not stored).
     #[derive(Deserialize)]

@@ -80,12 +80,24 @@ fn parse_shard(text: &str) -> Result<(usize, usize), Failure> {
     Ok((i, n))
 }
 
+/// Most runs in parallel (`--threads`): far more than any machine's cores,
+/// far fewer than a system lets one process start.
+const MAX_THREADS: usize = 1024;
+
 /// Checks the options that need no file, before anything is read.
 fn check_options(a: &Args) -> Result<(), Failure> {
     if !(a.estimate || a.no_budget || a.budget > 0.0 && a.budget.is_finite()) {
         return Err(Failure::Io(format!(
             "--budget: expected a number of minutes > 0, found {}",
             a.budget
+        )));
+    }
+    if let Some(n) = a.threads
+        && !(1..=MAX_THREADS).contains(&n)
+    {
+        // 100 000 threads panicked ("failed to spawn thread"; #35).
+        return Err(Failure::Io(format!(
+            "--threads {n}: expected 1 to {MAX_THREADS} runs in parallel"
         )));
     }
     if !(a.learner_timeout > 0.0 && a.learner_timeout <= 86_400.0) {

@@ -119,7 +119,7 @@ impl TableArgs {
 
 /// A table for a terminal: control characters (from labels and names in
 /// files) are shown as escapes, never sent to the terminal.
-fn terminal_safe(text: &str) -> String {
+pub fn terminal_safe(text: &str) -> String {
     text.chars()
         .map(|c| {
             if c.is_control() && c != '\n' {
