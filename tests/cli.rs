@@ -765,9 +765,10 @@ fn model_path_reads_are_bounded() {
     );
     let r = burnin(&["run", p(&f)]);
     assert_eq!(r.code, 1, "{}", r.stderr);
+    // Refused before reading at all, as not a regular file (#35).
     assert!(
         r.stderr
-            .contains("model_path: /dev/zero: file is over the limit of"),
+            .contains("model_path: /dev/zero: not a regular file; name a model file"),
         "{}",
         r.stderr
     );

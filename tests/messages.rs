@@ -154,3 +154,74 @@ fn an_absurd_thread_count_is_refused() {
         );
     }
 }
+
+/// Every reader blocked forever on a FIFO with no writer (a `model_path` in
+/// a colleague's experiment included), and `/dev/stdin` was accepted as a
+/// `model_path`. A `model_path` must be a regular file; a FIFO given on the
+/// command line that no one opens for writing is an error after 10 s,
+/// while a pipe with a writer (`<(…)`) is read as before.
+#[cfg(target_os = "linux")]
+#[test]
+fn odd_files_are_refused_or_time_out_with_a_message() {
+    use std::process::{Command, Stdio};
+    let d = Scratch::new("msg-odd-files");
+    let model = d.demo("night-ferry.json", "night-ferry.json");
+    let fifo = d.0.join("fifo");
+    let made = Command::new("mkfifo").arg(&fifo).status().unwrap();
+    assert!(made.success());
+    let exp = |path: &str| {
+        format!(
+            r#"{{"format": "burnin-experiment", "version": 1, "model_path": {}, "episodes": 10, "learners": [{{"algorithm": "uniform"}}]}}"#,
+            serde_json::to_string(path).unwrap()
+        )
+    };
+    let e = d.file("fifo-exp.json", &exp(p(&fifo)));
+    let r = burnin(&["run", p(&e)]);
+    assert_eq!(r.code, 1, "{}", r.stderr);
+    assert_eq!(
+        r.stderr,
+        format!(
+            "model_path: {}: not a regular file; name a model file\n",
+            fifo.display()
+        )
+    );
+    // /dev/stdin as a model_path, with the model on standard input.
+    let e = d.file("stdin-exp.json", &exp("/dev/stdin"));
+    let out = Command::new(env!("CARGO_BIN_EXE_burnin"))
+        .args(["run", p(&e)])
+        .stdin(std::fs::File::open(&model).unwrap())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    assert_eq!(
+        String::from_utf8_lossy(&out.stderr),
+        "model_path: /dev/stdin: not a regular file; name a model file\n"
+    );
+    // The FIFO on the command line, with no writer.
+    let r = burnin(&["validate", p(&fifo)]);
+    assert_eq!(r.code, 2, "{}", r.stderr);
+    assert!(
+        r.stderr
+            .contains("nothing opened it for writing within 10 s"),
+        "{}",
+        r.stderr
+    );
+    // A pipe with a writer is read.
+    let out = Command::new("bash")
+        .arg("-c")
+        .arg(format!(
+            "{} validate <(cat {})",
+            env!("CARGO_BIN_EXE_burnin"),
+            p(&model)
+        ))
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(String::from_utf8_lossy(&out.stdout).starts_with("ok: \"Night ferry\""));
+}

@@ -13,7 +13,7 @@ use burnin::experiment::{Budget, Runner, Stopped, bytes_words, parse_experiment}
 
 use burnin::native::Threads;
 
-use crate::files::{Failure, emit, invalid, read_text};
+use crate::files::{Failure, emit, invalid, read_named_file, read_text};
 use crate::guest;
 use crate::progress::Progress;
 use crate::tables::TableArgs;
@@ -128,7 +128,7 @@ pub fn run(a: &Args) -> Result<(), Failure> {
         *model_file.lock().expect("not poisoned") = Some(base.join(rel));
         // The same size limit as any file given on the command line, applied
         // while reading (a device file or a huge file is not read to the end).
-        let t = read_text(&base.join(rel)).map_err(|f| match f {
+        let t = read_named_file(&base.join(rel)).map_err(|f| match f {
             Failure::Io(m) | Failure::Guest(m) => m,
             Failure::Invalid(lines) => lines.join("; "),
         })?;
