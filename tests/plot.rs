@@ -626,3 +626,40 @@ fn labels_xml_forbids_still_give_well_formed_svg() {
         );
     }
 }
+
+/// #35 §4: sweep results never checked label, name or parameter lengths
+/// (a 30 000-character label took 19.5 s to fit into the legend). A sweep
+/// file is held to the format's limits, as one point's results are.
+#[test]
+fn a_sweep_file_is_held_to_the_formats_limits() {
+    let dir = Scratch::new("plot-sweep-limits");
+    let mut exp: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(FERRY).unwrap()).unwrap();
+    exp["episodes"] = 50.into();
+    exp["sweep"] = serde_json::json!({"parameter": "delta", "values": [0.1, 0.5]});
+    let r = burnin(&[
+        "run",
+        "--json",
+        p(&dir.file("sweep.json", &exp.to_string())),
+    ]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let mut v: serde_json::Value = serde_json::from_str(&r.stdout).unwrap();
+    let long = "x".repeat(30_000);
+    v["name"] = long.clone().into();
+    v["parameter"] = long.clone().into();
+    v["learners"][1]["label"] = long.into();
+    let file = dir.file("long.json", &v.to_string());
+    let r = burnin(&["plot", p(&file), "-o", p(&dir.0.join("x.svg"))]);
+    assert_eq!(r.code, 1, "{}", r.stderr);
+    for want in [
+        "name: longer than 200 characters",
+        "parameter: longer than 200 characters",
+        "learners[1].label: longer than 200 characters",
+    ] {
+        assert!(
+            r.stderr.contains(&format!("{}: {want}", file.display())),
+            "{want}: {}",
+            r.stderr
+        );
+    }
+}

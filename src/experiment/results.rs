@@ -1244,6 +1244,33 @@ fn check_sweep(r: &SweepResults, p: &mut Problems) {
         p.push("learners", format!("more than {MAX_LEARNERS} learners"));
         return;
     }
+    // The format's limits on texts, as for one point's results (#35):
+    // a sweep's own name, parameter and learner labels were never checked.
+    use crate::model::limits::{MAX_LABEL_CHARS, MAX_NAME_CHARS};
+    let mut texts: Vec<(String, &str, usize)> = vec![
+        ("name".into(), r.name.as_str(), MAX_NAME_CHARS),
+        ("parameter".into(), r.parameter.as_str(), MAX_NAME_CHARS),
+    ];
+    if let Some(x) = &r.scaling_in {
+        texts.push(("scaling_in".into(), x.as_str(), MAX_NAME_CHARS));
+    }
+    for (i, l) in r.learners.iter().enumerate() {
+        texts.push((
+            format!("learners[{i}].label"),
+            l.label.as_str(),
+            MAX_LABEL_CHARS,
+        ));
+        texts.push((
+            format!("learners[{i}].algorithm"),
+            l.algorithm.as_str(),
+            MAX_LABEL_CHARS,
+        ));
+    }
+    for (at, text, max) in texts {
+        if text.chars().count() > max {
+            p.push(at, format!("longer than {max} characters"));
+        }
+    }
     for (i, l) in r.learners.iter().enumerate() {
         for (f, n) in [
             ("regret_mean", l.regret_mean.len()),

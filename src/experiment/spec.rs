@@ -897,6 +897,14 @@ fn convert(
     Some(exp)
 }
 
+/// A number as a JSON file writes it, in its shortest form ("1e300", not
+/// 301 digits; "4", not "4.0"), to quote a file's value back (#35).
+fn as_written(x: f64) -> String {
+    let t = serde_json::Number::from_f64(x).map_or_else(|| x.to_string(), |n| n.to_string());
+    let t = t.replace("e+", "e");
+    t.strip_suffix(".0").map(str::to_string).unwrap_or(t)
+}
+
 fn sweep_of(
     r: &mut Reader,
     v: &serde_json::Value,
@@ -1062,7 +1070,11 @@ impl Experiment {
             SweepParameter::Generator(p) => {
                 let g = self.generator.as_ref().expect("checked when read");
                 let Some(g) = g.with(p.name, x) else {
-                    return bad(format!("expected a whole number for {}, found {x}", p.name));
+                    return bad(format!(
+                        "expected a whole number for {}, found {}",
+                        p.name,
+                        as_written(x)
+                    ));
                 };
                 e.model = g.generate("generator")?;
                 check_learnable(&e.model)?;
