@@ -225,3 +225,29 @@ fn odd_files_are_refused_or_time_out_with_a_message() {
     );
     assert!(String::from_utf8_lossy(&out.stdout).starts_with("ok: \"Night ferry\""));
 }
+
+/// PSRL on a 100 000-state model: one episode (H·S²·A draws, 10¹¹ here)
+/// outlasted the 2 s calibration and the run started anyway. The models'
+/// sizes give a floor on the time, and a run over the budget by that floor
+/// is refused before anything starts (at 1 ns a draw, derived by hand:
+/// 10¹¹ draws × 2 000 episodes ÷ 2 threads = 10⁵ s ≈ 27 h 47 min).
+#[test]
+fn psrl_on_a_huge_model_is_refused_before_it_starts() {
+    let d = Scratch::new("msg-psrl-size");
+    let exp = d.file(
+        "big.json",
+        r#"{"format": "burnin-experiment", "version": 1,
+            "generator": {"kind": "random", "states": 100000, "actions": 2, "successors": 2, "horizon": 5},
+            "episodes": 1000, "seeds": 2, "learners": [{"algorithm": "psrl"}]}"#,
+    );
+    let r = burnin(&["run", "--threads", "2", "--budget", "1", p(&exp)]);
+    assert_eq!(r.code, 2, "{}", r.stderr);
+    assert!(r.stdout.is_empty());
+    assert!(
+        r.stderr
+            .starts_with("burnin: this run is estimated to take at least 27 h 47 min on 2 threads")
+            && r.stderr.contains("over the budget of 1 min"),
+        "{}",
+        r.stderr
+    );
+}
