@@ -6,7 +6,14 @@
 
 /// Arithmetic mean (NaN for an empty slice).
 pub fn mean(xs: &[f64]) -> f64 {
-    xs.iter().sum::<f64>() / xs.len() as f64
+    let n = xs.len() as f64;
+    let m = xs.iter().sum::<f64>() / n;
+    if m.is_finite() || xs.iter().any(|x| !x.is_finite()) {
+        return m;
+    }
+    // The sum overflowed (values near the largest double): summed scaled
+    // down instead, which only such values need (#35).
+    xs.iter().map(|x| x / n).sum()
 }
 
 /// Sample standard deviation with n − 1 in the denominator (0 for n < 2).
@@ -17,7 +24,18 @@ pub fn sample_sd(xs: &[f64]) -> f64 {
     }
     let m = mean(xs);
     let ss: f64 = xs.iter().map(|x| (x - m) * (x - m)).sum();
-    (ss / (n - 1) as f64).sqrt()
+    let sd = (ss / (n - 1) as f64).sqrt();
+    if sd.is_finite() || !m.is_finite() || xs.iter().any(|x| !x.is_finite()) {
+        return sd;
+    }
+    // The squares overflowed (deviations beyond 10¹⁵⁴): computed on values
+    // scaled by the largest deviation, which only such values need (#35).
+    let big = xs.iter().map(|x| (x - m).abs()).fold(0.0, f64::max);
+    if big.is_infinite() {
+        return f64::INFINITY;
+    }
+    let ss: f64 = xs.iter().map(|x| (x - m) / big).map(|d| d * d).sum();
+    big * (ss / (n - 1) as f64).sqrt()
 }
 
 /// ln Γ(x) for x > 0.
@@ -131,7 +149,13 @@ pub fn interval95(xs: &[f64]) -> (f64, f64) {
         return (m, m);
     }
     let half = t_quantile(0.975, (n - 1) as f64) * sample_sd(xs) / (n as f64).sqrt();
-    (m - half, m + half)
+    let (lo, hi) = (m - half, m + half);
+    if m.is_finite() && !half.is_nan() && !(lo.is_finite() && hi.is_finite()) {
+        // Ends beyond the largest double: bounded there, so no file
+        // carries an infinite number (#35).
+        return (lo.max(f64::MIN), hi.min(f64::MAX));
+    }
+    (lo, hi)
 }
 
 /// A paired comparison of two samples: the mean of the differences
@@ -329,6 +353,25 @@ mod tests {
             let want = 0.5 + libm::atan(t) / std::f64::consts::PI;
             assert!((t_cdf(t, 1.0) - want).abs() < 1e-12);
         }
+    }
+
+    /// #35: values near the largest double overflowed the sum and the
+    /// squares, giving infinite intervals. The sample {1, 2, 3} scaled by
+    /// 10³⁰⁰ has mean 2·10³⁰⁰ and sd 10³⁰⁰ (derived by hand); the interval's
+    /// ends are bounded at the largest double.
+    #[test]
+    fn huge_values_keep_finite_means_and_intervals() {
+        let xs = [1e300, 2e300, 3e300];
+        assert_eq!(mean(&xs), 2e300);
+        assert!((sample_sd(&xs) / 1e300 - 1.0).abs() < 1e-12);
+        let big = [1.7e308, 1.7e308, -1.7e308];
+        assert!(mean(&big).is_finite());
+        assert!(sample_sd(&[1e300, 1e300, -1e300]).is_finite());
+        let (lo, hi) = interval95(&big);
+        assert!(lo.is_finite() && hi.is_finite() && lo < hi);
+        // Ordinary values take the ordinary path, bit for bit.
+        let small = [0.1, 0.2, 0.7];
+        assert_eq!(mean(&small), (0.1 + 0.2 + 0.7) / 3.0);
     }
 
     #[test]

@@ -670,19 +670,13 @@ fn outputs_fail_safely() {
         r#"[{"algorithm": "uniform", "label": "\u001b[31mred"}]"#,
         20,
     );
-    // A directory cannot be written as a file: the table still goes out.
+    // A directory cannot be written as a file: refused before running (#35).
     let r = burnin(&["run", "--csv", p(&d.0), p(&f)]);
     assert_eq!(r.code, 2, "{}", r.stderr);
-    assert!(
-        r.stdout.contains("regret at K"),
-        "the results are printed: {}",
-        r.stdout
-    );
-    assert!(
-        r.stderr.contains("cannot write") && r.stderr.contains("the results were printed"),
-        "{}",
-        r.stderr
-    );
+    assert!(r.stdout.is_empty(), "nothing ran: {}", r.stdout);
+    assert!(r.stderr.contains("that is a folder"), "{}", r.stderr);
+    let r = burnin(&["run", p(&f)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
     // Escapes, not terminal control sequences.
     assert!(!r.stdout.contains('\u{1b}'), "no raw escape character");
     assert!(r.stdout.contains("\\u{1b}[31mred"), "{}", r.stdout);
@@ -771,9 +765,10 @@ fn model_path_reads_are_bounded() {
     );
     let r = burnin(&["run", p(&f)]);
     assert_eq!(r.code, 1, "{}", r.stderr);
+    // Refused before reading at all, as not a regular file (#35).
     assert!(
         r.stderr
-            .contains("model_path: /dev/zero: file is over the limit of"),
+            .contains("model_path: /dev/zero: not a regular file; name a model file"),
         "{}",
         r.stderr
     );

@@ -262,3 +262,62 @@ fn an_absurd_shard_count_is_refused_before_allocating() {
     let whole = burnin(&["run", "--json", p(&d.0.join("exp.json"))]);
     assert_eq!(merged.stdout, whole.stdout);
 }
+
+/// #35 §4: forged records with regret 10³⁰⁸ merged with exit 0 into
+/// results carrying null (infinite intervals). A record's numbers must be
+/// finite and within the model format's ±1e300; within it, the intervals
+/// stay finite (a standard deviation's squares would overflow past 10¹⁵⁴)
+/// and every number written is a number.
+#[test]
+fn forged_huge_values_are_refused_or_summarised_finitely() {
+    let d = Scratch::new("merge-huge");
+    let base = shards(&d);
+    let n = base[0]["records"][0][1]["regret"].as_array().unwrap().len();
+    refused(
+        &d,
+        &base,
+        |s| s[0]["records"][0][1]["regret"] = json!(vec![1e308; n]),
+        "s1.json: records[0]: regret[0] is 1e308, not a finite number within ±1e300",
+    );
+    refused(
+        &d,
+        &base,
+        |s| s[1]["records"][0][1]["returns"][2] = json!(-1.5e300),
+        "s2.json: records[0]: returns[2] is -1.5e300, not a finite number within ±1e300",
+    );
+    let mut s = base.to_vec();
+    s[0]["records"][0][1]["regret"] = json!(vec![1e300; n]);
+    let files: Vec<_> = s
+        .iter()
+        .enumerate()
+        .map(|(i, x)| d.file(&format!("h{}.json", i + 1), &x.to_string()))
+        .collect();
+    let mut args = vec!["merge", "--json"];
+    args.extend(files.iter().map(|f| p(f)));
+    let r = burnin(&args);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let v: Value = serde_json::from_str(&r.stdout).unwrap();
+    for l in v["learners"].as_array().unwrap() {
+        for key in ["regret_mean", "regret_lo", "regret_hi"] {
+            assert!(
+                l[key].as_array().unwrap().iter().all(Value::is_number),
+                "{key}: {}",
+                l[key]
+            );
+        }
+    }
+    for c in v["comparisons"].as_array().unwrap() {
+        for key in ["difference_lo", "difference_hi"] {
+            assert!(
+                c[key].as_array().unwrap().iter().all(Value::is_number),
+                "{key}"
+            );
+        }
+        assert!(c["at_k"]["lo"].is_number() && c["at_k"]["hi"].is_number());
+    }
+    // What merge writes, plot and table read back.
+    let results = d.file("huge-results.json", &r.stdout);
+    let svg = d.0.join("huge.svg");
+    assert_eq!(burnin(&["plot", p(&results), "-o", p(&svg)]).code, 0);
+    assert_eq!(burnin(&["table", p(&results)]).code, 0);
+}

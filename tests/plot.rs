@@ -513,3 +513,153 @@ fn a_figure_that_fails_after_a_run_loses_no_results() {
     );
     assert!(!svg.exists());
 }
+
+/// Sets every number of `key` in `v` (at any depth) to `x`.
+fn set_all(v: &mut serde_json::Value, key: &str, x: f64) {
+    match v {
+        serde_json::Value::Object(m) => {
+            for (k, child) in m.iter_mut() {
+                if k == key {
+                    match child {
+                        serde_json::Value::Array(a) => {
+                            for e in a.iter_mut().filter(|e| e.is_number()) {
+                                *e = x.into();
+                            }
+                        }
+                        serde_json::Value::Number(_) => *child = x.into(),
+                        _ => set_all(child, key, x),
+                    }
+                } else {
+                    set_all(child, key, x);
+                }
+            }
+        }
+        serde_json::Value::Array(a) => a.iter_mut().for_each(|c| set_all(c, key, x)),
+        _ => {}
+    }
+}
+
+/// #35 §4: `plot --log` of results whose curves sit at 9·10³⁰⁷ (or whose
+/// `regret_hi` is 1.797·10³⁰⁸), and such sweep files, aborted trying to
+/// allocate 4 GB (a log axis of 2³¹ powers of ten). The axes are bounded:
+/// every view draws, as well-formed SVG, in linear and log axes.
+#[test]
+fn curves_near_the_largest_double_draw_on_bounded_axes() {
+    let dir = Scratch::new("plot-huge");
+    let results = ferry_results(&dir);
+    let base: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&results).unwrap()).unwrap();
+    let mut exp: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(FERRY).unwrap()).unwrap();
+    exp["episodes"] = 100.into();
+    exp["sweep"] = serde_json::json!({"parameter": "delta", "values": [0.01, 0.1, 0.5]});
+    let r = burnin(&[
+        "run",
+        "--json",
+        p(&dir.file("sweep.json", &exp.to_string())),
+    ]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let sweep: serde_json::Value = serde_json::from_str(&r.stdout).unwrap();
+    let mut cases = Vec::new();
+    for (name, v) in [("results", &base), ("sweep", &sweep)] {
+        let mut all = v.clone();
+        for k in ["regret_mean", "regret_lo", "regret_hi"] {
+            set_all(&mut all, k, 9e307);
+        }
+        cases.push((format!("{name}-at-9e307"), all));
+        let mut hi = v.clone();
+        set_all(&mut hi, "regret_hi", 1.797e308);
+        cases.push((format!("{name}-hi-at-max"), hi));
+        let mut wide = v.clone();
+        set_all(&mut wide, "regret_lo", -1.797e308);
+        set_all(&mut wide, "regret_hi", 1.797e308);
+        cases.push((format!("{name}-from-min-to-max"), wide));
+    }
+    for (name, v) in cases {
+        let file = dir.file(&format!("{name}.json"), &v.to_string());
+        for log in [false, true] {
+            let svg = dir.0.join(format!("{name}-{log}.svg"));
+            let mut args = vec!["plot", p(&file), "-o", p(&svg)];
+            if log {
+                args.push("--log");
+            }
+            let r = burnin(&args);
+            assert_eq!(r.code, 0, "{name} log={log}: {}", r.stderr);
+            let text = std::fs::read_to_string(&svg).unwrap();
+            assert!(!text.contains("NaN") && !text.contains("inf"), "{name}");
+            let (texts, _, _) = svg_parts(&text);
+            assert!(texts.len() < 200, "{name} log={log}: {} texts", texts.len());
+        }
+    }
+}
+
+/// #35 §4: labels with control characters or U+FFFF made `run --figure`
+/// and `plot` write SVG that an XML parser rejects. What XML forbids is
+/// shown as U+FFFD; what it allows (markup characters included) is kept.
+#[test]
+fn labels_xml_forbids_still_give_well_formed_svg() {
+    let dir = Scratch::new("plot-xml-chars");
+    let mut exp: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(FERRY).unwrap()).unwrap();
+    exp["episodes"] = 50.into();
+    exp["learners"] = serde_json::json!([
+        {"algorithm": "uniform", "label": "bell\u{7} esc\u{1b}[31m <&> \"q\""},
+        {"algorithm": "mvp", "label": "not a char \u{ffff} nor \u{fffe}"}
+    ]);
+    let file = dir.file("xml.json", &exp.to_string());
+    let from_run = dir.0.join("run.svg");
+    let r = burnin(&["run", "--json", p(&file), "--figure", p(&from_run)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let results = dir.file("results.json", &r.stdout);
+    let from_plot = dir.0.join("plot.svg");
+    let r = burnin(&["plot", p(&results), "-o", p(&from_plot)]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    for svg in [&from_run, &from_plot] {
+        let (texts, _, _) = svg_parts(&std::fs::read_to_string(svg).unwrap());
+        assert!(
+            texts.contains(&"bell\u{fffd} esc\u{fffd}[31m <&> \"q\"".to_string()),
+            "{texts:?}"
+        );
+        assert!(
+            texts.contains(&"not a char \u{fffd} nor \u{fffd}".to_string()),
+            "{texts:?}"
+        );
+    }
+}
+
+/// #35 §4: sweep results never checked label, name or parameter lengths
+/// (a 30 000-character label took 19.5 s to fit into the legend). A sweep
+/// file is held to the format's limits, as one point's results are.
+#[test]
+fn a_sweep_file_is_held_to_the_formats_limits() {
+    let dir = Scratch::new("plot-sweep-limits");
+    let mut exp: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(FERRY).unwrap()).unwrap();
+    exp["episodes"] = 50.into();
+    exp["sweep"] = serde_json::json!({"parameter": "delta", "values": [0.1, 0.5]});
+    let r = burnin(&[
+        "run",
+        "--json",
+        p(&dir.file("sweep.json", &exp.to_string())),
+    ]);
+    assert_eq!(r.code, 0, "{}", r.stderr);
+    let mut v: serde_json::Value = serde_json::from_str(&r.stdout).unwrap();
+    let long = "x".repeat(30_000);
+    v["name"] = long.clone().into();
+    v["parameter"] = long.clone().into();
+    v["learners"][1]["label"] = long.into();
+    let file = dir.file("long.json", &v.to_string());
+    let r = burnin(&["plot", p(&file), "-o", p(&dir.0.join("x.svg"))]);
+    assert_eq!(r.code, 1, "{}", r.stderr);
+    for want in [
+        "name: longer than 200 characters",
+        "parameter: longer than 200 characters",
+        "learners[1].label: longer than 200 characters",
+    ] {
+        assert!(
+            r.stderr.contains(&format!("{}: {want}", file.display())),
+            "{want}: {}",
+            r.stderr
+        );
+    }
+}

@@ -12,10 +12,38 @@ const ready = (async () => {
   await face.load();
 })();
 
+/**
+ * The core's chart, made again from its chart data after any failure: a
+ * failure inside the core leaves its object borrowed, and every later call
+ * on it would fail ("attempted to take ownership of Rust value while it was
+ * borrowed") until a reload (#35). The failure is still thrown.
+ */
+class Chart {
+  constructor(chartText) {
+    this.text = chartText;
+    this.inner = new ResultsChart(chartText);
+  }
+  call(f) {
+    try {
+      return f(this.inner);
+    } catch (e) {
+      try { this.inner.free(); } catch { /* borrowed: left to the collector */ }
+      this.inner = new ResultsChart(this.text);
+      throw e;
+    }
+  }
+  views() { return this.call((c) => c.views()); }
+  draw(canvas, options, scale) { return this.call((c) => c.draw(canvas, options, scale)); }
+  readout(x, y) { return this.call((c) => c.readout(x, y)); }
+  svg(options, width, height, scale) { return this.call((c) => c.svg(options, width, height, scale)); }
+  caption(options) { return this.call((c) => c.caption(options)); }
+  free() { try { this.inner.free(); } catch { /* already failed */ } }
+}
+
 /** The chart of chart data, once the core is loaded. */
 export async function openChart(chartText) {
   await ready;
-  return new ResultsChart(chartText);
+  return new Chart(chartText);
 }
 
 /**
@@ -30,7 +58,11 @@ export function drawInto(chart, canvas, options, cssW, cssH, typeScale = 1) {
   canvas.height = Math.round(cssH * ratio);
   canvas.style.width = `${cssW}px`;
   canvas.style.height = `${cssH}px`;
-  return { ...chart.draw(canvas, options, ratio * typeScale), ratio };
+  try {
+    return { ...chart.draw(canvas, options, ratio * typeScale), ratio };
+  } catch (e) {
+    return { ok: false, message: `the chart could not be drawn: ${e?.message ?? e}`, ratio };
+  }
 }
 
 /** Size and type scale of exported pictures (as `burnin plot`'s defaults). */

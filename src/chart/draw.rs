@@ -202,7 +202,26 @@ pub fn svg(fig: &Figure, w: u32, h: u32, scale: f64) -> String {
         base64(FONT)
     );
     out.insert_str(end, &face);
-    out
+    xml_chars(out)
+}
+
+/// Whether XML 1.0 allows `c` in a document (its production `Char`):
+/// tab, line feed, carriage return, and everything from U+0020 but the
+/// surrogates and U+FFFE, U+FFFF.
+fn xml_allows(c: char) -> bool {
+    matches!(c, '\t' | '\n' | '\r' | '\u{20}'..='\u{D7FF}' | '\u{E000}'..='\u{FFFD}' | '\u{10000}'..)
+}
+
+/// The SVG with every character XML forbids (a label's control
+/// characters, U+FFFF) shown as U+FFFD: no entity can stand for them, and a
+/// parser refuses the whole document over one (#35).
+fn xml_chars(svg: String) -> String {
+    if svg.chars().all(xml_allows) {
+        return svg;
+    }
+    svg.chars()
+        .map(|c| if xml_allows(c) { c } else { '\u{FFFD}' })
+        .collect()
 }
 
 /// Standard base64 (RFC 4648, section 4) with padding.

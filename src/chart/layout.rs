@@ -54,32 +54,36 @@ impl Metrics {
 
     /// Width of `text` in pixels at `size` pixels to the em.
     pub fn width(&self, text: &str, size: f64) -> f64 {
-        text.chars()
-            .map(|c| {
-                self.face
-                    .glyph_index(c)
-                    .and_then(|g| self.face.glyph_hor_advance(g))
-                    .map_or(self.fallback, |a| f64::from(a) / self.per_em)
-            })
-            .sum::<f64>()
-            * size
+        text.chars().map(|c| self.advance(c)).sum::<f64>() * size
     }
 
-    /// `text` cut with an ellipsis to fit `max` pixels at `size`.
+    /// The advance of `c` in ems.
+    fn advance(&self, c: char) -> f64 {
+        self.face
+            .glyph_index(c)
+            .and_then(|g| self.face.glyph_hor_advance(g))
+            .map_or(self.fallback, |a| f64::from(a) / self.per_em)
+    }
+
+    /// `text` cut with an ellipsis to fit `max` pixels at `size`: the
+    /// longest prefix that fits with the ellipsis, found in one pass over
+    /// the prefixes' widths (measuring each cut afresh took quadratic
+    /// time, 19.5 s for a 30 000-character label; #35).
     pub fn fit(&self, text: &str, size: f64, max: f64) -> String {
         if self.width(text, size) <= max {
             return text.to_string();
         }
-        let chars: Vec<char> = text.chars().collect();
-        let mut keep = chars.len();
-        while keep > 0 {
-            keep -= 1;
-            let cut: String = chars[..keep].iter().collect::<String>() + "…";
-            if self.width(&cut, size) <= max {
-                return cut;
+        let ellipsis = self.advance('…');
+        let mut sum = 0.0;
+        let mut keep = 0;
+        for (end, c) in text.char_indices().map(|(i, c)| (i + c.len_utf8(), c)) {
+            sum += self.advance(c);
+            if (sum + ellipsis) * size > max {
+                break;
             }
+            keep = end;
         }
-        "…".into()
+        format!("{}…", &text[..keep])
     }
 
     /// `text` broken into lines of at most `max` pixels at `size` (a word
@@ -189,6 +193,37 @@ pub struct Layout {
     pub legend: Vec<(usize, f64, f64)>,
 }
 
+/// The largest value an axis reaches, leaving room for its padding.
+const AXIS_LIMIT: f64 = f64::MAX / 1.25;
+
+/// An axis's range made finite and not empty, whatever the data: a span
+/// that overflowed (from −10³⁰⁸ to 10³⁰⁸, say) is narrowed to a finite one.
+fn finite_range(lo: f64, hi: f64, log: bool) -> (f64, f64) {
+    let (lowest, highest) = if log {
+        (f64::MIN_POSITIVE, AXIS_LIMIT)
+    } else {
+        (-AXIS_LIMIT, AXIS_LIMIT)
+    };
+    let (mut lo, mut hi) = (lo.clamp(lowest, highest), hi.clamp(lowest, highest));
+    if !log && !(hi - lo).is_finite() {
+        (lo, hi) = (lo.max(-AXIS_LIMIT / 2.5), hi.min(AXIS_LIMIT / 2.5));
+    }
+    if lo >= hi {
+        (lo, hi) = if log {
+            (hi / 10.0, hi)
+        } else if hi > 0.0 {
+            (hi / 2.0, hi)
+        } else {
+            (lo, lo / 2.0)
+        };
+    }
+    (lo, hi)
+}
+
+/// Most powers of ten labelled on a log axis; a wider axis labels every
+/// second, fifth… power.
+const MAX_LOG_TICKS: i32 = 12;
+
 /// A "nice" step (1, 2 or 5 × 10ⁿ) for about `target` ticks over `span`.
 fn nice_step(span: f64, target: f64) -> f64 {
     let raw = span / target.max(1.0);
@@ -209,13 +244,23 @@ fn nice_step(span: f64, target: f64) -> f64 {
 pub fn linear_ticks(lo: f64, hi: f64, target: f64) -> Vec<f64> {
     let span = if hi > lo { hi - lo } else { 1.0 };
     let step = nice_step(span, target);
+    if !(step.is_finite() && step > 0.0 && lo.is_finite() && hi.is_finite()) {
+        return Vec::new();
+    }
     let first = libm::ceil(lo / step);
     // Rounded to the step's decimals: 3 × 0.2 is 0.6000000000000001.
     let unit = libm::pow(10.0, libm::ceil(-libm::log10(step)).max(0.0));
+    let round = |v: f64| {
+        if unit.is_finite() && (v * unit).is_finite() {
+            libm::round(v * unit) / unit
+        } else {
+            v
+        }
+    };
     let mut out = Vec::new();
     let mut i = 0.0;
     loop {
-        let v = libm::round((first + i) * step * unit) / unit;
+        let v = round((first + i) * step);
         if v > hi + step * 1e-9 || out.len() > 100 {
             break;
         }
@@ -227,12 +272,24 @@ pub fn linear_ticks(lo: f64, hi: f64, target: f64) -> Vec<f64> {
 
 /// Ticks at powers of ten between `lo` and `hi` (and 2 and 5 times them
 /// when fewer than three powers fall inside).
+///
+/// Bounded for any input: the exponents are those of finite doubles, and
+/// at most `MAX_LOG_TICKS` (or so) powers are kept.
 pub fn log_ticks(lo: f64, hi: f64) -> Vec<f64> {
+    let exponent = |v: f64| {
+        if v.is_nan() {
+            0
+        } else {
+            v.clamp(-330.0, 308.0) as i32
+        }
+    };
     let (e0, e1) = (
-        libm::floor(libm::log10(lo)) as i32,
-        libm::ceil(libm::log10(hi)) as i32,
+        exponent(libm::floor(libm::log10(lo))),
+        exponent(libm::ceil(libm::log10(hi))),
     );
+    let every = ((e1 - e0) / MAX_LOG_TICKS + 1).max(1) as usize;
     let mut out: Vec<f64> = (e0..=e1)
+        .step_by(every)
         .map(|e| libm::pow(10.0, f64::from(e)))
         .filter(|&v| v >= lo * 0.999 && v <= hi * 1.001)
         .collect();
@@ -240,7 +297,7 @@ pub fn log_ticks(lo: f64, hi: f64) -> Vec<f64> {
         for e in e0..=e1 {
             for m in [2.0, 5.0] {
                 let v = m * libm::pow(10.0, f64::from(e));
-                if v >= lo && v <= hi {
+                if v >= lo && v <= hi && v.is_finite() {
                     out.push(v);
                 }
             }
@@ -315,6 +372,18 @@ impl Layout {
         if !xmin.is_finite() {
             (xmin, xmax, ymin, ymax) = (1.0, 10.0, 1.0, 10.0);
         }
+        // Values near the largest double (9·10³⁰⁷, say) would overflow the
+        // spans and paddings below to infinity: the axes stop at a bound
+        // that leaves room for them (#35), a log axis at the smallest
+        // normal double, and the range is made finite again after them.
+        let bound = |v: f64| {
+            if log {
+                v.clamp(f64::MIN_POSITIVE, AXIS_LIMIT)
+            } else {
+                v.clamp(-AXIS_LIMIT, AXIS_LIMIT)
+            }
+        };
+        (xmin, xmax, ymin, ymax) = (bound(xmin), bound(xmax), bound(ymin), bound(ymax));
         if !log {
             ymin = ymin.min(0.0);
         }
@@ -336,6 +405,8 @@ impl Layout {
                 (xmin, xmax) = (xmin - pad, xmax + pad);
             }
         }
+        (xmin, xmax) = finite_range(xmin, xmax, log);
+        (ymin, ymax) = finite_range(ymin, ymax, log);
         let legend_items: Vec<usize> = (0..fig.series.len())
             .filter(|&i| fig.series[i].legend)
             .collect();
@@ -575,6 +646,44 @@ mod tests {
         assert_eq!(lines.join(" "), long);
     }
 
+    /// #35: fitting measured every shorter cut afresh (quadratic: 19.5 s
+    /// for a 30 000-character legend label). The one-pass fit gives what
+    /// the cut-by-cut search gives, and a label of a million characters
+    /// is fitted in one pass.
+    #[test]
+    fn fitting_is_the_longest_cut_that_fits() {
+        let m = Metrics::get();
+        let slow = |text: &str, size: f64, max: f64| -> String {
+            if m.width(text, size) <= max {
+                return text.to_string();
+            }
+            let chars: Vec<char> = text.chars().collect();
+            (0..chars.len())
+                .rev()
+                .map(|k| chars[..k].iter().collect::<String>() + "…")
+                .find(|cut| m.width(cut, size) <= max)
+                .unwrap_or_else(|| "…".into())
+        };
+        for text in [
+            "",
+            "x",
+            "WWWWWWWWWWWWWWWWWWWW",
+            "ünïcödé 学习者 label — long one",
+            "a b c d e f g h",
+        ] {
+            for max in [0.0, 5.0, 30.0, 60.0, 500.0] {
+                assert_eq!(
+                    m.fit(text, 12.0, max),
+                    slow(text, 12.0, max),
+                    "{text} {max}"
+                );
+            }
+        }
+        let huge = "W".repeat(1_000_000);
+        let cut = m.fit(&huge, 12.0, 200.0);
+        assert!(cut.ends_with('…') && cut.chars().count() < 30, "{cut}");
+    }
+
     /// Common practice (nice tick steps of 1, 2 and 5 × 10ⁿ).
     #[test]
     fn ticks_are_round_numbers_inside_the_range() {
@@ -594,6 +703,22 @@ mod tests {
         assert_eq!(tick_label(2e6), "2e6");
         assert_eq!(tick_label(0.25), "0.25");
         assert_eq!(tick_label(100.0), "100");
+    }
+
+    /// #35: a log axis up to infinity (9·10³⁰⁷ doubled) asked for 2³¹
+    /// powers of ten; the ticks are bounded for any range, and a whole
+    /// double range gets at most a dozen or so.
+    #[test]
+    fn ticks_are_bounded_for_any_range() {
+        assert!(log_ticks(9e307, f64::INFINITY).len() <= 2);
+        let all = log_ticks(f64::MIN_POSITIVE, f64::MAX);
+        assert!((10..=16).contains(&all.len()), "{all:?}");
+        assert!(all.iter().all(|v| v.is_finite() && *v > 0.0));
+        assert!(log_ticks(f64::NAN, f64::NAN).len() <= 3);
+        assert!(linear_ticks(-f64::MAX, f64::MAX, 10.0).is_empty());
+        assert!(linear_ticks(0.0, f64::INFINITY, 10.0).is_empty());
+        let big = linear_ticks(0.0, 9.36e307, 13.0);
+        assert!(!big.is_empty() && big.len() <= 101 && big.iter().all(|v| v.is_finite()));
     }
 
     /// A frame of 400×280 pixels showing 10⁰…10³ by 10⁰…10² (or 0…3 by 0…2).

@@ -764,9 +764,14 @@ fn difference(r: &Results, opts: &Options, bands: bool) -> Result<Figure, String
         }
     });
     let Some((c, sign)) = found else {
-        return Err(format!(
-            "{a} and {b} were not compared: with more than ten learners each is compared with the first only"
-        ));
+        // Labels quoted with their escapes (#35): a control character in
+        // a file's label never reaches a terminal raw.
+        let why = if r.learners.len() > crate::experiment::MAX_ALL_PAIRS {
+            "with more than ten learners each is compared with the first only"
+        } else {
+            "the results file holds no comparison of the two"
+        };
+        return Err(format!("{a:?} and {b:?} were not compared: {why}"));
     };
     let flip = |xs: &[f64]| xs.iter().map(|x| sign * x).collect::<Vec<f64>>();
     let band = if sign > 0.0 {

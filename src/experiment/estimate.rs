@@ -139,6 +139,27 @@ pub fn calibrate_keeping(
     (cal, runs)
 }
 
+/// The least time a variate takes to draw (an exponential or a gamma):
+/// a few nanoseconds on current machines (BENCHMARKS.md's PSRL rows), so
+/// one nanosecond is a floor.
+const DRAW_SECONDS: f64 = 1e-9;
+
+/// A floor on a built-in learner's seconds per episode from the model's
+/// size alone, where its cost is dominated by draws it must make: PSRL
+/// samples every row of its model each episode, H·S·A rows of S draws
+/// (src/learn/psrl.rs). None for the others. On a 100 000-state model one
+/// such episode outlasted calibration and the run started anyway (#35).
+pub fn floor_seconds_per_episode(c: &Point, li: usize) -> Option<f64> {
+    let a = c.exp.learners[li].builtin()?;
+    let m = &c.exp.model;
+    let (h, s, na) = (
+        m.horizon() as f64,
+        m.n_states() as f64,
+        m.n_actions() as f64,
+    );
+    (a.key() == "psrl").then_some(h * s * s * na * DRAW_SECONDS)
+}
+
 /// The time and memory of the runs `jobs` ((point, run) pairs, as
 /// [`super::shard_jobs`] gives them) on `threads` threads, from the
 /// learners' measured costs.

@@ -987,6 +987,11 @@ impl SweepResults {
 /// for showing it again: the header is checked first, then the whole
 /// structure.
 pub fn parse_results(text: &str) -> Result<super::Output, Problems> {
+    // A file that is not JSON at all (cut short, empty, a byte-order mark,
+    // NaN) is told where the JSON breaks, as `run` tells it, not that its
+    // format field is wrong (#35).
+    serde_json::from_str::<serde::de::IgnoredAny>(text)
+        .map_err(|e| Problems::single("", crate::format::lax::syntax_problem(&e)))?;
     let format = crate::format::identify(text);
     // Only the version is read here (the rest is skipped, not stored).
     #[derive(Deserialize)]
@@ -1238,6 +1243,33 @@ fn check_sweep(r: &SweepResults, p: &mut Problems) {
     if r.learners.len() > MAX_LEARNERS {
         p.push("learners", format!("more than {MAX_LEARNERS} learners"));
         return;
+    }
+    // The format's limits on texts, as for one point's results (#35):
+    // a sweep's own name, parameter and learner labels were never checked.
+    use crate::model::limits::{MAX_LABEL_CHARS, MAX_NAME_CHARS};
+    let mut texts: Vec<(String, &str, usize)> = vec![
+        ("name".into(), r.name.as_str(), MAX_NAME_CHARS),
+        ("parameter".into(), r.parameter.as_str(), MAX_NAME_CHARS),
+    ];
+    if let Some(x) = &r.scaling_in {
+        texts.push(("scaling_in".into(), x.as_str(), MAX_NAME_CHARS));
+    }
+    for (i, l) in r.learners.iter().enumerate() {
+        texts.push((
+            format!("learners[{i}].label"),
+            l.label.as_str(),
+            MAX_LABEL_CHARS,
+        ));
+        texts.push((
+            format!("learners[{i}].algorithm"),
+            l.algorithm.as_str(),
+            MAX_LABEL_CHARS,
+        ));
+    }
+    for (at, text, max) in texts {
+        if text.chars().count() > max {
+            p.push(at, format!("longer than {max} characters"));
+        }
     }
     for (i, l) in r.learners.iter().enumerate() {
         for (f, n) in [

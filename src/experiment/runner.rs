@@ -239,6 +239,28 @@ impl Runner {
         e
     }
 
+    /// A floor on the run's time from the models' sizes alone (nothing is
+    /// timed): the learners whose episodes must make a number of draws set
+    /// by the model ([`super::estimate::floor_seconds_per_episode`]); the
+    /// others count nothing.
+    pub fn floor_estimate(&self) -> Estimate {
+        let per_point = self
+            .points
+            .iter()
+            .map(|c| {
+                (0..c.exp.learners.len())
+                    .map(|li| super::estimate::floor_seconds_per_episode(c, li))
+                    .collect()
+            })
+            .collect();
+        let mut e = self.estimate_from(&Calibration {
+            per_point,
+            learners: Vec::new(),
+        });
+        e.at_least = true;
+        e
+    }
+
     /// The memory the run will need, counted from sizes (nothing is timed).
     pub fn memory_needed(&self) -> f64 {
         let unmeasured = Calibration {
@@ -301,6 +323,17 @@ impl Runner {
             let needed = self.memory_needed();
             if needed > free {
                 return Err(Stopped::OverMemory { needed, free });
+            }
+        }
+        if let Budget::Within { seconds, .. } = *budget {
+            // Refused before anything starts when the models' sizes alone
+            // put the run over the budget (#35).
+            let floor = self.floor_estimate();
+            if floor.seconds > seconds {
+                return Err(Stopped::OverTime {
+                    estimate: floor,
+                    budget: seconds,
+                });
             }
         }
         let s = Schedule::new(self, budget, clock, pool, watch);

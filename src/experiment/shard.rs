@@ -423,6 +423,26 @@ fn check_record(
             ));
         }
     }
+    // Forged values would summarise to infinities (#35): every number of a
+    // record is finite and within the model format's ±1e300.
+    let most = crate::model::limits::MAX_MAGNITUDE;
+    for (field, xs) in [
+        ("regret", &r.regret),
+        ("episode_regret", &r.episode_regret),
+        ("returns", &r.returns),
+        ("certificate", &r.certificate),
+        ("regret_cells", &r.regret_cells),
+    ] {
+        if let Some((i, x)) = xs
+            .iter()
+            .enumerate()
+            .find(|(_, x)| !(x.is_finite() && x.abs() <= most))
+        {
+            return Err(format!(
+                "{field}[{i}] is {x:e}, not a finite number within ±{most:e}"
+            ));
+        }
+    }
     let k = e.episodes;
     for (field, xs) in [
         ("last_above", &r.last_above),

@@ -25,6 +25,9 @@ pub const MAX_SEEDS: u64 = 10_000;
 pub const MAX_LEARNERS: usize = 64;
 /// Most ε targets of an experiment.
 pub const MAX_EPS_TARGETS: usize = 16;
+/// The smallest ε target: S·A·H³/ε² stays finite for every model within
+/// the cell limits.
+pub const MIN_EPS_TARGET: f64 = 1e-100;
 /// Longest `model_path`, in characters.
 pub const MAX_PATH_CHARS: usize = 4096;
 /// Most checkpoints per curve.
@@ -746,8 +749,14 @@ fn convert(
                 for (i, x) in list.into_iter().enumerate() {
                     let p = format!("eps_targets[{i}]");
                     if let Some(x) = r.take(&p, x, "a number") {
-                        if x.is_finite() && x > 0.0 {
+                        if x.is_finite() && x >= MIN_EPS_TARGET {
                             out.push(x);
+                        } else if x > 0.0 && x.is_finite() {
+                            // The PAC order S·A·H³/ε² would overflow (#35).
+                            r.problems.push(
+                                p,
+                                format!("expected a number ≥ {MIN_EPS_TARGET:e} (the PAC order S·A·H³/ε² must be a finite number), found {x:e}"),
+                            );
                         } else {
                             r.problems
                                 .push(p, format!("expected a number > 0, found {x}"));
@@ -886,6 +895,14 @@ fn convert(
         });
     }
     Some(exp)
+}
+
+/// A number as a JSON file writes it, in its shortest form ("1e300", not
+/// 301 digits; "4", not "4.0"), to quote a file's value back (#35).
+fn as_written(x: f64) -> String {
+    let t = serde_json::Number::from_f64(x).map_or_else(|| x.to_string(), |n| n.to_string());
+    let t = t.replace("e+", "e");
+    t.strip_suffix(".0").map(str::to_string).unwrap_or(t)
 }
 
 fn sweep_of(
@@ -1053,7 +1070,11 @@ impl Experiment {
             SweepParameter::Generator(p) => {
                 let g = self.generator.as_ref().expect("checked when read");
                 let Some(g) = g.with(p.name, x) else {
-                    return bad(format!("expected a whole number for {}, found {x}", p.name));
+                    return bad(format!(
+                        "expected a whole number for {}, found {}",
+                        p.name,
+                        as_written(x)
+                    ));
                 };
                 e.model = g.generate("generator")?;
                 check_learnable(&e.model)?;

@@ -491,7 +491,11 @@ impl GeneratorSpec {
     pub fn with(&self, name: &str, x: f64) -> Option<GeneratorSpec> {
         let p = self.info().params.iter().find(|p| p.name == name)?;
         let v = match p.kind {
-            ParamKind::Whole | ParamKind::OptionalWhole if x.fract() == 0.0 && x >= 0.0 => {
+            // Whole numbers a double holds exactly (1e300 saturated to
+            // 18446744073709551615 and was quoted as that; #35).
+            ParamKind::Whole | ParamKind::OptionalWhole
+                if x.fract() == 0.0 && (0.0..=9_007_199_254_740_992.0).contains(&x) =>
+            {
                 ParamValue::Whole(x as u64)
             }
             ParamKind::Number => ParamValue::Number(x),

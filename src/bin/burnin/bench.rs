@@ -32,6 +32,20 @@ fn peak_rss() -> Option<u64> {
 }
 
 pub fn bench(a: &Args) -> Result<(), Failure> {
+    if let Some(k) = a.only.as_deref() {
+        // An unknown key printed empty figures with exit 0 (#35).
+        let keys: Vec<String> = burnin::bench::bench_learners()
+            .iter()
+            .map(|l| l.key().to_string())
+            .chain([burnin::bench::FLOOR.to_string()])
+            .collect();
+        if !keys.iter().any(|x| x == k) {
+            return Err(Failure::Io(format!(
+                "--only {k:?}: expected a learner of the benchmarks or floor: {}",
+                keys.join(", ")
+            )));
+        }
+    }
     let start = std::time::Instant::now();
     let now = move || start.elapsed().as_secs_f64();
     let sel = burnin::bench::Selection {

@@ -142,10 +142,4 @@ impl FigureArgs {
             Kind::Png => burnin::chart::raster::png(&fig, w, h, s),
         })
     }
-
-    /// Writes the figure of `out` to `path`.
-    pub fn write(&self, out: &Output, path: &Path) -> Result<(), String> {
-        let bytes = self.render(out, path)?;
-        std::fs::write(path, bytes).map_err(|e| format!("cannot write {}: {e}", path.display()))
-    }
 }

@@ -67,6 +67,9 @@ pub fn read_text(path: &Path) -> Result<String, Failure> {
     let limit = MAX_FILE_BYTES as u64 + 1;
     let res = if path.as_os_str() == "-" {
         std::io::stdin().lock().take(limit).read_to_end(&mut bytes)
+    } else if std::fs::metadata(path).is_ok_and(|m| !m.is_file() && !m.is_dir()) {
+        bytes = read_special(path, limit)?;
+        Ok(bytes.len())
     } else {
         std::fs::File::open(path).and_then(|f| f.take(limit).read_to_end(&mut bytes))
     };
@@ -82,6 +85,54 @@ pub fn read_text(path: &Path) -> Result<String, Failure> {
             e.utf8_error().valid_up_to()
         )])
     })
+}
+
+/// Seconds a named pipe (FIFO) or device given as a file may take to
+/// open: opening a FIFO waits for a writer, and none may ever come.
+const OPEN_SECONDS: u64 = 10;
+
+/// Reads a file that is not a regular file (a pipe from `<(…)`, a FIFO, a
+/// device) on a thread of its own, so that a FIFO nobody writes to is an
+/// error after `OPEN_SECONDS`, not a wait without end (#35).
+fn read_special(path: &Path, limit: u64) -> Result<Vec<u8>, Failure> {
+    let name = path.display().to_string();
+    let (opened_tx, opened) = std::sync::mpsc::channel::<()>();
+    let (done_tx, done) = std::sync::mpsc::channel();
+    let owned = path.to_path_buf();
+    std::thread::spawn(move || {
+        let res = std::fs::File::open(&owned).and_then(|f| {
+            let _ = opened_tx.send(());
+            let mut bytes = Vec::new();
+            f.take(limit).read_to_end(&mut bytes).map(|_| bytes)
+        });
+        let _ = done_tx.send(res);
+    });
+    let wait = std::time::Duration::from_secs(OPEN_SECONDS);
+    match opened.recv_timeout(wait) {
+        Ok(()) | Err(std::sync::mpsc::RecvTimeoutError::Disconnected) => {}
+        Err(std::sync::mpsc::RecvTimeoutError::Timeout) => {
+            return Err(Failure::Io(format!(
+                "cannot read {name}: it is not a regular file, and nothing opened it for writing within {OPEN_SECONDS} s (a named pipe with no writer?)"
+            )));
+        }
+    }
+    done.recv()
+        .unwrap_or_else(|_| Err(std::io::Error::other("the reader stopped")))
+        .map_err(|e| Failure::Io(format!("cannot read {name}: {e}")))
+}
+
+/// A model file named inside another file (`model_path`): a regular file,
+/// never a device, a pipe or standard input — a colleague's experiment
+/// must not make Burnin wait on a FIFO or read the terminal (#35).
+pub fn read_named_file(path: &Path) -> Result<String, Failure> {
+    let under_dev = path.starts_with("/dev") || path.starts_with("/proc");
+    match std::fs::metadata(path) {
+        Ok(m) if !m.is_file() || under_dev => Err(Failure::Invalid(vec![format!(
+            "{}: not a regular file; name a model file",
+            path.display()
+        )])),
+        _ => read_text(path),
+    }
 }
 
 pub fn invalid(p: Problems) -> Failure {

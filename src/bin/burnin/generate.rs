@@ -7,6 +7,7 @@ use std::path::PathBuf;
 use burnin::generate::{GENERATORS, GeneratorSpec, ParamError, ParamKind, ParamValue, Values};
 
 use crate::files::{Failure, emit};
+use crate::outputs::{check_outputs, write_output};
 
 #[derive(clap::Args)]
 pub struct Args {
@@ -114,6 +115,9 @@ fn param_failure(e: ParamError) -> Failure {
 }
 
 pub fn generate(a: Args) -> Result<(), Failure> {
+    if let Some(p) = &a.output {
+        check_outputs(&[("--output", p)], &[], "")?;
+    }
     let spec = GeneratorSpec {
         values: a.kind.values,
         seed: a.seed,
@@ -121,8 +125,7 @@ pub fn generate(a: Args) -> Result<(), Failure> {
     let model = spec.build().map_err(param_failure)?;
     let text = burnin::write_model(&model);
     match a.output {
-        Some(p) => std::fs::write(&p, text)
-            .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display()))),
+        Some(p) => write_output(&p, text.as_bytes()).map_err(Failure::Io),
         None => emit(&text),
     }
 }

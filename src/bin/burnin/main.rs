@@ -2,7 +2,7 @@
 //! codes (0 ok, 1 invalid input, 2 usage or I/O error, 3 a guest learner
 //! failed) and output formatting; all logic is in the library, shared with
 //! the page, except starting guest learners' processes (`guest.rs`). One
-//! module per command; `files.rs`, `tables.rs`, `report.rs`, `progress.rs`
+//! module per command; `files.rs`, `outputs.rs`, `tables.rs`, `report.rs`, `progress.rs`
 //! and `figure.rs` are what several commands share.
 
 mod bench;
@@ -14,6 +14,7 @@ mod guest;
 mod guest_groups;
 mod guest_process;
 mod merge;
+mod outputs;
 mod plot;
 mod progress;
 mod report;

@@ -5,6 +5,7 @@ use std::path::PathBuf;
 
 use crate::figure::FigureArgs;
 use crate::files::{Failure, invalid_in, read_text};
+use crate::outputs::{check_outputs, write_output};
 
 #[derive(clap::Args)]
 pub struct Args {
@@ -20,17 +21,9 @@ pub struct Args {
 pub fn plot(a: &Args) -> Result<(), Failure> {
     let (file, output, look) = (&a.file, &a.output, &a.figure);
     look.check(output).map_err(Failure::Io)?;
-    if std::fs::canonicalize(file)
-        .is_ok_and(|f| std::fs::canonicalize(output).is_ok_and(|o| o == f))
-    {
-        return Err(Failure::Io(format!(
-            "--output {}: that is the results file, which the figure would overwrite; choose another path",
-            output.display()
-        )));
-    }
+    check_outputs(&[("--output", output)], &[file], "the results file")?;
     let text = read_text(file)?;
     let out = burnin::experiment::parse_results(&text).map_err(|p| invalid_in(file, p))?;
     let bytes = look.render(&out, output).map_err(Failure::Io)?;
-    std::fs::write(output, bytes)
-        .map_err(|e| Failure::Io(format!("cannot write {}: {e}", output.display())))
+    write_output(output, &bytes).map_err(Failure::Io)
 }

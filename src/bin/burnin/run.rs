@@ -13,7 +13,7 @@ use burnin::experiment::{Budget, Runner, Stopped, bytes_words, parse_experiment}
 
 use burnin::native::Threads;
 
-use crate::files::{Failure, emit, invalid, read_text};
+use crate::files::{Failure, emit, invalid, read_named_file, read_text};
 use crate::guest;
 use crate::progress::Progress;
 use crate::tables::TableArgs;
@@ -81,12 +81,24 @@ fn parse_shard(text: &str) -> Result<(usize, usize), Failure> {
     Ok((i, n))
 }
 
+/// Most runs in parallel (`--threads`): far more than any machine's cores,
+/// far fewer than a system lets one process start.
+const MAX_THREADS: usize = 1024;
+
 /// Checks the options that need no file, before anything is read.
 fn check_options(a: &Args) -> Result<(), Failure> {
     if !(a.estimate || a.no_budget || a.budget > 0.0 && a.budget.is_finite()) {
         return Err(Failure::Io(format!(
             "--budget: expected a number of minutes > 0, found {}",
             a.budget
+        )));
+    }
+    if let Some(n) = a.threads
+        && !(1..=MAX_THREADS).contains(&n)
+    {
+        // 100 000 threads panicked ("failed to spawn thread"; #35).
+        return Err(Failure::Io(format!(
+            "--threads {n}: expected 1 to {MAX_THREADS} runs in parallel"
         )));
     }
     if !(a.learner_timeout > 0.0 && a.learner_timeout <= 86_400.0) {
@@ -117,7 +129,7 @@ pub fn run(a: &Args) -> Result<(), Failure> {
         *model_file.lock().expect("not poisoned") = Some(base.join(rel));
         // The same size limit as any file given on the command line, applied
         // while reading (a device file or a huge file is not read to the end).
-        let t = read_text(&base.join(rel)).map_err(|f| match f {
+        let t = read_named_file(&base.join(rel)).map_err(|f| match f {
             Failure::Io(m) | Failure::Guest(m) => m,
             Failure::Invalid(lines) => lines.join("; "),
         })?;

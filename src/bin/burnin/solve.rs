@@ -5,7 +5,7 @@ use std::path::PathBuf;
 use burnin::Mdp;
 
 use crate::files::{Failure, emit, load};
-use crate::tables::{column_width, fixed6};
+use crate::tables::{column_width, fixed6, terminal_safe};
 use crate::validate::summary;
 
 #[derive(clap::Args)]
@@ -23,7 +23,9 @@ pub fn solve(a: &Args) -> Result<(), Failure> {
     if a.json {
         return emit(&burnin::solve::solution_json(&m, &sol));
     }
-    emit(&solution_table(&m, &sol))
+    // Labels from the file are shown with escapes, as run and validate
+    // show them, never sent raw to the terminal (#35).
+    emit(&terminal_safe(&solution_table(&m, &sol)))
 }
 
 /// A readable table: one line per (step, state) with V*, the optimal action,

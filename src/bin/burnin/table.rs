@@ -3,11 +3,12 @@
 //! (`burnin::experiment::comparison_table`), the same text the page's
 //! "Comparison table" export downloads.
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 use burnin::experiment::{TableFormat, parse_results};
 
 use crate::files::{Failure, emit, invalid_in, read_text};
+use crate::outputs::{check_outputs, write_output};
 
 #[derive(clap::Args)]
 pub struct Args {
@@ -52,40 +53,16 @@ fn format_of(a: &Args) -> Result<TableFormat, Failure> {
     }
 }
 
-/// Refuses an output path that is the results file itself, a folder, or
-/// in a folder that does not exist, before anything is read.
-fn check_output(input: &Path, output: &Path) -> Result<(), Failure> {
-    let at = |why: &str| Failure::Io(format!("--output {}: {why}", output.display()));
-    if output.is_dir() {
-        return Err(at("that is a folder; name a file"));
-    }
-    if let Some(folder) = output.parent()
-        && !folder.as_os_str().is_empty()
-        && !folder.is_dir()
-    {
-        return Err(at(&format!("there is no folder {}", folder.display())));
-    }
-    let same = std::fs::canonicalize(input)
-        .is_ok_and(|i| std::fs::canonicalize(output).is_ok_and(|o| o == i));
-    if same {
-        return Err(at(
-            "that is the results file, which the table would overwrite; choose another path",
-        ));
-    }
-    Ok(())
-}
-
 pub fn table(a: &Args) -> Result<(), Failure> {
     let format = format_of(a)?;
     if let Some(output) = &a.output {
-        check_output(&a.file, output)?;
+        check_outputs(&[("--output", output)], &[&a.file], "the results file")?;
     }
     let text = read_text(&a.file)?;
     let out = parse_results(&text).map_err(|p| invalid_in(&a.file, p))?;
     let table = out.table(format);
     match &a.output {
-        Some(p) => std::fs::write(p, table)
-            .map_err(|e| Failure::Io(format!("cannot write {}: {e}", p.display()))),
+        Some(p) => write_output(p, table.as_bytes()).map_err(Failure::Io),
         None => emit(&table),
     }
 }

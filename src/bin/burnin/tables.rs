@@ -7,6 +7,7 @@ use burnin::experiment::Output;
 
 use crate::figure;
 use crate::files::{Failure, emit};
+use crate::outputs::{check_outputs, stage_output};
 use crate::report::{results_table, sweep_table};
 
 /// The CSV tables `run` and `merge` can write besides their output.
@@ -35,33 +36,23 @@ impl TableArgs {
         self.figure.as_deref().map(|p| (p, &self.look))
     }
 
-    /// Refuses a table path that names one of the input files (it would be
-    /// overwritten with a CSV), before anything runs.
+    /// Checks every output path before anything runs (`check_outputs`):
+    /// none is an input, a folder, in a missing folder, or named twice.
     pub fn check_paths(&self, inputs: &[&Path]) -> Result<(), Failure> {
         if let Some((p, look)) = self.figure() {
             look.check(p)
                 .map_err(|e| Failure::Io(format!("--figure: {e}")))?;
         }
-        for (flag, path) in [
+        let outputs: Vec<(&str, &Path)> = [
             ("--csv", self.csv.as_deref()),
             ("--cells-csv", self.cells_csv.as_deref()),
             ("--seeds-csv", self.seeds_csv.as_deref()),
             ("--figure", self.figure.as_deref()),
-        ] {
-            let Some(p) = path else { continue };
-            let Ok(out) = std::fs::canonicalize(p) else {
-                continue;
-            };
-            for input in inputs {
-                if std::fs::canonicalize(input).is_ok_and(|i| i == out) {
-                    return Err(Failure::Io(format!(
-                        "{flag} {}: that is an input file, which this output would overwrite; choose another path",
-                        p.display()
-                    )));
-                }
-            }
-        }
-        Ok(())
+        ]
+        .into_iter()
+        .filter_map(|(flag, p)| p.map(|p| (flag, p)))
+        .collect();
+        check_outputs(&outputs, inputs, "an input file")
     }
 
     /// Prints the results, then writes every table and the figure: the
@@ -82,20 +73,30 @@ impl TableArgs {
             (self.cells_csv.as_deref(), Output::cells_csv),
             (self.seeds_csv.as_deref(), Output::seeds_csv),
         ];
+        // Every file is written under a temporary name first and all are
+        // put in place together, so an interrupt leaves the old files as
+        // they were, never a new table beside an old one.
         let mut failed = Vec::new();
+        let mut staged = Vec::new();
         let mut written = Vec::new();
         for (path, write) in writers {
             if let Some(p) = path {
-                match std::fs::write(p, write(out)) {
-                    Ok(()) => written.push(p.display().to_string()),
-                    Err(e) => failed.push(format!("cannot write {}: {e}", p.display())),
+                match stage_output(p, write(out).as_bytes()) {
+                    Ok(s) => staged.push((p, s)),
+                    Err(e) => failed.push(e),
                 }
             }
         }
         if let Some((p, look)) = self.figure() {
-            match look.write(out, p) {
-                Ok(()) => written.push(p.display().to_string()),
+            match look.render(out, p).and_then(|b| stage_output(p, &b)) {
+                Ok(s) => staged.push((p, s)),
                 Err(e) => failed.push(format!("--figure: {e}")),
+            }
+        }
+        for (p, s) in staged {
+            match s.map_or(Ok(()), |s| s.commit()) {
+                Ok(()) => written.push(p.display().to_string()),
+                Err(e) => failed.push(e),
             }
         }
         match (printed, failed.is_empty()) {
@@ -118,7 +119,7 @@ impl TableArgs {
 
 /// A table for a terminal: control characters (from labels and names in
 /// files) are shown as escapes, never sent to the terminal.
-fn terminal_safe(text: &str) -> String {
+pub fn terminal_safe(text: &str) -> String {
     text.chars()
         .map(|c| {
             if c.is_control() && c != '\n' {
