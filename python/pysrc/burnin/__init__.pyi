@@ -109,8 +109,8 @@ class _Generate:
         """Random sparse model, Garnet-style (Archibald, McKinnon & Thomas 1995)."""
     def river(self, *, states: int = 6, horizon: int = 20, p_forward: float = 0.3, p_back: float = 0.1, small_reward: float = 0.005, big_reward: float = 1.0, seed: int = 1) -> Model:
         """River-swim-style chain (after Strehl & Littman 2008)."""
-    def drift_grid(self, *, width: int = 5, height: int = 3, slip: float = 0.1, horizon: int = 12, goal_reward: float = 1.0, goal_column: Optional[int] = None, goal_row: Optional[int] = None, seed: int = 1) -> Model:
-        """Rectangle of cells whose moves drift sideways, with one paying goal cell."""
+    def drift_grid(self, *, width: int = 7, height: int = 4, slip: float = 0.1, horizon: int = 12, goal_reward: float = 1.0, start_column: Optional[int] = None, start_row: Optional[int] = None, goal_column: Optional[int] = None, goal_row: Optional[int] = None, seed: int = 1) -> Model:
+        """Board of cells c0r0, c1r0, … whose moves drift sideways, from a start inside it to one paying goal cell."""
     def lock(self, *, horizon: int = 6, actions: int = 2, time_dependent: bool = False, seed: int = 1) -> Model:
         """Combination lock: one right action per step, a wrong one jams it."""
     def lower_bound(self, *, actions: int = 2, depth: int = 2, horizon: int = 10, wait_until: int = 3, epsilon: float = 0.2, special_step: Optional[int] = None, special_leaf: Optional[int] = None, special_action: Optional[int] = None, seed: int = 1) -> Model:
