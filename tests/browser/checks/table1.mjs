@@ -71,3 +71,31 @@ await check('a sweep over S reads each learner\'s burn-in and regret exponents b
   const burn = (await downloadText(page, '#export-svg')).text;
   assert(burn.includes('ucbvi-bernstein ×0.05: published S^3 (does not apply)'), 'the published burn-in order is drawn and named');
 });
+
+await check('results whose curves sit near the largest double draw on bounded log axes, and the page stays usable (#35 §4)', async (page) => {
+  await openPage(page);
+  await page.click('#tab-experiment');
+  await page.fill('#exp-episodes', '300');
+  await runAndWait(page);
+  const r = await resultsJson(page);
+  // Forge curves at 9·10³⁰⁷ with an upper end at the largest double: the
+  // chart must draw (or say why not) without the bindings failing, and
+  // every later action must still work.
+  for (const l of r.learners) {
+    l.regret_mean = l.regret_mean.map(() => 9e307);
+    l.regret_hi = l.regret_hi.map(() => 1.7976931348623157e308);
+    l.regret_lo = l.regret_lo.map(() => 1e307);
+  }
+  await upload(page, 'huge-results.json', JSON.stringify(r));
+  await page.waitForFunction(() => document.getElementById('notice').textContent === 'Showing results from huge-results.json.', null, { timeout: 20000 });
+  await page.check('input[name=axes][value=log]');
+  const svg = (await downloadText(page, '#export-svg')).text;
+  assert(svg.startsWith('<svg') || svg.startsWith('<?xml'), 'the log chart exports');
+  await page.selectOption('#chart-view', 'episode');
+  const again = (await downloadText(page, '#export-svg')).text;
+  assert(again.includes('per-episode') || again.length > 1000, 'a later view still draws');
+  // And a normal run afterwards replaces them and draws.
+  await page.click('#tab-experiment');
+  await runAndWait(page);
+  assert((await downloadText(page, '#export-svg')).text.length > 1000, 'the page is usable after');
+});
