@@ -185,12 +185,27 @@ pub fn bench_learners() -> Vec<Algorithm> {
         .collect()
 }
 
+/// The learning workload's K for OPSRL: its plan draws J Dirichlet vectors
+/// per visited row every episode (J ≈ 170 here), so its episodes grow
+/// costlier with the data and K = 10⁵ would take hours.
+pub const OPSRL_LEARN_EPISODES: u64 = 200;
+
+/// The learning workload's K for learner `a` when the others run `episodes`.
+pub fn learn_episodes(a: Algorithm, episodes: u64) -> u64 {
+    if a.kind == AlgorithmKind::Opsrl {
+        episodes.min(OPSRL_LEARN_EPISODES)
+    } else {
+        episodes
+    }
+}
+
 /// Episodes per second of each learner on the learning workload.
 pub fn learn_figures(now: &dyn Fn() -> f64, episodes: u64, only: Option<&str>) -> Vec<Figure> {
     bench_learners()
         .into_iter()
         .filter(|a| only.is_none_or(|k| a.key() == k))
         .map(|a| {
+            let episodes = learn_episodes(a, episodes);
             let ctx = Point::new(learn_experiment(a, episodes));
             // Repeated while the repetitions so far took under LEARN_SECONDS
             // (at most LEARN_REPS): a shared machine's noise moves single
