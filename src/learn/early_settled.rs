@@ -104,6 +104,7 @@
 //! - Z. Zhang, Y. Chen, J. D. Lee and S. S. Du, arXiv:2307.13586, Table 1
 //!   (the bound's row) [V].
 
+use super::greedy::GreedyTable;
 use super::{LearnRng, Learner, PolicyView, Setting, argmax_random, learning_rate};
 
 /// c_b, the paper's "sufficiently large universal constant" (no value given
@@ -172,11 +173,8 @@ pub struct QEarlySettled {
     v_lcb: Vec<f64>,
     v_ref: Vec<f64>,
     settled: Vec<bool>,
-    greedy: Vec<u32>,
-    version: u64,
-    seen_version: Option<u64>,
-    updates: u64,
-    initialised: bool,
+    /// π, its version and the episodes whose policy changed.
+    greedy: GreedyTable,
 }
 
 impl QEarlySettled {
@@ -210,11 +208,7 @@ impl QEarlySettled {
             v_lcb: per_step(0.0),
             v_ref: per_step(hh),
             settled: vec![false; states],
-            greedy: vec![0; states],
-            version: 0,
-            seen_version: None,
-            updates: 0,
-            initialised: false,
+            greedy: GreedyTable::new(&set),
         }
     }
 
@@ -283,7 +277,7 @@ impl QEarlySettled {
             self.v_lcb.len(),
             self.v_ref.len(),
             self.settled.len(),
-            self.greedy.len(),
+            self.greedy.policy().len(),
         ];
         rows.iter().chain(&states).sum()
     }
@@ -293,42 +287,33 @@ impl QEarlySettled {
         let a_n = self.set.actions;
         let base = self.set.row(h, s, 0);
         let best = argmax_random(&self.q[base..base + a_n], rng);
-        let slot = &mut self.greedy[h * self.set.states + s];
-        if *slot != best as u32 {
-            *slot = best as u32;
-            self.version += 1;
-        }
+        self.greedy.set(h, s, best);
         self.v[h * self.set.states + s] = self.q[base + best];
     }
 }
 
 impl Learner for QEarlySettled {
     fn begin_episode(&mut self, rng: &mut LearnRng) {
-        if !self.initialised {
-            self.initialised = true;
+        if !self.greedy.initialised() {
             for h in 0..self.set.horizon {
                 for s in 0..self.set.states {
                     self.regreedy(h, s, rng);
                 }
             }
-            self.version += 1;
         }
-        if self.seen_version != Some(self.version) {
-            self.seen_version = Some(self.version);
-            self.updates += 1;
-        }
+        self.greedy.begin_episode();
     }
 
     fn policy(&self) -> PolicyView<'_> {
-        PolicyView::Greedy(&self.greedy)
+        PolicyView::Greedy(self.greedy.policy())
     }
 
     fn policy_version(&self) -> u64 {
-        self.version
+        self.greedy.version()
     }
 
     fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
-        self.greedy[h * self.set.states + s] as usize
+        self.greedy.action(h, s)
     }
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, rng: &mut LearnRng) {
@@ -391,6 +376,6 @@ impl Learner for QEarlySettled {
     }
 
     fn model_updates(&self) -> u64 {
-        self.updates
+        self.greedy.updates()
     }
 }

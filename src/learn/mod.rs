@@ -21,6 +21,7 @@ mod contract;
 mod counts;
 mod early_settled;
 mod euler;
+mod greedy;
 mod guest;
 mod mvp;
 mod opsrl;

@@ -46,6 +46,7 @@
 //!   Provably Efficient?", NeurIPS 2018, arXiv:1807.03765: Algorithm 1
 //!   (Hoeffding) and Algorithm 2 of Appendix C (Bernstein).
 
+use super::greedy::GreedyTable;
 use super::{LearnRng, Learner, PolicyView, Setting, argmax_random};
 
 /// c₁ of the Bernstein β_t: an absolute constant the paper does not give (our choice).
@@ -83,11 +84,8 @@ pub struct QUcb {
     v: Vec<f64>,
     /// The Bernstein bonus's statistics (None: the Hoeffding bonus).
     bernstein: Option<Bernstein>,
-    greedy: Vec<u32>,
-    version: u64,
-    seen_version: Option<u64>,
-    updates: u64,
-    initialised: bool,
+    /// π, its version and the episodes whose policy changed.
+    greedy: GreedyTable,
 }
 
 impl QUcb {
@@ -115,11 +113,7 @@ impl QUcb {
                 bonus: vec![0.0; set.rows()],
                 lower: (hh.powi(7) * s * a).sqrt() * iota,
             }),
-            greedy: vec![0; set.horizon * set.states],
-            version: 0,
-            seen_version: None,
-            updates: 0,
-            initialised: false,
+            greedy: GreedyTable::new(&set),
         }
     }
 
@@ -144,11 +138,7 @@ impl QUcb {
         let a_n = self.set.actions;
         let base = self.set.row(h, s, 0);
         let best = argmax_random(&self.q[base..base + a_n], rng);
-        let slot = &mut self.greedy[h * self.set.states + s];
-        if *slot != best as u32 {
-            *slot = best as u32;
-            self.version += 1;
-        }
+        self.greedy.set(h, s, best);
         let hh = self.set.horizon as f64;
         self.v[h * self.set.states + s] = self.q[base + best].min(hh);
     }
@@ -156,31 +146,26 @@ impl QUcb {
 
 impl Learner for QUcb {
     fn begin_episode(&mut self, rng: &mut LearnRng) {
-        if !self.initialised {
-            self.initialised = true;
+        if !self.greedy.initialised() {
             for h in 0..self.set.horizon {
                 for s in 0..self.set.states {
                     self.regreedy(h, s, rng);
                 }
             }
-            self.version += 1;
         }
-        if self.seen_version != Some(self.version) {
-            self.seen_version = Some(self.version);
-            self.updates += 1;
-        }
+        self.greedy.begin_episode();
     }
 
     fn policy(&self) -> PolicyView<'_> {
-        PolicyView::Greedy(&self.greedy)
+        PolicyView::Greedy(self.greedy.policy())
     }
 
     fn policy_version(&self) -> u64 {
-        self.version
+        self.greedy.version()
     }
 
     fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
-        self.greedy[h * self.set.states + s] as usize
+        self.greedy.action(h, s)
     }
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, rng: &mut LearnRng) {
@@ -213,6 +198,6 @@ impl Learner for QUcb {
     }
 
     fn model_updates(&self) -> u64 {
-        self.updates
+        self.greedy.updates()
     }
 }

@@ -114,6 +114,7 @@
 //!   Provably Efficient?", NeurIPS 2018, arXiv:1807.03765 (the Q-learning
 //!   this refines).
 
+use super::greedy::GreedyTable;
 use super::{LearnRng, Learner, PolicyView, Setting, argmax_random};
 
 /// c₄ of the reference threshold N₀ = c₄·S·A·H⁵·ι/β²: an absolute constant
@@ -184,11 +185,8 @@ pub struct UcbAdvantage {
     v_ref: Vec<f64>,
     /// Σ_a N_h(s,a), `[h·S + s]`.
     state_n: Vec<u64>,
-    greedy: Vec<u32>,
-    version: u64,
-    seen_version: Option<u64>,
-    updates: u64,
-    initialised: bool,
+    /// π, its version and the episodes whose policy changed.
+    greedy: GreedyTable,
     /// Stage ends at which Q fell, and those at which the reference branch
     /// gave the new value.
     lowered: u64,
@@ -234,11 +232,7 @@ impl UcbAdvantage {
             v_ref: v.clone(),
             v,
             state_n: vec![0; set.horizon * set.states],
-            greedy: vec![0; set.horizon * set.states],
-            version: 0,
-            seen_version: None,
-            updates: 0,
-            initialised: false,
+            greedy: GreedyTable::new(&set),
             lowered: 0,
             by_reference: 0,
         }
@@ -318,13 +312,9 @@ impl UcbAdvantage {
         let q = &self.q[base..base + self.set.actions];
         let slot = h * self.set.states + s;
         let best = q.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        let incumbent = self.greedy[slot] as usize;
-        if !(self.initialised && q[incumbent] == best) {
-            let a = argmax_random(q, rng) as u32;
-            if a != self.greedy[slot] {
-                self.greedy[slot] = a;
-                self.version += 1;
-            }
+        let incumbent = self.greedy.action(h, s);
+        if !(self.greedy.initialised() && q[incumbent] == best) {
+            self.greedy.set(h, s, argmax_random(q, rng));
         }
         self.v[slot] = best;
     }
@@ -332,31 +322,26 @@ impl UcbAdvantage {
 
 impl Learner for UcbAdvantage {
     fn begin_episode(&mut self, rng: &mut LearnRng) {
-        if !self.initialised {
+        if !self.greedy.initialised() {
             for h in 0..self.set.horizon {
                 for s in 0..self.set.states {
                     self.regreedy(h, s, rng);
                 }
             }
-            self.initialised = true;
-            self.version += 1;
         }
-        if self.seen_version != Some(self.version) {
-            self.seen_version = Some(self.version);
-            self.updates += 1;
-        }
+        self.greedy.begin_episode();
     }
 
     fn policy(&self) -> PolicyView<'_> {
-        PolicyView::Greedy(&self.greedy)
+        PolicyView::Greedy(self.greedy.policy())
     }
 
     fn policy_version(&self) -> u64 {
-        self.version
+        self.greedy.version()
     }
 
     fn act(&mut self, h: usize, s: usize, _rng: &mut LearnRng) -> usize {
-        self.greedy[h * self.set.states + s] as usize
+        self.greedy.action(h, s)
     }
 
     fn observe(&mut self, h: usize, s: usize, a: usize, r: f64, next: usize, rng: &mut LearnRng) {
@@ -386,6 +371,6 @@ impl Learner for UcbAdvantage {
     }
 
     fn model_updates(&self) -> u64 {
-        self.updates
+        self.greedy.updates()
     }
 }
