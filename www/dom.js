@@ -61,6 +61,12 @@ function definitionPanel() {
     if (!defPanel.hidden && !defPanel.contains(e.target) && e.target !== defOpener) closeDefinition();
   }, true);
   document.addEventListener('keydown', (e) => { if (e.key === 'Escape' && !defPanel.hidden) { e.preventDefault(); closeDefinition(true); } });
+  // Tabbing out of it (past Close, or back before it) closes it and goes back to its "?".
+  defPanel.addEventListener('keydown', (e) => {
+    if (e.key !== 'Tab') return;
+    const close = defPanel.querySelector('.def-close');
+    if ((!e.shiftKey && e.target === close) || (e.shiftKey && e.target === defPanel)) { e.preventDefault(); closeDefinition(true); }
+  });
   window.addEventListener('resize', placeDef);
   document.addEventListener('scroll', placeDef, { capture: true, passive: true });
   return defPanel;

@@ -822,7 +822,9 @@ export class ExperimentView {
       // (the core's scaling readings, beside the published orders).
       for (const t of this.results.scaling ?? []) {
         const tr = el('tr', null, { class: 'scaling-row' });
-        tr.append(el('th', `${t.label}: scaling in ${t.variable}`), el('td', `${t.burn_in} · ${t.regret}`, { colspan: String(d.values.length) }));
+        const th = el('th', `${t.label}: scaling in ${t.variable}`);
+        th.append(definitionButton(`the scaling of ${t.label}`, this.terms('scaling')));
+        tr.append(th, el('td', `${t.burn_in} · ${t.regret}`, { colspan: String(d.values.length) }));
         body.append(tr);
       }
     } else {

@@ -6,7 +6,7 @@
 // Run by check.mjs; shared helpers in helpers.mjs.
 
 import { readFileSync } from 'node:fs';
-import { checks, url, browser, defaultName, shownValue, openPage, runAndWait, assert, assertEqual } from './helpers.mjs';
+import { checks, url, browser, defaultName, shownValue, openPage, upload, runAndWait, assert, assertEqual } from './helpers.mjs';
 
 const check = checks('guide', import.meta.url);
 
@@ -101,6 +101,13 @@ await check('every results-table header and every term of the guide has a "?" th
   await page.keyboard.press('Escape');
   assertEqual(await shownDefinition(page), null, 'Escape closes it');
   assert(await slope.evaluate((b) => b === document.activeElement), 'the keyboard is back on the "?"');
+  // Tab reaches its Close; tabbing past it closes it and comes back to the "?".
+  await page.keyboard.press('Enter');
+  await page.keyboard.press('Tab');
+  assertEqual(await page.evaluate(() => document.activeElement?.className), 'def-close', 'Tab reaches Close');
+  await page.keyboard.press('Tab');
+  assertEqual(await shownDefinition(page), null, 'tabbing out closes it');
+  assert(await slope.evaluate((b) => b === document.activeElement), 'and the keyboard is back on the "?"');
   // A click elsewhere closes it; its Close button does too.
   await slope.click();
   await page.click('#results-heading');
@@ -147,6 +154,29 @@ await check('a sweep\'s value headers each open the definitions of what their ce
   }
   const reading = await page.locator('#results-table tbody td .reading').first().textContent();
   assert(/^slope .* · burn-in /.test(reading), `the readings its "?" defines are in the cells: ${reading}`);
+});
+
+await check('a sweep over a size: each learner\'s scaling reading opens the core\'s definition of it', async (page) => {
+  await openPage(page);
+  const exp = {
+    format: 'burnin-experiment', version: 1, name: 'scaling',
+    generator: { kind: 'lower-bound', actions: 2, horizon: 8, depth: 1 },
+    episodes: 500, seeds: 2, seed: 3,
+    learners: [{ algorithm: 'uniform' }, { algorithm: 'psrl' }],
+    sweep: { parameter: 'depth', values: [1, 2] },
+  };
+  await upload(page, 'scaling.json', JSON.stringify(exp));
+  await page.waitForSelector('#panel-experiment:not([hidden])');
+  await runAndWait(page);
+  const rows = page.locator('#results-table tr.scaling-row th');
+  assertEqual(await rows.count(), 2, 'a scaling reading per learner');
+  for (let i = 0; i < 2; i++) {
+    const button = rows.nth(i).locator('button.def');
+    await assertVisibleMark(button, `scaling row ${i}`);
+    await button.click();
+    assertDefinition(await shownDefinition(page), ['scaling'], `scaling row ${i}`);
+  }
+  assert(/^uniform: scaling in S$/.test(await rows.nth(0).textContent()), 'the "?" adds no text to the row\'s name');
 });
 
 for (const [width, height] of [[390, 760], [1366, 768]]) {
