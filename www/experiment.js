@@ -45,7 +45,7 @@ export const resultsOf = (doc, experiment = null) => ({
 const SAVE_WHY_NOT = 'Not in the library: a results file does not hold the experiment that made it, and a library entry keeps both. Keep the file itself (Results JSON), or open the experiment and run it.';
 
 /** The session storage key that says the guide was offered in this browser session. */
-const GUIDE_OFFERED = 'burnin.guide-offered';
+const GUIDE_OFFERED = 'burnin:v1:guide-offered';
 
 /** Resolves in a later task (after the browser has had its turn). */
 const nextTask = () => new Promise((resolve) => setTimeout(resolve, 0));
