@@ -95,6 +95,11 @@ pub const GLOSSARY: &[Term] = &[
         meaning: "√(S·A·H³·K), the shape of the minimax lower bound no learner can beat on every model (constants dropped).",
     },
     Term {
+        key: "scaling",
+        name: "scaling in a size",
+        meaning: "How a learner's burn-in and its regret at K grow with the size a sweep changes (S, A, H or K): the exponent b of a power law y ∝ x^b, the least-squares slope of ln y on ln x over the sweep's points, with a 95% bootstrap interval over seeds; points where the learner did not settle by K are left out of the burn-in fit and counted. After \"published\": the same slope through the learner's published bound on the same instances (its burn-in: the K from which its √K term dominates), \"does not apply\" where the bonus is scaled.",
+    },
+    Term {
         key: "regret_cells",
         name: "where regret is paid",
         meaning: "Each episode's regret split exactly over (step, state, action) as occupancy × gap (the performance-difference identity), summed over episodes; the cells sum to the regret.",

@@ -4,7 +4,7 @@
 import { runExperiment, checkGuest, checkExperiment, estimateRun, freshSeed } from './compute.js';
 import * as store from './store.js';
 import { timeLeft } from './eta.js';
-import { el, download, safeName } from './dom.js';
+import { el, download, safeName, definitionButton, closeDefinition } from './dom.js';
 import { openChart, drawInto, EXPORT } from './charts.js';
 import { short, grouped, valueColour, inkOn } from './format.js';
 import { sweepableParams } from './generator-form.js';
@@ -43,6 +43,9 @@ export const resultsOf = (doc, experiment = null) => ({
 
 /** Why results opened from a results file cannot go to the library. */
 const SAVE_WHY_NOT = 'Not in the library: a results file does not hold the experiment that made it, and a library entry keeps both. Keep the file itself (Results JSON), or open the experiment and run it.';
+
+/** The session storage key that says the guide was offered in this browser session. */
+const GUIDE_OFFERED = 'burnin:v1:guide-offered';
 
 /** Resolves in a later task (after the browser has had its turn). */
 const nextTask = () => new Promise((resolve) => setTimeout(resolve, 0));
@@ -133,10 +136,66 @@ export class ExperimentView {
     canvas.addEventListener('mousemove', (e) => this.hover(e));
     canvas.addEventListener('mouseleave', () => { $('chart-tip').hidden = true; });
     this.setSweepChoices(null);
+    this.initGuide();
   }
 
   /** The core's definition of a number shown (src/catalogue.rs, GLOSSARY). */
   meaning(key) { return this.catalogue.glossary.find((t) => t.key === key)?.meaning || ''; }
+
+  /** The core's glossary entries of `keys`, in that order. */
+  terms(...keys) { return keys.map((k) => this.catalogue.glossary.find((t) => t.key === k)).filter(Boolean); }
+
+  /**
+   * A header cell named `text` with a "?" that opens the core's definitions
+   * of `keys` (also its hover title); `what` names the column for a screen reader.
+   */
+  header(text, keys, what = `“${text}”`) {
+    const th = el('th', text, { title: keys.map((k) => this.meaning(k)).join(' '), scope: 'col' });
+    th.append(definitionButton(what, this.terms(...keys)));
+    return th;
+  }
+
+  /**
+   * The "How to read these results" panel: each term's "?" opens the core's
+   * definition; the page's caution about toy models closes it. Opened from
+   * its link beside the results heading, and offered once per browser
+   * session, after the first run that finishes (`offerGuide`).
+   */
+  initGuide() {
+    for (const slot of document.querySelectorAll('#guide [data-def]')) {
+      const [t] = this.terms(slot.dataset.def);
+      if (t) slot.replaceWith(definitionButton(t.name, [t]));
+    }
+    $('guide-caveat').textContent = $('results-caution').textContent;
+    $('guide-open').addEventListener('click', () => ($('guide').hidden ? this.showGuide() : this.hideGuide()));
+    $('guide-close').addEventListener('click', () => this.hideGuide(true));
+    $('guide').addEventListener('keydown', (e) => { if (e.key === 'Escape' && $('definition')?.hidden !== false) this.hideGuide(true); });
+  }
+
+  showGuide() {
+    $('guide').hidden = false;
+    $('guide-open').setAttribute('aria-expanded', 'true');
+    $('guide').scrollIntoView({ block: 'start', behavior: 'instant' });
+    $('guide').focus({ preventScroll: true });
+  }
+
+  hideGuide(refocus = false) {
+    closeDefinition();
+    $('guide').hidden = true;
+    $('guide-open').setAttribute('aria-expanded', 'false');
+    if (refocus) $('guide-open').focus();
+  }
+
+  /** Shows the guide after a run, the first time in this browser session only. */
+  offerGuide() {
+    try {
+      if (sessionStorage.getItem(GUIDE_OFFERED)) return;
+      sessionStorage.setItem(GUIDE_OFFERED, 'yes');
+    } catch {
+      return; // no session storage: the link offers it, never unasked
+    }
+    this.showGuide();
+  }
 
   /** The glossary under the results: every number the page shows, defined once in the core. */
   renderGlossary() {
@@ -559,6 +618,7 @@ export class ExperimentView {
         $('exp-status').textContent = `Done in ${secs.toFixed(1)} s on ${job.workers} worker${job.workers === 1 ? '' : 's'}.`;
         this.hooks.changed();
         $('results').scrollIntoView({ block: 'start', behavior: 'instant' });
+        this.offerGuide();
       }
     } catch (err) {
       $('exp-status').textContent = `The run failed: ${err.message}`;
@@ -738,12 +798,15 @@ export class ExperimentView {
   }
 
   drawTable() {
+    // A definition open beside a header of the old table goes with it.
+    closeDefinition();
     const d = this.results.data;
     const table = el('table');
     const head = el('tr');
     const body = table.createTBody();
     if (d.format === 'burnin-sweep') {
-      head.append(el('th', 'learner'), ...d.values.map((v) => el('th', `${d.parameter} = ${v}`)));
+      // Every cell holds the regret at K with its interval, the slope and the burn-in.
+      head.append(el('th', 'learner', { scope: 'col' }), ...d.values.map((v) => this.header(`${d.parameter} = ${v}`, ['regret', 'interval', 'slope', 'burn_in'], `the numbers at ${d.parameter} = ${v}`)));
       for (const [li, l] of d.learners.entries()) {
         const tr = el('tr');
         tr.append(el('th', l.label));
@@ -759,15 +822,19 @@ export class ExperimentView {
       // (the core's scaling readings, beside the published orders).
       for (const t of this.results.scaling ?? []) {
         const tr = el('tr', null, { class: 'scaling-row' });
-        tr.append(el('th', `${t.label}: scaling in ${t.variable}`), el('td', `${t.burn_in} · ${t.regret}`, { colspan: String(d.values.length) }));
+        const th = el('th', `${t.label}: scaling in ${t.variable}`);
+        th.append(definitionButton(`the scaling of ${t.label}`, this.terms('scaling')));
+        tr.append(th, el('td', `${t.burn_in} · ${t.regret}`, { colspan: String(d.values.length) }));
         body.append(tr);
       }
     } else {
       const eps = d.learners[0].episodes_to_eps;
       // Each header says what its number is, from the core's glossary.
-      const hint = (text, ...keys) => el('th', text, { title: keys.map((k) => this.meaning(k)).join(' ') });
-      head.append(el('th', 'learner'), hint('regret at K', 'regret'), hint('95% interval', 'interval'), hint('slope [95% bootstrap]', 'slope'), hint('burn-in [95% bootstrap]', 'burn_in'), hint('model updates', 'model_updates'),
-        ...eps.map((e) => hint(`ε = ${short(e.epsilon)}${e.trivial ? ' (at least V*: every policy qualifies)' : ''}: first ε-optimal episode (PAC order ${short(e.pac_order)}, Zhang et al. 2024) · share ε-optimal · settled within ε after`, 'first_optimal', 'optimal_share', 'settled')));
+      const hint = (text, ...keys) => this.header(text, keys);
+      // The long ε headers: a class the phone layout widens, and a short name for a screen reader.
+      const epsHint = (e, text) => { const th = this.header(text, ['first_optimal', 'optimal_share', 'settled'], `the readings at ε = ${short(e.epsilon)}`); th.classList.add('eps'); return th; };
+      head.append(el('th', 'learner', { scope: 'col' }), hint('regret at K', 'regret'), hint('95% interval', 'interval'), hint('slope [95% bootstrap]', 'slope'), hint('burn-in [95% bootstrap]', 'burn_in'), hint('model updates', 'model_updates'),
+        ...eps.map((e) => epsHint(e, `ε = ${short(e.epsilon)}${e.trivial ? ' (at least V*: every policy qualifies)' : ''}: first ε-optimal episode (PAC order ${short(e.pac_order)}, Zhang et al. 2024) · share ε-optimal · settled within ε after`)));
       const reading = (i) => this.results.readings?.[0]?.[i] ?? { slope: '—', burn_in: '—' };
       for (const [i, l] of d.learners.entries()) {
         const last = l.regret_mean.length - 1;
