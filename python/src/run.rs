@@ -1,5 +1,6 @@
 //! Experiments in process: the core's runner on this machine's threads
-//! with the GIL released; a user's learner written as a Python class is a
+//! with the GIL released; a user's learner written as a Python class (made
+//! and called on the thread that called `burnin.run`) is a
 //! guest (the same contract as the CLI's processes and the page's modules,
 //! through `GuestLearner`); figures and tables of a results file.
 
@@ -7,15 +8,16 @@ use std::collections::HashMap;
 use std::path::PathBuf;
 use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
-use std::time::Duration;
+use std::sync::mpsc;
+use std::time::{Duration, Instant};
 
 use burnin::chart::{Options, View};
 use burnin::experiment::{
-    Budget, Estimate, Pool, Runner, Stopped, Watch, bytes_words, parse_experiment, parse_results,
+    Budget, Estimate, Runner, Stopped, Watch, bytes_words, parse_experiment, parse_results,
 };
 use burnin::learn::{Batch, Decision, Guest, GuestHost, GuestIntro, Guests, Setting};
 use burnin::native::Threads;
-use pyo3::exceptions::{PyRuntimeError, PyTypeError, PyValueError};
+use pyo3::exceptions::{PyKeyboardInterrupt, PyRuntimeError, PyTypeError, PyValueError};
 use pyo3::prelude::*;
 use pyo3::types::{PyBool, PyBytes, PyDict, PyFloat, PyInt, PyList, PyString, PyTuple};
 use serde_json::Value;
@@ -23,29 +25,196 @@ use serde_json::Value;
 use crate::arrays::array;
 use crate::{invalid, raise};
 
-/// Learner classes by the guest name an experiment gives them.
-struct ClassHost {
-    classes: HashMap<String, Py<PyAny>>,
+/// A call of a learner class, sent by a lane of the runner to the thread
+/// that called `burnin.run` (see [`Calls`]).
+enum Call {
+    /// Make an object of the class named `name`; the reply is its id.
+    Start {
+        name: String,
+        intro: GuestIntro,
+        reply: mpsc::Sender<Result<u64, String>>,
+    },
+    /// Call `decide` of object `id` with the batch (`answers` answers
+    /// given before).
+    Decide {
+        id: u64,
+        done: u64,
+        horizon: usize,
+        steps: Vec<burnin::learn::GuestStep>,
+        setting: Setting,
+        answers: u64,
+        reply: mpsc::Sender<Result<Decision, String>>,
+    },
+    /// The run of object `id` is over: drop it.
+    Drop { id: u64 },
+    /// The runner has returned.
+    Finished,
 }
+
+/// Learner classes as guests. Their objects live on the thread that
+/// called `burnin.run`, and every call of them is made there: Python runs
+/// a signal's handler only in the main thread, and a call blocked in C
+/// (`time.sleep`) is woken by a signal only there, so a `decide` that
+/// never returns is still stopped by Ctrl-C (#32). Learner classes lose
+/// no parallelism by it: they hold the GIL when they run anyway.
+struct ClassHost {
+    calls: mpsc::Sender<Call>,
+}
+
+/// What a lane hears when the calling thread stopped answering.
+const INTERRUPTED: &str = "the run was interrupted";
 
 impl GuestHost for ClassHost {
     fn start(&self, name: &str, intro: &GuestIntro) -> Result<Box<dyn Guest>, String> {
+        let (reply, answer) = mpsc::channel();
+        self.calls
+            .send(Call::Start {
+                name: name.to_owned(),
+                intro: intro.clone(),
+                reply,
+            })
+            .map_err(|_| INTERRUPTED.to_string())?;
+        let id = answer.recv().map_err(|_| INTERRUPTED.to_string())??;
+        Ok(Box::new(ClassGuest {
+            id,
+            setting: intro.setting,
+            answers: 0,
+            calls: self.calls.clone(),
+        }))
+    }
+}
+
+/// One object of a learner class, by its id on the calling thread.
+struct ClassGuest {
+    id: u64,
+    setting: Setting,
+    answers: u64,
+    calls: mpsc::Sender<Call>,
+}
+
+impl Guest for ClassGuest {
+    fn decide(&mut self, batch: Batch<'_>) -> Result<Decision, String> {
+        let (reply, answer) = mpsc::channel();
+        self.calls
+            .send(Call::Decide {
+                id: self.id,
+                done: batch.done,
+                horizon: batch.horizon,
+                steps: batch.steps.to_vec(),
+                setting: self.setting,
+                answers: self.answers,
+                reply,
+            })
+            .map_err(|_| INTERRUPTED.to_string())?;
+        let d = answer.recv().map_err(|_| INTERRUPTED.to_string())??;
+        self.answers += 1;
+        Ok(d)
+    }
+}
+
+impl Drop for ClassGuest {
+    fn drop(&mut self) {
+        let _ = self.calls.send(Call::Drop { id: self.id });
+    }
+}
+
+/// The calling thread's side: the classes, their live objects, and the
+/// interrupt once one came.
+struct Calls {
+    classes: HashMap<String, Py<PyAny>>,
+    objects: HashMap<u64, Py<PyAny>>,
+    next: u64,
+    interrupted: Option<PyErr>,
+}
+
+impl Calls {
+    /// Makes a call; a KeyboardInterrupt raised inside the class (the
+    /// signal's handler runs in its code) is kept as the run's interrupt,
+    /// and every later call is refused without running Python.
+    fn answer(&mut self, py: Python<'_>, call: Call) {
+        match call {
+            Call::Start { name, intro, reply } => {
+                let r = match self.interrupted {
+                    Some(_) => Err(INTERRUPTED.to_string()),
+                    None => self.start(py, &name, &intro),
+                };
+                let _ = reply.send(r);
+            }
+            Call::Decide {
+                id,
+                done,
+                horizon,
+                steps,
+                setting,
+                answers,
+                reply,
+            } => {
+                let batch = Batch {
+                    done,
+                    horizon,
+                    steps: &steps,
+                };
+                let r = match self.interrupted {
+                    Some(_) => Err(INTERRUPTED.to_string()),
+                    None => self.decide(py, id, batch, &setting, answers),
+                };
+                let _ = reply.send(r);
+            }
+            Call::Drop { id } => {
+                self.objects.remove(&id);
+            }
+            Call::Finished => {}
+        }
+    }
+
+    /// A Python error of a class: an interrupt is kept, anything else is
+    /// the learner's fault, in one line.
+    fn failed(&mut self, py: Python<'_>, e: PyErr, what: &str) -> String {
+        if e.is_instance_of::<PyKeyboardInterrupt>(py) {
+            self.interrupted = Some(e);
+            return INTERRUPTED.to_string();
+        }
+        format!("{what} {}", described(py, &e))
+    }
+
+    fn start(&mut self, py: Python<'_>, name: &str, intro: &GuestIntro) -> Result<u64, String> {
         let cls = self
             .classes
             .get(name)
             .ok_or_else(|| format!("no class for guest learner {name:?}"))?;
-        Python::attach(|py| {
-            let d = intro_dict(py, intro).map_err(|e| e.to_string())?;
-            let obj = cls
-                .bind(py)
-                .call1((d,))
-                .map_err(|e| format!("its class raised {}", described(py, &e)))?;
-            Ok(Box::new(ClassGuest {
-                obj: obj.unbind(),
-                setting: intro.setting,
-                answers: 0,
-            }) as Box<dyn Guest>)
-        })
+        let d = intro_dict(py, intro).map_err(|e| e.to_string())?;
+        let obj = match cls.bind(py).call1((d,)) {
+            Ok(o) => o.unbind(),
+            Err(e) => return Err(self.failed(py, e, "its class raised")),
+        };
+        self.next += 1;
+        self.objects.insert(self.next, obj);
+        Ok(self.next)
+    }
+
+    fn decide(
+        &mut self,
+        py: Python<'_>,
+        id: u64,
+        batch: Batch<'_>,
+        setting: &Setting,
+        answers: u64,
+    ) -> Result<Decision, String> {
+        let obj = self
+            .objects
+            .get(&id)
+            .ok_or("the learner's object is gone")?
+            .clone_ref(py);
+        let b = batch_dict(py, &batch).map_err(|e| e.to_string())?;
+        let answer = match obj.bind(py).call_method1("decide", (b,)) {
+            Ok(a) => a,
+            Err(e) => return Err(self.failed(py, e, "decide raised")),
+        };
+        let n = answers + 1;
+        let v = to_value(&answer).map_err(|e| format!("answer {n}: {e}"))?;
+        Decision::from_json(&v, setting)
+            .and_then(|d| d.check(setting, n == 1).map(|()| d))
+            .map_err(|e| format!("answer {n}: {e}"))
     }
 }
 
@@ -92,31 +261,6 @@ fn described(py: Python<'_>, e: &PyErr) -> String {
         }
     }
     text
-}
-
-struct ClassGuest {
-    obj: Py<PyAny>,
-    setting: Setting,
-    answers: u64,
-}
-
-impl Guest for ClassGuest {
-    fn decide(&mut self, batch: Batch<'_>) -> Result<Decision, String> {
-        Python::attach(|py| {
-            let b = batch_dict(py, &batch).map_err(|e| e.to_string())?;
-            let answer = self
-                .obj
-                .bind(py)
-                .call_method1("decide", (b,))
-                .map_err(|e| format!("decide raised {}", described(py, &e)))?;
-            self.answers += 1;
-            let n = self.answers;
-            let v = to_value(&answer).map_err(|e| format!("answer {n}: {e}"))?;
-            Decision::from_json(&v, &self.setting)
-                .and_then(|d| d.check(&self.setting, n == 1).map(|()| d))
-                .map_err(|e| format!("answer {n}: {e}"))
-        })
-    }
 }
 
 /// The batch as numpy arrays of shape (episodes, H): `states`, `actions`,
@@ -201,28 +345,6 @@ fn to_value(o: &Bound<'_, PyAny>) -> Result<Value, String> {
     ))
 }
 
-/// This machine's threads (`burnin::native::Threads`), each lane made
-/// known to Python once for the whole run (attached, then detached): a
-/// learner class's calls from that lane then only take the GIL, instead
-/// of making and dropping a Python thread state each time.
-struct PyThreads;
-
-impl Pool for PyThreads {
-    fn scope(&self, lanes: usize, work: &(dyn Fn(usize) + Sync)) {
-        Threads.scope(lanes, &|lane| {
-            Python::attach(|py| py.detach(|| work(lane)));
-        });
-    }
-
-    fn within(&self, seconds: f64, work: Box<dyn FnOnce() + Send>) {
-        Threads.within(seconds, work);
-    }
-
-    fn rest(&self) {
-        Threads.rest();
-    }
-}
-
 /// What the Python side hears while a run goes, and whether it asked to stop.
 struct Watcher {
     done: AtomicU64,
@@ -285,7 +407,10 @@ fn run_experiment(
             ));
         }
     }
-    let guests: Guests = Arc::new(ClassHost { classes: learners });
+    let (calls, incoming) = mpsc::channel();
+    let guests: Guests = Arc::new(ClassHost {
+        calls: calls.clone(),
+    });
     let threads = threads
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
         .max(1);
@@ -303,49 +428,72 @@ fn run_experiment(
         cancel: AtomicBool::new(false),
     };
     let clock = burnin::native::clock();
-    let (records, interrupted) = py.detach(|| {
+    let mut host = Calls {
+        classes: learners,
+        objects: HashMap::new(),
+        next: 0,
+        interrupted: None,
+    };
+    // This thread answers the learner classes' calls as they come, and
+    // about ten times a second (and at the end) runs Python's signal
+    // handlers and reports progress; it holds the GIL only for those.
+    let records = py.detach(|| {
+        let incoming = incoming;
         std::thread::scope(|s| {
-            let job = s.spawn(|| runner.run(&budget, &clock, &PyThreads, &watch));
-            let mut interrupted: Option<PyErr> = None;
+            let job = s.spawn(|| {
+                let r = runner.run(&budget, &clock, &Threads, &watch);
+                let _ = calls.send(Call::Finished);
+                r
+            });
             let mut last = u64::MAX;
-            let mut polls = 0u32;
+            let mut polled = Instant::now();
             loop {
-                let finished = job.is_finished();
-                polls += 1;
-                // Signals and progress about ten times a second (and at the
-                // end), without holding a short run up for a whole period.
-                if !finished && polls % 20 != 1 {
-                    std::thread::sleep(Duration::from_millis(5));
-                    continue;
-                }
+                let call = incoming.recv_timeout(Duration::from_millis(100)).ok();
+                let finished = matches!(call, Some(Call::Finished)) || job.is_finished();
+                let poll = finished || polled.elapsed() >= Duration::from_millis(100);
                 Python::attach(|py| {
-                    if interrupted.is_none()
+                    if let Some(call) = call {
+                        host.answer(py, call);
+                    }
+                    // Every call the lanes made before they returned.
+                    if finished {
+                        while let Ok(call) = incoming.try_recv() {
+                            host.answer(py, call);
+                        }
+                    }
+                    if !poll {
+                        return;
+                    }
+                    polled = Instant::now();
+                    if host.interrupted.is_none()
                         && let Err(e) = py.check_signals()
                     {
-                        watch.cancel.store(true, Ordering::Relaxed);
-                        interrupted = Some(e);
+                        host.interrupted = Some(e);
                     }
                     let done = watch.done.load(Ordering::Relaxed);
                     if let Some(cb) = &progress
-                        && interrupted.is_none()
+                        && host.interrupted.is_none()
                         && (done != last || finished)
                     {
                         last = done;
                         let total = watch.total.load(Ordering::Relaxed);
                         if let Err(e) = cb.call1(py, (done, total)) {
-                            watch.cancel.store(true, Ordering::Relaxed);
-                            interrupted = Some(e);
+                            host.interrupted = Some(e);
                         }
                     }
                 });
+                if host.interrupted.is_some() {
+                    watch.cancel.store(true, Ordering::Relaxed);
+                }
                 if finished {
                     break;
                 }
-                std::thread::sleep(Duration::from_millis(5));
             }
-            (job.join(), interrupted)
+            job.join()
         })
     });
+    let interrupted = host.interrupted.take();
+    drop(host);
     let records = match records {
         Ok(r) => r,
         Err(panic) => std::panic::resume_unwind(panic),

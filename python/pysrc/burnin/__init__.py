@@ -517,9 +517,13 @@ def run(
     results do not depend on it. ``progress``: True (tqdm when installed,
     else a line per tenth on standard error), False, or a callable
     ``(done, total)``. ``budget_minutes``: refuse a run estimated longer
-    (default: no estimate). The GIL is released while the core runs (your
-    learners take it when called); Ctrl-C or the notebook's stop button
-    stops the run and raises KeyboardInterrupt, with nothing written.
+    (default: no estimate). The core runs on threads of its own with the GIL
+    released; your classes are made and called from the thread that called
+    ``run``, one call at a time. Ctrl-C or the notebook's stop button stops
+    the run and raises KeyboardInterrupt, with nothing written, even while
+    your ``decide`` is inside a loop that never ends or a ``time.sleep``
+    (when ``run`` is called from the main thread, where Python handles
+    signals).
     """
     base: Optional[str] = None
     if isinstance(experiment, Mapping):

@@ -190,4 +190,6 @@ def run(
     progress: Union[bool, Callable[[int, int], None], None] = ...,
     budget_minutes: Optional[float] = ...,
 ) -> Results:
-    """Runs an experiment in this process (the GIL released while the core runs)."""
+    """Runs an experiment in this process (the GIL released while the core
+    runs; your classes called from this thread, so Ctrl-C stops even a
+    `decide` that never returns)."""
