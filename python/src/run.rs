@@ -548,7 +548,7 @@ fn curves<'py>(py: Python<'py>, text: &str) -> PyResult<Bound<'py, PyDict>> {
     let out = parse_results(text).map_err(|p| invalid(py, &p))?;
     let burnin::experiment::Output::Single(r) = out else {
         return Err(PyValueError::new_err(
-            "a sweep's results have no curves; read its points from to_dict()",
+            "a sweep's results have no curves of their own: each point's are in .points[i].curves, the readings against the swept value in .sweep",
         ));
     };
     let d = PyDict::new(py);
@@ -564,6 +564,102 @@ fn curves<'py>(py: Python<'py>, text: &str) -> PyResult<Bound<'py, PyDict>> {
         c.set_item("seeds", array(py, seeds, &[n, k])?)?;
         d.set_item(l.label.clone(), c)?;
     }
+    Ok(d)
+}
+
+/// A sweep's readings as numpy arrays (`burnin.Sweep`): the swept values,
+/// the size the scaling exponents are in, and per learner label its
+/// readings at each point — regret at K with its interval, the tail slope
+/// and the burn-in with their bootstrap intervals (NaN where the file has
+/// null: no interval with one seed, not settled by K), how many seeds were
+/// still linear at K — and its scaling reading as JSON; `points` holds each
+/// point's own results file text.
+#[pyfunction]
+fn sweep<'py>(py: Python<'py>, text: &str) -> PyResult<Bound<'py, PyDict>> {
+    let out = parse_results(text).map_err(|p| invalid(py, &p))?;
+    let burnin::experiment::Output::Sweep(s) = out else {
+        return Err(PyValueError::new_err(
+            "these are the results of one experiment, not of a sweep; read its curves",
+        ));
+    };
+    let n = s.values.len();
+    let vec = |v: Vec<f64>| array(py, v, &[n]);
+    let d = PyDict::new(py);
+    d.set_item("parameter", &s.parameter)?;
+    d.set_item("values", vec(s.values.clone())?)?;
+    d.set_item("scaling_in", s.scaling_in.clone())?;
+    d.set_item(
+        "scaling_x",
+        if s.scaling_x.len() == n {
+            Some(vec(s.scaling_x.clone())?)
+        } else {
+            None
+        },
+    )?;
+    let nan = f64::NAN;
+    let whole = |x: Option<u64>| x.map_or(nan, |v| v as f64);
+    let learners = PyDict::new(py);
+    for (li, l) in s.learners.iter().enumerate() {
+        // The same learner in each point's own results.
+        let at: Vec<&burnin::experiment::LearnerResult> = s
+            .points
+            .iter()
+            .map(|p| {
+                p.learners
+                    .get(li)
+                    .filter(|pl| pl.label == l.label)
+                    .ok_or_else(|| {
+                        PyValueError::new_err(format!(
+                            "learner {:?} is missing from a point of the sweep",
+                            l.label
+                        ))
+                    })
+            })
+            .collect::<PyResult<_>>()?;
+        let c = PyDict::new(py);
+        c.set_item("algorithm", &l.algorithm)?;
+        c.set_item("values", vec(s.values.clone())?)?;
+        c.set_item("regret_mean", vec(l.regret_mean.clone())?)?;
+        c.set_item("regret_lo", vec(l.regret_lo.clone())?)?;
+        c.set_item("regret_hi", vec(l.regret_hi.clone())?)?;
+        c.set_item(
+            "slope",
+            vec(l.slope.iter().map(|x| x.unwrap_or(nan)).collect())?,
+        )?;
+        let slope_iv = |end: fn((f64, f64)) -> f64| -> Vec<f64> {
+            at.iter()
+                .map(|p| p.slope_interval.map_or(nan, end))
+                .collect()
+        };
+        c.set_item("slope_lo", vec(slope_iv(|i| i.0))?)?;
+        c.set_item("slope_hi", vec(slope_iv(|i| i.1))?)?;
+        c.set_item(
+            "burn_in",
+            vec(l.burn_in.iter().map(|&b| whole(b)).collect())?,
+        )?;
+        // Each end of the burn-in's interval (null inside: not settled).
+        let burn_iv = |hi: bool| -> Vec<f64> {
+            at.iter()
+                .map(|p| whole(p.burn_in_interval.and_then(|i| if hi { i.1 } else { i.0 })))
+                .collect()
+        };
+        c.set_item("burn_in_lo", vec(burn_iv(false))?)?;
+        c.set_item("burn_in_hi", vec(burn_iv(true))?)?;
+        c.set_item(
+            "seeds_linear_at_k",
+            vec(at.iter().map(|p| whole(p.seeds_linear_at_k)).collect())?,
+        )?;
+        c.set_item(
+            "scaling",
+            l.scaling
+                .as_ref()
+                .map(|sc| serde_json::to_string(sc).expect("a reading serialises")),
+        )?;
+        learners.set_item(&l.label, c)?;
+    }
+    d.set_item("learners", learners)?;
+    let points: Vec<String> = s.points.iter().map(|p| p.to_json()).collect();
+    d.set_item("points", points)?;
     Ok(d)
 }
 
@@ -657,6 +753,7 @@ pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(run_experiment, m)?)?;
     m.add_function(wrap_pyfunction!(read_results, m)?)?;
     m.add_function(wrap_pyfunction!(curves, m)?)?;
+    m.add_function(wrap_pyfunction!(sweep, m)?)?;
     m.add_function(wrap_pyfunction!(figure, m)?)?;
     m.add_function(wrap_pyfunction!(table, m)?)?;
     Ok(())
