@@ -51,6 +51,36 @@ enum Call {
     Finished,
 }
 
+/// How long a thread waiting for the other side of a call first polls
+/// before it sleeps: a learner answering every episode makes a call every
+/// few microseconds, and two sleeps and wake-ups a call (each a trip
+/// through the scheduler, slower still on a busy machine) would cost
+/// more than the call itself.
+const SPIN: Duration = Duration::from_micros(50);
+
+/// The next message of `rx`: polled for [`SPIN`], then waited for (at
+/// most `timeout`, or until the sender is gone when None).
+fn soon<T>(rx: &mpsc::Receiver<T>, timeout: Option<Duration>) -> Option<T> {
+    let start = Instant::now();
+    let mut polls = 0u32;
+    loop {
+        match rx.try_recv() {
+            Ok(m) => return Some(m),
+            Err(mpsc::TryRecvError::Disconnected) => return None,
+            Err(mpsc::TryRecvError::Empty) => {}
+        }
+        polls += 1;
+        if polls.is_multiple_of(64) && start.elapsed() >= SPIN {
+            break;
+        }
+        std::hint::spin_loop();
+    }
+    match timeout {
+        None => rx.recv().ok(),
+        Some(t) => rx.recv_timeout(t).ok(),
+    }
+}
+
 /// Learner classes as guests. Their objects live on the thread that
 /// called `burnin.run`, and every call of them is made there: Python runs
 /// a signal's handler only in the main thread, and a call blocked in C
@@ -74,7 +104,7 @@ impl GuestHost for ClassHost {
                 reply,
             })
             .map_err(|_| INTERRUPTED.to_string())?;
-        let id = answer.recv().map_err(|_| INTERRUPTED.to_string())??;
+        let id = soon(&answer, None).ok_or_else(|| INTERRUPTED.to_string())??;
         Ok(Box::new(ClassGuest {
             id,
             setting: intro.setting,
@@ -106,7 +136,7 @@ impl Guest for ClassGuest {
                 reply,
             })
             .map_err(|_| INTERRUPTED.to_string())?;
-        let d = answer.recv().map_err(|_| INTERRUPTED.to_string())??;
+        let d = soon(&answer, None).ok_or_else(|| INTERRUPTED.to_string())??;
         self.answers += 1;
         Ok(d)
     }
@@ -448,7 +478,7 @@ fn run_experiment(
             let mut last = u64::MAX;
             let mut polled = Instant::now();
             loop {
-                let call = incoming.recv_timeout(Duration::from_millis(100)).ok();
+                let call = soon(&incoming, Some(Duration::from_millis(100)));
                 let finished = matches!(call, Some(Call::Finished)) || job.is_finished();
                 let poll = finished || polled.elapsed() >= Duration::from_millis(100);
                 Python::attach(|py| {
