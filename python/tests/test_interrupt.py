@@ -20,9 +20,13 @@ import signal
 import subprocess
 import sys
 import textwrap
+import threading
 import time
 
+import numpy as np
 import pytest
+
+import burnin
 
 SCRIPT = textwrap.dedent(
     """
@@ -95,3 +99,44 @@ def test_ctrl_c_stops_a_decide_that_never_returns(tmp_path, how, threads):
     assert p.returncode != 0
     assert not out.exists()
     assert not any(tmp_path.glob("results.json*"))
+
+
+class Where:
+    """Records the thread each call of it runs on."""
+
+    seen = set()
+
+    def __init__(self, intro):
+        Where.seen.add(threading.get_ident())
+        self.h, self.s = intro["horizon"], intro["states"]
+
+    def decide(self, batch):
+        Where.seen.add(threading.get_ident())
+        return {"actions": np.zeros((self.h, self.s), dtype=np.int64), "episodes": 7}
+
+
+def test_learner_classes_are_made_and_called_on_the_calling_thread():
+    """What makes the above work: with two runner threads and four runs,
+    every construction and every decide runs on the thread that called
+    burnin.run (threading.get_ident, the interpreter's own thread id)."""
+    Where.seen = set()
+    exp = {
+        "format": "burnin-experiment", "version": 1,
+        "generator": {"kind": "river", "states": 4, "horizon": 6},
+        "episodes": 200, "seeds": 2,
+        "learners": [{"guest": "w", "label": "one"}, {"guest": "w", "label": "two"}],
+    }
+    burnin.run(exp, learners={"w": Where}, threads=2, progress=False)
+    assert Where.seen == {threading.get_ident()}
+    # And from a thread of the user's own: that thread, not the main one.
+    box = {}
+
+    def other():
+        Where.seen = set()
+        burnin.run(exp, learners={"w": Where}, threads=2, progress=False)
+        box["seen"], box["me"] = Where.seen, threading.get_ident()
+
+    t = threading.Thread(target=other)
+    t.start()
+    t.join()
+    assert box["seen"] == {box["me"]} and box["me"] != threading.get_ident()
