@@ -4,7 +4,8 @@
 //! (`Mdp::from_parts`), solutions and curves come back as numpy arrays,
 //! experiments run on the core's runner (`burnin::native`'s threads and
 //! clock) with the GIL released, and a user's learner written as a Python
-//! class is a guest (`burnin::learn::GuestHost`) like the CLI's processes.
+//! class is a guest (`burnin::learn::GuestHost`) like the CLI's processes,
+//! made and called on the thread that called `burnin.run`.
 //!
 //! The Python side (`pysrc/burnin/`) holds the documented API, the
 //! exception types and the generator functions built from the catalogue.

@@ -1,5 +1,6 @@
 //! Experiments in process: the core's runner on this machine's threads
-//! with the GIL released; a user's learner written as a Python class is a
+//! with the GIL released; a user's learner written as a Python class (made
+//! and called on the thread that called `burnin.run`) is a
 //! guest (the same contract as the CLI's processes and the page's modules,
 //! through `GuestLearner`); figures and tables of a results file.
 
@@ -7,15 +8,16 @@ use std::collections::HashMap;
 use std::path::PathBuf;
 use std::sync::Arc;
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
-use std::time::Duration;
+use std::sync::mpsc;
+use std::time::{Duration, Instant};
 
 use burnin::chart::{Options, View};
 use burnin::experiment::{
-    Budget, Estimate, Pool, Runner, Stopped, Watch, bytes_words, parse_experiment, parse_results,
+    Budget, Estimate, Runner, Stopped, Watch, bytes_words, parse_experiment, parse_results,
 };
 use burnin::learn::{Batch, Decision, Guest, GuestHost, GuestIntro, Guests, Setting};
 use burnin::native::Threads;
-use pyo3::exceptions::{PyRuntimeError, PyTypeError, PyValueError};
+use pyo3::exceptions::{PyKeyboardInterrupt, PyRuntimeError, PyTypeError, PyValueError};
 use pyo3::prelude::*;
 use pyo3::types::{PyBool, PyBytes, PyDict, PyFloat, PyInt, PyList, PyString, PyTuple};
 use serde_json::Value;
@@ -23,29 +25,226 @@ use serde_json::Value;
 use crate::arrays::array;
 use crate::{invalid, raise};
 
-/// Learner classes by the guest name an experiment gives them.
-struct ClassHost {
-    classes: HashMap<String, Py<PyAny>>,
+/// A call of a learner class, sent by a lane of the runner to the thread
+/// that called `burnin.run` (see [`Calls`]).
+enum Call {
+    /// Make an object of the class named `name`; the reply is its id.
+    Start {
+        name: String,
+        intro: GuestIntro,
+        reply: mpsc::Sender<Result<u64, String>>,
+    },
+    /// Call `decide` of object `id` with the batch (`answers` answers
+    /// given before).
+    Decide {
+        id: u64,
+        done: u64,
+        horizon: usize,
+        steps: Vec<burnin::learn::GuestStep>,
+        setting: Setting,
+        answers: u64,
+        reply: mpsc::Sender<Result<Decision, String>>,
+    },
+    /// The run of object `id` is over: drop it.
+    Drop { id: u64 },
+    /// The runner has returned.
+    Finished,
 }
+
+/// How long a thread waiting for the other side of a call first polls
+/// before it sleeps: a learner answering every episode makes a call every
+/// few microseconds, and two sleeps and wake-ups a call (each a trip
+/// through the scheduler, slower still on a busy machine) would cost
+/// more than the call itself.
+const SPIN: Duration = Duration::from_micros(50);
+
+/// The next message of `rx`: polled for [`SPIN`], then waited for (at
+/// most `timeout`, or until the sender is gone when None).
+fn soon<T>(rx: &mpsc::Receiver<T>, timeout: Option<Duration>) -> Option<T> {
+    let start = Instant::now();
+    let mut polls = 0u32;
+    loop {
+        match rx.try_recv() {
+            Ok(m) => return Some(m),
+            Err(mpsc::TryRecvError::Disconnected) => return None,
+            Err(mpsc::TryRecvError::Empty) => {}
+        }
+        polls += 1;
+        if polls.is_multiple_of(64) && start.elapsed() >= SPIN {
+            break;
+        }
+        std::hint::spin_loop();
+    }
+    match timeout {
+        None => rx.recv().ok(),
+        Some(t) => rx.recv_timeout(t).ok(),
+    }
+}
+
+/// Learner classes as guests. Their objects live on the thread that
+/// called `burnin.run`, and every call of them is made there: Python runs
+/// a signal's handler only in the main thread, and a call blocked in C
+/// (`time.sleep`) is woken by a signal only there, so a `decide` that
+/// never returns is still stopped by Ctrl-C (#32). Learner classes lose
+/// no parallelism by it: they hold the GIL when they run anyway.
+struct ClassHost {
+    calls: mpsc::Sender<Call>,
+}
+
+/// What a lane hears when the calling thread stopped answering.
+const INTERRUPTED: &str = "the run was interrupted";
 
 impl GuestHost for ClassHost {
     fn start(&self, name: &str, intro: &GuestIntro) -> Result<Box<dyn Guest>, String> {
+        let (reply, answer) = mpsc::channel();
+        self.calls
+            .send(Call::Start {
+                name: name.to_owned(),
+                intro: intro.clone(),
+                reply,
+            })
+            .map_err(|_| INTERRUPTED.to_string())?;
+        let id = soon(&answer, None).ok_or_else(|| INTERRUPTED.to_string())??;
+        Ok(Box::new(ClassGuest {
+            id,
+            setting: intro.setting,
+            answers: 0,
+            calls: self.calls.clone(),
+        }))
+    }
+}
+
+/// One object of a learner class, by its id on the calling thread.
+struct ClassGuest {
+    id: u64,
+    setting: Setting,
+    answers: u64,
+    calls: mpsc::Sender<Call>,
+}
+
+impl Guest for ClassGuest {
+    fn decide(&mut self, batch: Batch<'_>) -> Result<Decision, String> {
+        let (reply, answer) = mpsc::channel();
+        self.calls
+            .send(Call::Decide {
+                id: self.id,
+                done: batch.done,
+                horizon: batch.horizon,
+                steps: batch.steps.to_vec(),
+                setting: self.setting,
+                answers: self.answers,
+                reply,
+            })
+            .map_err(|_| INTERRUPTED.to_string())?;
+        let d = soon(&answer, None).ok_or_else(|| INTERRUPTED.to_string())??;
+        self.answers += 1;
+        Ok(d)
+    }
+}
+
+impl Drop for ClassGuest {
+    fn drop(&mut self) {
+        let _ = self.calls.send(Call::Drop { id: self.id });
+    }
+}
+
+/// The calling thread's side: the classes, their live objects, and the
+/// interrupt once one came.
+struct Calls {
+    classes: HashMap<String, Py<PyAny>>,
+    objects: HashMap<u64, Py<PyAny>>,
+    next: u64,
+    interrupted: Option<PyErr>,
+}
+
+impl Calls {
+    /// Makes a call; a KeyboardInterrupt raised inside the class (the
+    /// signal's handler runs in its code) is kept as the run's interrupt,
+    /// and every later call is refused without running Python.
+    fn answer(&mut self, py: Python<'_>, call: Call) {
+        match call {
+            Call::Start { name, intro, reply } => {
+                let r = match self.interrupted {
+                    Some(_) => Err(INTERRUPTED.to_string()),
+                    None => self.start(py, &name, &intro),
+                };
+                let _ = reply.send(r);
+            }
+            Call::Decide {
+                id,
+                done,
+                horizon,
+                steps,
+                setting,
+                answers,
+                reply,
+            } => {
+                let batch = Batch {
+                    done,
+                    horizon,
+                    steps: &steps,
+                };
+                let r = match self.interrupted {
+                    Some(_) => Err(INTERRUPTED.to_string()),
+                    None => self.decide(py, id, batch, &setting, answers),
+                };
+                let _ = reply.send(r);
+            }
+            Call::Drop { id } => {
+                self.objects.remove(&id);
+            }
+            Call::Finished => {}
+        }
+    }
+
+    /// A Python error of a class: an interrupt is kept, anything else is
+    /// the learner's fault, in one line.
+    fn failed(&mut self, py: Python<'_>, e: PyErr, what: &str) -> String {
+        if e.is_instance_of::<PyKeyboardInterrupt>(py) {
+            self.interrupted = Some(e);
+            return INTERRUPTED.to_string();
+        }
+        format!("{what} {}", described(py, &e))
+    }
+
+    fn start(&mut self, py: Python<'_>, name: &str, intro: &GuestIntro) -> Result<u64, String> {
         let cls = self
             .classes
             .get(name)
             .ok_or_else(|| format!("no class for guest learner {name:?}"))?;
-        Python::attach(|py| {
-            let d = intro_dict(py, intro).map_err(|e| e.to_string())?;
-            let obj = cls
-                .bind(py)
-                .call1((d,))
-                .map_err(|e| format!("its class raised {}", described(py, &e)))?;
-            Ok(Box::new(ClassGuest {
-                obj: obj.unbind(),
-                setting: intro.setting,
-                answers: 0,
-            }) as Box<dyn Guest>)
-        })
+        let d = intro_dict(py, intro).map_err(|e| e.to_string())?;
+        let obj = match cls.bind(py).call1((d,)) {
+            Ok(o) => o.unbind(),
+            Err(e) => return Err(self.failed(py, e, "its class raised")),
+        };
+        self.next += 1;
+        self.objects.insert(self.next, obj);
+        Ok(self.next)
+    }
+
+    fn decide(
+        &mut self,
+        py: Python<'_>,
+        id: u64,
+        batch: Batch<'_>,
+        setting: &Setting,
+        answers: u64,
+    ) -> Result<Decision, String> {
+        let obj = self
+            .objects
+            .get(&id)
+            .ok_or("the learner's object is gone")?
+            .clone_ref(py);
+        let b = batch_dict(py, &batch).map_err(|e| e.to_string())?;
+        let answer = match obj.bind(py).call_method1("decide", (b,)) {
+            Ok(a) => a,
+            Err(e) => return Err(self.failed(py, e, "decide raised")),
+        };
+        let n = answers + 1;
+        let v = to_value(&answer).map_err(|e| format!("answer {n}: {e}"))?;
+        Decision::from_json(&v, setting)
+            .and_then(|d| d.check(setting, n == 1).map(|()| d))
+            .map_err(|e| format!("answer {n}: {e}"))
     }
 }
 
@@ -92,31 +291,6 @@ fn described(py: Python<'_>, e: &PyErr) -> String {
         }
     }
     text
-}
-
-struct ClassGuest {
-    obj: Py<PyAny>,
-    setting: Setting,
-    answers: u64,
-}
-
-impl Guest for ClassGuest {
-    fn decide(&mut self, batch: Batch<'_>) -> Result<Decision, String> {
-        Python::attach(|py| {
-            let b = batch_dict(py, &batch).map_err(|e| e.to_string())?;
-            let answer = self
-                .obj
-                .bind(py)
-                .call_method1("decide", (b,))
-                .map_err(|e| format!("decide raised {}", described(py, &e)))?;
-            self.answers += 1;
-            let n = self.answers;
-            let v = to_value(&answer).map_err(|e| format!("answer {n}: {e}"))?;
-            Decision::from_json(&v, &self.setting)
-                .and_then(|d| d.check(&self.setting, n == 1).map(|()| d))
-                .map_err(|e| format!("answer {n}: {e}"))
-        })
-    }
 }
 
 /// The batch as numpy arrays of shape (episodes, H): `states`, `actions`,
@@ -201,28 +375,6 @@ fn to_value(o: &Bound<'_, PyAny>) -> Result<Value, String> {
     ))
 }
 
-/// This machine's threads (`burnin::native::Threads`), each lane made
-/// known to Python once for the whole run (attached, then detached): a
-/// learner class's calls from that lane then only take the GIL, instead
-/// of making and dropping a Python thread state each time.
-struct PyThreads;
-
-impl Pool for PyThreads {
-    fn scope(&self, lanes: usize, work: &(dyn Fn(usize) + Sync)) {
-        Threads.scope(lanes, &|lane| {
-            Python::attach(|py| py.detach(|| work(lane)));
-        });
-    }
-
-    fn within(&self, seconds: f64, work: Box<dyn FnOnce() + Send>) {
-        Threads.within(seconds, work);
-    }
-
-    fn rest(&self) {
-        Threads.rest();
-    }
-}
-
 /// What the Python side hears while a run goes, and whether it asked to stop.
 struct Watcher {
     done: AtomicU64,
@@ -285,7 +437,10 @@ fn run_experiment(
             ));
         }
     }
-    let guests: Guests = Arc::new(ClassHost { classes: learners });
+    let (calls, incoming) = mpsc::channel();
+    let guests: Guests = Arc::new(ClassHost {
+        calls: calls.clone(),
+    });
     let threads = threads
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
         .max(1);
@@ -303,49 +458,72 @@ fn run_experiment(
         cancel: AtomicBool::new(false),
     };
     let clock = burnin::native::clock();
-    let (records, interrupted) = py.detach(|| {
+    let mut host = Calls {
+        classes: learners,
+        objects: HashMap::new(),
+        next: 0,
+        interrupted: None,
+    };
+    // This thread answers the learner classes' calls as they come, and
+    // about ten times a second (and at the end) runs Python's signal
+    // handlers and reports progress; it holds the GIL only for those.
+    let records = py.detach(|| {
+        let incoming = incoming;
         std::thread::scope(|s| {
-            let job = s.spawn(|| runner.run(&budget, &clock, &PyThreads, &watch));
-            let mut interrupted: Option<PyErr> = None;
+            let job = s.spawn(|| {
+                let r = runner.run(&budget, &clock, &Threads, &watch);
+                let _ = calls.send(Call::Finished);
+                r
+            });
             let mut last = u64::MAX;
-            let mut polls = 0u32;
+            let mut polled = Instant::now();
             loop {
-                let finished = job.is_finished();
-                polls += 1;
-                // Signals and progress about ten times a second (and at the
-                // end), without holding a short run up for a whole period.
-                if !finished && polls % 20 != 1 {
-                    std::thread::sleep(Duration::from_millis(5));
-                    continue;
-                }
+                let call = soon(&incoming, Some(Duration::from_millis(100)));
+                let finished = matches!(call, Some(Call::Finished)) || job.is_finished();
+                let poll = finished || polled.elapsed() >= Duration::from_millis(100);
                 Python::attach(|py| {
-                    if interrupted.is_none()
+                    if let Some(call) = call {
+                        host.answer(py, call);
+                    }
+                    // Every call the lanes made before they returned.
+                    if finished {
+                        while let Ok(call) = incoming.try_recv() {
+                            host.answer(py, call);
+                        }
+                    }
+                    if !poll {
+                        return;
+                    }
+                    polled = Instant::now();
+                    if host.interrupted.is_none()
                         && let Err(e) = py.check_signals()
                     {
-                        watch.cancel.store(true, Ordering::Relaxed);
-                        interrupted = Some(e);
+                        host.interrupted = Some(e);
                     }
                     let done = watch.done.load(Ordering::Relaxed);
                     if let Some(cb) = &progress
-                        && interrupted.is_none()
+                        && host.interrupted.is_none()
                         && (done != last || finished)
                     {
                         last = done;
                         let total = watch.total.load(Ordering::Relaxed);
                         if let Err(e) = cb.call1(py, (done, total)) {
-                            watch.cancel.store(true, Ordering::Relaxed);
-                            interrupted = Some(e);
+                            host.interrupted = Some(e);
                         }
                     }
                 });
+                if host.interrupted.is_some() {
+                    watch.cancel.store(true, Ordering::Relaxed);
+                }
                 if finished {
                     break;
                 }
-                std::thread::sleep(Duration::from_millis(5));
             }
-            (job.join(), interrupted)
+            job.join()
         })
     });
+    let interrupted = host.interrupted.take();
+    drop(host);
     let records = match records {
         Ok(r) => r,
         Err(panic) => std::panic::resume_unwind(panic),
@@ -400,7 +578,7 @@ fn curves<'py>(py: Python<'py>, text: &str) -> PyResult<Bound<'py, PyDict>> {
     let out = parse_results(text).map_err(|p| invalid(py, &p))?;
     let burnin::experiment::Output::Single(r) = out else {
         return Err(PyValueError::new_err(
-            "a sweep's results have no curves; read its points from to_dict()",
+            "a sweep's results have no curves of their own: each point's are in .points[i].curves, the readings against the swept value in .sweep",
         ));
     };
     let d = PyDict::new(py);
@@ -416,6 +594,102 @@ fn curves<'py>(py: Python<'py>, text: &str) -> PyResult<Bound<'py, PyDict>> {
         c.set_item("seeds", array(py, seeds, &[n, k])?)?;
         d.set_item(l.label.clone(), c)?;
     }
+    Ok(d)
+}
+
+/// A sweep's readings as numpy arrays (`burnin.Sweep`): the swept values,
+/// the size the scaling exponents are in, and per learner label its
+/// readings at each point — regret at K with its interval, the tail slope
+/// and the burn-in with their bootstrap intervals (NaN where the file has
+/// null: no interval with one seed, not settled by K), how many seeds were
+/// still linear at K — and its scaling reading as JSON; `points` holds each
+/// point's own results file text.
+#[pyfunction]
+fn sweep<'py>(py: Python<'py>, text: &str) -> PyResult<Bound<'py, PyDict>> {
+    let out = parse_results(text).map_err(|p| invalid(py, &p))?;
+    let burnin::experiment::Output::Sweep(s) = out else {
+        return Err(PyValueError::new_err(
+            "these are the results of one experiment, not of a sweep; read its curves",
+        ));
+    };
+    let n = s.values.len();
+    let vec = |v: Vec<f64>| array(py, v, &[n]);
+    let d = PyDict::new(py);
+    d.set_item("parameter", &s.parameter)?;
+    d.set_item("values", vec(s.values.clone())?)?;
+    d.set_item("scaling_in", s.scaling_in.clone())?;
+    d.set_item(
+        "scaling_x",
+        if s.scaling_x.len() == n {
+            Some(vec(s.scaling_x.clone())?)
+        } else {
+            None
+        },
+    )?;
+    let nan = f64::NAN;
+    let whole = |x: Option<u64>| x.map_or(nan, |v| v as f64);
+    let learners = PyDict::new(py);
+    for (li, l) in s.learners.iter().enumerate() {
+        // The same learner in each point's own results.
+        let at: Vec<&burnin::experiment::LearnerResult> = s
+            .points
+            .iter()
+            .map(|p| {
+                p.learners
+                    .get(li)
+                    .filter(|pl| pl.label == l.label)
+                    .ok_or_else(|| {
+                        PyValueError::new_err(format!(
+                            "learner {:?} is missing from a point of the sweep",
+                            l.label
+                        ))
+                    })
+            })
+            .collect::<PyResult<_>>()?;
+        let c = PyDict::new(py);
+        c.set_item("algorithm", &l.algorithm)?;
+        c.set_item("values", vec(s.values.clone())?)?;
+        c.set_item("regret_mean", vec(l.regret_mean.clone())?)?;
+        c.set_item("regret_lo", vec(l.regret_lo.clone())?)?;
+        c.set_item("regret_hi", vec(l.regret_hi.clone())?)?;
+        c.set_item(
+            "slope",
+            vec(l.slope.iter().map(|x| x.unwrap_or(nan)).collect())?,
+        )?;
+        let slope_iv = |end: fn((f64, f64)) -> f64| -> Vec<f64> {
+            at.iter()
+                .map(|p| p.slope_interval.map_or(nan, end))
+                .collect()
+        };
+        c.set_item("slope_lo", vec(slope_iv(|i| i.0))?)?;
+        c.set_item("slope_hi", vec(slope_iv(|i| i.1))?)?;
+        c.set_item(
+            "burn_in",
+            vec(l.burn_in.iter().map(|&b| whole(b)).collect())?,
+        )?;
+        // Each end of the burn-in's interval (null inside: not settled).
+        let burn_iv = |hi: bool| -> Vec<f64> {
+            at.iter()
+                .map(|p| whole(p.burn_in_interval.and_then(|i| if hi { i.1 } else { i.0 })))
+                .collect()
+        };
+        c.set_item("burn_in_lo", vec(burn_iv(false))?)?;
+        c.set_item("burn_in_hi", vec(burn_iv(true))?)?;
+        c.set_item(
+            "seeds_linear_at_k",
+            vec(at.iter().map(|p| whole(p.seeds_linear_at_k)).collect())?,
+        )?;
+        c.set_item(
+            "scaling",
+            l.scaling
+                .as_ref()
+                .map(|sc| serde_json::to_string(sc).expect("a reading serialises")),
+        )?;
+        learners.set_item(&l.label, c)?;
+    }
+    d.set_item("learners", learners)?;
+    let points: Vec<String> = s.points.iter().map(|p| p.to_json()).collect();
+    d.set_item("points", points)?;
     Ok(d)
 }
 
@@ -509,6 +783,7 @@ pub fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(run_experiment, m)?)?;
     m.add_function(wrap_pyfunction!(read_results, m)?)?;
     m.add_function(wrap_pyfunction!(curves, m)?)?;
+    m.add_function(wrap_pyfunction!(sweep, m)?)?;
     m.add_function(wrap_pyfunction!(figure, m)?)?;
     m.add_function(wrap_pyfunction!(table, m)?)?;
     Ok(())

@@ -26,7 +26,7 @@ import types
 from dataclasses import dataclass
 from inspect import Parameter, Signature
 from pathlib import Path
-from typing import Any, Callable, Dict, Mapping, Optional, Sequence, Union
+from typing import Any, Callable, Dict, List, Mapping, Optional, Sequence, Tuple, Union
 
 import numpy as np
 
@@ -43,6 +43,10 @@ __all__ = [
     "Evaluation",
     "Results",
     "Curve",
+    "Sweep",
+    "SweepCurve",
+    "Scaling",
+    "SWEEP_COLUMNS",
     "run",
     "generate",
     "generators",
@@ -336,16 +340,113 @@ class Curve:
     seeds: np.ndarray
 
 
+@dataclass(frozen=True)
+class Scaling:
+    """How one learner's burn-in and regret at K grow with the size a sweep
+    changes (``Sweep.scaling_in``: S, A, H, K or the swept parameter), as
+    power laws fitted on log–log axes, beside the published bound's
+    exponents on the same points (the ``sweep-scaling`` and
+    ``sweep-regret-scaling`` views). Intervals are 95% bootstrap intervals
+    over seeds, ``(lo, hi)``; None where the results file has null."""
+
+    burn_in_exponent: Optional[float]
+    burn_in_exponent_interval: Optional[Tuple[float, float]]
+    settled_points: int
+    points: int
+    regret_exponent: Optional[float]
+    regret_exponent_interval: Optional[Tuple[float, float]]
+    published_burn_in_exponent: Optional[float]
+    published_regret_exponent: Optional[float]
+    published_applies: bool
+    published_no_burn_in: bool
+    published_regret_trivial: bool
+
+    @classmethod
+    def _from_json(cls, text: Optional[str]) -> Optional["Scaling"]:
+        if text is None:
+            return None
+        d = json.loads(text)
+        for k in ("burn_in_exponent_interval", "regret_exponent_interval"):
+            if d.get(k) is not None:
+                d[k] = tuple(d[k])
+        return cls(**{f: d.get(f) for f in cls.__dataclass_fields__})
+
+
+@dataclass(frozen=True)
+class SweepCurve:
+    """One learner's readings at each point of a sweep, arrays of shape
+    (P,) in the order of ``values`` (the swept values). NaN stands where
+    the results file has null: an interval with one seed, a slope with no
+    positive regret, a burn-in (or an end of its interval) not settled by
+    K.
+
+    ``regret_mean`` with its 95% interval ``regret_lo``/``regret_hi``:
+    regret at K. ``slope`` (the tail slope of ln regret on ln k) and
+    ``burn_in`` (episodes), each with its 95% bootstrap interval over
+    seeds (``slope_lo``/``slope_hi``, ``burn_in_lo``/``burn_in_hi``).
+    ``seeds_linear_at_k``: seeds still growing linearly at K.
+    ``scaling``: the learner's :class:`Scaling` reading (None when the
+    sweep changes no size read on log axes)."""
+
+    algorithm: str
+    values: np.ndarray
+    regret_mean: np.ndarray
+    regret_lo: np.ndarray
+    regret_hi: np.ndarray
+    slope: np.ndarray
+    slope_lo: np.ndarray
+    slope_hi: np.ndarray
+    burn_in: np.ndarray
+    burn_in_lo: np.ndarray
+    burn_in_hi: np.ndarray
+    seeds_linear_at_k: np.ndarray
+    scaling: Optional[Scaling]
+
+
+@dataclass(frozen=True)
+class Sweep:
+    """A sweep's readings against the swept value: ``parameter`` (its
+    name), ``values`` (P,), ``scaling_in`` (what the scaling exponents are
+    in: "S", "A", "H", "K" or the parameter; None without scaling readings)
+    and ``scaling_x`` (that size at each point, (P,), or None), and
+    ``learners``: each learner's :class:`SweepCurve` by label."""
+
+    parameter: str
+    values: np.ndarray
+    scaling_in: Optional[str]
+    scaling_x: Optional[np.ndarray]
+    learners: Dict[str, SweepCurve]
+
+
+#: The columns of ``Results.to_pandas()`` for a sweep, after ``learner``,
+#: ``algorithm`` and the swept parameter's own name.
+SWEEP_COLUMNS = (
+    "regret_mean",
+    "regret_lo",
+    "regret_hi",
+    "slope",
+    "slope_lo",
+    "slope_hi",
+    "burn_in",
+    "burn_in_lo",
+    "burn_in_hi",
+    "seeds_linear_at_k",
+)
+
+
 class Results:
     """The results of a run: the same object as the results file
     (``burnin run --json``), with numpy curves, a data frame and the
-    core's chart."""
+    core's chart. For a sweep (``is_sweep``): its readings against the
+    swept value as arrays (:attr:`sweep`), each point's own results
+    (:attr:`points`), a data frame of the readings and the sweep views."""
 
-    __slots__ = ("_text", "_dict")
+    __slots__ = ("_text", "_dict", "_sweep")
 
     def __init__(self, text: str):
         self._text = text
         self._dict: Optional[dict] = None
+        self._sweep: Optional[dict] = None
 
     @classmethod
     def from_json(cls, text: str) -> "Results":
@@ -375,16 +476,73 @@ class Results:
         return self._dict
 
     @property
+    def is_sweep(self) -> bool:
+        """Whether these are a sweep's results (``burnin-sweep``)."""
+        return self.to_dict().get("format") == "burnin-sweep"
+
+    @property
     def curves(self) -> Dict[str, Curve]:
-        """Each learner's :class:`Curve`, by label (not for a sweep)."""
+        """Each learner's :class:`Curve`, by label (for a sweep, each
+        point's are in ``points[i].curves``)."""
         return {k: Curve(**v) for k, v in _burnin.curves(self._text).items()}
 
+    def _sweep_native(self) -> dict:
+        if self._sweep is None:
+            self._sweep = _burnin.sweep(self._text)
+        return self._sweep
+
+    @property
+    def sweep(self) -> Sweep:
+        """A sweep's readings against the swept value as numpy arrays
+        (:class:`Sweep`); ValueError for the results of one experiment."""
+        d = self._sweep_native()
+        learners = {}
+        for label, c in d["learners"].items():
+            c = dict(c)
+            c["scaling"] = Scaling._from_json(c["scaling"])
+            learners[label] = SweepCurve(**c)
+        return Sweep(d["parameter"], d["values"], d["scaling_in"], d["scaling_x"], learners)
+
+    @property
+    def points(self) -> List["Results"]:
+        """A sweep's points, each as the :class:`Results` of its own
+        experiment (curves, data frame, charts), in the order of
+        ``sweep.values``; ValueError for the results of one experiment."""
+        return [Results(t) for t in self._sweep_native()["points"]]
+
     def to_pandas(self):
-        """A long data frame, one row per (learner, seed, checkpoint):
-        ``learner``, ``algorithm``, ``seed_index``, ``episode``, ``regret``
-        (the rows of ``burnin run --seeds-csv``). Needs pandas."""
+        """A long data frame. Needs pandas.
+
+        Results of one experiment: one row per (learner, seed, checkpoint),
+        columns ``learner``, ``algorithm``, ``seed_index``, ``episode``,
+        ``regret`` (the rows of ``burnin run --seeds-csv``).
+
+        A sweep: one row per (learner, swept value), learner by learner in
+        the experiment's order: ``learner``, ``algorithm``, the swept
+        value in a column named by the parameter (``states``, ``delta``,
+        …; the rows of ``burnin run --csv`` up to ``regret_hi``), then
+        ``regret_mean``, ``regret_lo``, ``regret_hi`` (regret at K and its
+        95% interval), ``slope``, ``slope_lo``, ``slope_hi``, ``burn_in``,
+        ``burn_in_lo``, ``burn_in_hi`` (with their bootstrap intervals),
+        ``seeds_linear_at_k``; floats, NaN where the file has null (see
+        :class:`SweepCurve`)."""
         import pandas as pd
 
+        if self.is_sweep:
+            sw = self.sweep
+            cols: Dict[str, Any] = {"learner": [], "algorithm": [], sw.parameter: []}
+            for c in SWEEP_COLUMNS:
+                cols[c] = []
+            for label, c in sw.learners.items():
+                n = len(c.values)
+                cols["learner"] += [label] * n
+                cols["algorithm"] += [c.algorithm] * n
+                cols[sw.parameter].append(c.values)
+                for k in SWEEP_COLUMNS:
+                    cols[k].append(getattr(c, k))
+            for k in (sw.parameter, *SWEEP_COLUMNS):
+                cols[k] = np.concatenate(cols[k]) if cols[k] else np.zeros(0)
+            return pd.DataFrame(cols)
         d = self.to_dict()
         rows = []
         for l in d.get("learners", []):
@@ -410,9 +568,11 @@ class Results:
     ) -> Union[str, bytes]:
         """The core's chart, byte for byte what ``burnin plot`` writes with
         the same options: SVG text, or PNG bytes with ``format="png"``.
-        ``view``: cumulative, episode, difference, sweep, sweep-slope,
-        sweep-burn-in, sweep-scaling, sweep-regret-scaling (default: the
-        first the results have)."""
+        ``view``: cumulative, episode, difference (results of one
+        experiment); sweep (regret at K against the swept value),
+        sweep-slope, sweep-burn-in, sweep-scaling, sweep-regret-scaling (a
+        sweep; the scaling views when the sweep changes a size). Default:
+        the first the results have."""
         if format not in ("svg", "png"):
             raise ValueError(f"format={format!r}: expected 'svg' or 'png'")
         return _burnin.figure(
@@ -440,7 +600,10 @@ class Results:
     def __repr__(self) -> str:
         d = self.to_dict()
         labels = [l["label"] for l in d.get("learners", [])]
-        return f"<burnin.Results {d.get('format')}: {', '.join(labels)}>"
+        over = ""
+        if d.get("format") == "burnin-sweep":
+            over = f" over {d.get('parameter')} = {', '.join(format(v, 'g') for v in d.get('values', []))}"
+        return f"<burnin.Results {d.get('format')}{over}: {', '.join(labels)}>"
 
 
 class _TextProgress:
@@ -517,9 +680,13 @@ def run(
     results do not depend on it. ``progress``: True (tqdm when installed,
     else a line per tenth on standard error), False, or a callable
     ``(done, total)``. ``budget_minutes``: refuse a run estimated longer
-    (default: no estimate). The GIL is released while the core runs (your
-    learners take it when called); Ctrl-C or the notebook's stop button
-    stops the run and raises KeyboardInterrupt, with nothing written.
+    (default: no estimate). The core runs on threads of its own with the GIL
+    released; your classes are made and called from the thread that called
+    ``run``, one call at a time. Ctrl-C or the notebook's stop button stops
+    the run and raises KeyboardInterrupt, with nothing written, even while
+    your ``decide`` is inside a loop that never ends or a ``time.sleep``
+    (when ``run`` is called from the main thread, where Python handles
+    signals).
     """
     base: Optional[str] = None
     if isinstance(experiment, Mapping):

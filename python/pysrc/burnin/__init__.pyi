@@ -151,8 +151,67 @@ class Curve:
     hi: np.ndarray
     seeds: np.ndarray
 
+class Scaling:
+    """How burn-in and regret at K grow with the size a sweep changes:
+    fitted exponents with 95% bootstrap intervals `(lo, hi)`, and the
+    published bound's exponents on the same points (None: null in the file)."""
+    burn_in_exponent: Optional[float]
+    burn_in_exponent_interval: Optional[Tuple[float, float]]
+    settled_points: int
+    points: int
+    regret_exponent: Optional[float]
+    regret_exponent_interval: Optional[Tuple[float, float]]
+    published_burn_in_exponent: Optional[float]
+    published_regret_exponent: Optional[float]
+    published_applies: bool
+    published_no_burn_in: bool
+    published_regret_trivial: bool
+
+class SweepCurve:
+    """One learner across a sweep: arrays of shape (P,) in the order of
+    `values`, float64, NaN where the results file has null (no interval
+    with one seed; a slope with no positive regret; a burn-in, or an end
+    of its interval, not settled by K)."""
+    algorithm: str
+    values: np.ndarray
+    """The swept values."""
+    regret_mean: np.ndarray
+    """Mean regret at K; `regret_lo`/`regret_hi` its 95% Student-t interval."""
+    regret_lo: np.ndarray
+    regret_hi: np.ndarray
+    slope: np.ndarray
+    """Tail slope of ln regret on ln k; `slope_lo`/`slope_hi` its 95% bootstrap interval."""
+    slope_lo: np.ndarray
+    slope_hi: np.ndarray
+    burn_in: np.ndarray
+    """Burn-in in episodes; `burn_in_lo`/`burn_in_hi` its 95% bootstrap interval."""
+    burn_in_lo: np.ndarray
+    burn_in_hi: np.ndarray
+    seeds_linear_at_k: np.ndarray
+    """Seeds still growing linearly at K."""
+    scaling: Optional[Scaling]
+
+class Sweep:
+    """A sweep's readings: the parameter, `values` (P,), what the scaling
+    exponents are in (`scaling_in`: "S", "A", "H", "K" or the parameter)
+    and that size at each point (`scaling_x`, (P,)), both None without
+    scaling readings; each learner's SweepCurve by label."""
+    parameter: str
+    values: np.ndarray
+    scaling_in: Optional[str]
+    scaling_x: Optional[np.ndarray]
+    learners: Dict[str, SweepCurve]
+
+SWEEP_COLUMNS: Tuple[str, ...]
+"""The columns of a sweep's `to_pandas()` after `learner`, `algorithm` and
+the swept parameter's own name (its values): `regret_mean`, `regret_lo`,
+`regret_hi`, `slope`, `slope_lo`, `slope_hi`, `burn_in`, `burn_in_lo`,
+`burn_in_hi`, `seeds_linear_at_k` (floats, NaN for null)."""
+
 class Results:
-    """The results file (`burnin run --json`) with arrays, a frame and the chart."""
+    """The results file (`burnin run --json`) with arrays, a frame and the
+    chart; for a sweep, its readings (`sweep`) and each point's results
+    (`points`)."""
     def __init__(self, text: str) -> None: ...
     @classmethod
     def from_json(cls, text: str) -> Results: ...
@@ -162,8 +221,21 @@ class Results:
     def save(self, path: PathLike) -> None: ...
     def to_dict(self) -> Dict[str, Any]: ...
     @property
-    def curves(self) -> Dict[str, Curve]: ...
-    def to_pandas(self) -> Any: ...
+    def is_sweep(self) -> bool: ...
+    @property
+    def curves(self) -> Dict[str, Curve]:
+        """Per learner label (results of one experiment; a sweep's are per point)."""
+    @property
+    def sweep(self) -> Sweep:
+        """A sweep's readings as arrays (ValueError for one experiment's results)."""
+    @property
+    def points(self) -> List[Results]:
+        """A sweep's points, each its own results, in the order of `sweep.values`."""
+    def to_pandas(self) -> Any:
+        """One experiment: a row per (learner, seed, checkpoint), columns
+        learner, algorithm, seed_index, episode, regret. A sweep: a row per
+        (learner, swept value), columns learner, algorithm, the parameter's
+        name (the value), then SWEEP_COLUMNS."""
     def figure(
         self,
         view: Optional[str] = ...,
@@ -190,4 +262,6 @@ def run(
     progress: Union[bool, Callable[[int, int], None], None] = ...,
     budget_minutes: Optional[float] = ...,
 ) -> Results:
-    """Runs an experiment in this process (the GIL released while the core runs)."""
+    """Runs an experiment in this process (the GIL released while the core
+    runs; your classes called from this thread, so Ctrl-C stops even a
+    `decide` that never returns)."""
