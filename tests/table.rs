@@ -400,8 +400,16 @@ fn results_from_an_earlier_build_give_a_table() {
 #[test]
 fn the_caveat_is_the_pages() {
     let html = std::fs::read_to_string(root().join("www/index.html")).unwrap();
-    assert!(
-        html.contains(&format!("<p class=\"caption caution\">{CAVEAT}</p>")),
+    // The results' caution paragraph holds exactly CAVEAT (the guide's
+    // copies it there when it opens).
+    let at = html
+        .find("<p class=\"caption caution\" id=\"results-caution\"")
+        .expect("www/index.html has a results caution");
+    let tag_end = at + html[at..].find('>').expect("the tag closes") + 1;
+    let text_end = tag_end + html[tag_end..].find("</p>").expect("the paragraph closes");
+    assert_eq!(
+        &html[tag_end..text_end],
+        CAVEAT,
         "www/index.html's results caption is CAVEAT"
     );
 }
