@@ -11,7 +11,7 @@ use plotters_backend::{
 };
 
 use super::Figure;
-use super::draw::{TypeSizes, draw};
+use super::draw::{FINE, TypeSizes, draw};
 use super::layout::{FONT, Metrics};
 
 /// Plotters' bitmap backend with our own text.
@@ -135,7 +135,8 @@ impl DrawingBackend for Raster<'_> {
 
 /// The chart as a PNG image, w×h pixels, type enlarged by `scale`.
 pub fn png(fig: &Figure, w: u32, h: u32, scale: f64) -> Vec<u8> {
-    // Drawn at twice the size, then each 2×2 block averaged.
+    // Drawn at FINE (2) times the size, then each 2×2 block averaged.
+    const _: () = assert!(FINE == 2, "the averaging below takes 2×2 blocks");
     let (bw, bh) = (2 * w, 2 * h);
     let mut big = vec![0u8; (bw * bh * 3) as usize];
     {
@@ -144,7 +145,7 @@ pub fn png(fig: &Figure, w: u32, h: u32, scale: f64) -> Vec<u8> {
             font: FontRef::try_from_slice(FONT).expect("the embedded font parses"),
         };
         let area = raster.into_drawing_area();
-        draw(&area, fig, 2.0 * scale, TypeSizes::EM).expect("drawing into memory cannot fail");
+        draw(&area, fig, scale, TypeSizes::EM).expect("drawing into memory cannot fail");
         area.present()
             .expect("a bitmap in memory is always complete");
     }

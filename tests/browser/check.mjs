@@ -14,7 +14,7 @@
 // fresh browser context.
 import { finish } from './checks/helpers.mjs';
 
-const VIEWS = ['solution', 'experiment', 'results', 'table1', 'library', 'share', 'editor', 'layout', 'graph', 'guests', 'site'];
+const VIEWS = ['solution', 'experiment', 'results', 'table1', 'library', 'share', 'editor', 'layout', 'charts', 'graph', 'guests', 'site'];
 
 for (const view of VIEWS) await import(`./checks/${view}.mjs`);
 await finish();

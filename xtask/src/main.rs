@@ -455,6 +455,19 @@ fn browser_checks(www: PathBuf) -> Result<()> {
                 .ok_or_else(|| format!("burnin table failed on {}", results.display()))?;
             }
         }
+        // And its PNG, for the page's PNG export to be compared with pixel
+        // by pixel (checks/charts.mjs).
+        if name == "ferry-experiment.json" {
+            let png = out.join(format!("{name}.chart.png"));
+            output(
+                Command::new(&cli)
+                    .arg("plot")
+                    .arg(&results)
+                    .arg("--output")
+                    .arg(&png),
+            )
+            .ok_or_else(|| format!("burnin plot failed on {}", results.display()))?;
+        }
         for (suffix, args) in figures {
             let svg = out.join(format!("{name}.{suffix}.svg"));
             let mut plot = Command::new(&cli);

@@ -1,0 +1,162 @@
+// Browser checks of the charts' pictures (#34): no chart text is clipped
+// or overlaps another at phone, tablet and laptop widths, shortened text
+// can be read whole on hover, the transition graph's labels stay readable
+// on a phone, and the page's PNG export matches `burnin plot`'s PNG.
+// Run by check.mjs; shared helpers in helpers.mjs.
+
+import { readFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { checks, url, out, browser, shownValue, openPage, upload, defaultName, assert, assertEqual } from './helpers.mjs';
+
+const check = checks('charts', import.meta.url);
+
+/**
+ * The pixels of two PNG files (bytes) compared in the page: the share of
+ * pixels where some channel differs by more than `tol` (of 255), and
+ * their sizes.
+ */
+async function pngDifference(page, a, b, tol) {
+  return page.evaluate(async ([a, b, tol]) => {
+    const pixels = async (b64) => {
+      const img = new Image();
+      img.src = `data:image/png;base64,${b64}`;
+      await img.decode();
+      const c = document.createElement('canvas');
+      c.width = img.naturalWidth;
+      c.height = img.naturalHeight;
+      const g = c.getContext('2d');
+      g.drawImage(img, 0, 0);
+      return { w: c.width, h: c.height, d: g.getImageData(0, 0, c.width, c.height).data };
+    };
+    const [p, q] = [await pixels(a), await pixels(b)];
+    if (p.w !== q.w || p.h !== q.h) return { size: [[p.w, p.h], [q.w, q.h]] };
+    let differ = 0;
+    for (let i = 0; i < p.d.length; i += 4) {
+      if (Math.abs(p.d[i] - q.d[i]) > tol || Math.abs(p.d[i + 1] - q.d[i + 1]) > tol || Math.abs(p.d[i + 2] - q.d[i + 2]) > tol) differ++;
+    }
+    return { size: [[p.w, p.h]], share: differ / (p.w * p.h) };
+  }, [a.toString('base64'), b.toString('base64'), tol]);
+}
+
+/**
+ * The ferry fixture's results (what `burnin run --json` printed) with
+ * learners relabelled as long as the issue's: words that wrap, and one
+ * label of a single word longer than a phone's chart is wide, which must
+ * be cut (and read whole on hover).
+ */
+const unbroken = 'ucbvi-bernstein-with-its-bonus-scaled-by-one-tenth-and-no-space-to-break-at';
+const longLabels = {
+  'mvp ×0.01': 'mvp ×0.01 with a label long enough to wrap',
+  'ucbvi-hoeffding ×0.02': unbroken,
+  psrl: 'psrl (posterior sampling)',
+  'eps-greedy ε=0.2': 'eps-greedy ε=0.2',
+  uniform: 'uniform random policy, the baseline',
+};
+function longResults() {
+  const r = JSON.parse(readFileSync(join(out, 'ferry-experiment.json.results.json'), 'utf8'));
+  for (const l of r.learners) l.label = longLabels[l.label];
+  for (const c of r.comparisons) { c.a = longLabels[c.a]; c.b = longLabels[c.b]; }
+  return r;
+}
+
+/** The chart's texts as the core placed them, and the browser's own measure of each one's ink. */
+function chartTexts(page) {
+  return page.evaluate(async () => {
+    const { drawnTexts } = await import('./charts.js');
+    const canvas = document.getElementById('chart');
+    const d = drawnTexts(canvas);
+    const rect = canvas.getBoundingClientRect();
+    const g = document.createElement('canvas').getContext('2d');
+    const measured = d.texts.map((t) => {
+      g.font = `${t.size}px BurninSans`;
+      g.fontKerning = 'none';
+      const m = g.measureText(t.text);
+      const along = m.actualBoundingBoxLeft + m.actualBoundingBoxRight;
+      const across = m.actualBoundingBoxAscent + m.actualBoundingBoxDescent;
+      return t.upright ? [across, along] : [along, across];
+    });
+    return { ...d, measured, rect: { left: rect.left, right: rect.right, width: rect.width }, viewport: document.documentElement.clientWidth };
+  });
+}
+
+for (const width of [360, 390, 1024, 1366]) {
+  await check(`at ${width} px no chart text is clipped or overlaps another, each learner is named, and a shortened text reads whole on hover`, async () => {
+    const ctx = await browser.newContext({ viewport: { width, height: 800 }, deviceScaleFactor: 1, acceptDownloads: true });
+    try {
+      const page = await ctx.newPage();
+      await page.goto(url + '/');
+      await shownValue(page, defaultName);
+      const results = longResults();
+      await upload(page, 'long-labels.results.json', JSON.stringify(results));
+      await page.waitForSelector('#results:not([hidden])');
+      await page.waitForFunction(() => Number(document.getElementById('chart').dataset.series) > 0);
+      for (const view of ['cumulative', 'episode', 'difference']) {
+        await page.selectOption('#chart-view', view);
+        const c = await chartTexts(page);
+        const where = `${width} px, ${view}`;
+        assert(c.texts.length > 5, `${where}: the core placed the chart's texts (${c.texts.length})`);
+        // The canvas itself is on screen, not cut by the page.
+        assert(c.rect.left >= 0 && c.rect.right <= c.viewport + 0.5, `${where}: the chart is within the page: ${JSON.stringify(c.rect)}`);
+        let worst = 0;
+        c.texts.forEach((t, i) => {
+          assert(t.left >= 0 && t.top >= 0 && t.right <= c.width && t.bottom <= c.height, `${where}: "${t.text}" lies inside the ${c.width}×${c.height} chart: ${JSON.stringify(t)}`);
+          // The core's ink box is the browser's own measure of the drawn
+          // text (measureText's actual bounding box), which Chrome rounds
+          // out to whole pixels at its start, top and bottom: up to a
+          // pixel more along the text, two across it.
+          const [w, h] = c.measured[i];
+          const [along, across] = t.upright ? [h, w] : [w, h];
+          const [coreAlong, coreAcross] = t.upright ? [t.bottom - t.top, t.right - t.left] : [t.right - t.left, t.bottom - t.top];
+          worst = Math.max(worst, along - coreAlong, across - coreAcross);
+          assert(along - coreAlong >= -0.5 && along - coreAlong <= 1.5 && across - coreAcross >= -0.5 && across - coreAcross <= 2, `${where}: "${t.text}" measures ${along.toFixed(1)} along by ${across.toFixed(1)} across in the browser, ${coreAlong.toFixed(1)} by ${coreAcross.toFixed(1)} in the core`);
+          for (const u of c.texts.slice(0, i)) {
+            const apart = t.right <= u.left || u.right <= t.left || t.bottom <= u.top || u.bottom <= t.top;
+            assert(apart, `${where}: "${t.text}" and "${u.text}" do not overlap: ${JSON.stringify([t, u])}`);
+          }
+          if (t.text.includes('…')) assert(t.full && t.full.length > t.text.length - 1, `${where}: "${t.text}" is cut and keeps its whole text`);
+        });
+        if (view === 'cumulative') console.log(`     ${where}: ${c.texts.length} texts, the browser's measure at most ${worst.toFixed(2)} px over the core's boxes`);
+        if (view !== 'difference') {
+          const words = new Set(c.texts.flatMap((t) => t.text.split(' ')));
+          for (const label of Object.values(longLabels)) {
+            const named = c.texts.some((t) => t.full?.split('; ').includes(label)) || label.split(' ').every((w) => words.has(w));
+            assert(named, `${where}: the legend names "${label}" (whole, wrapped, or on hover)`);
+          }
+        }
+        // Every shortened text reads whole on hover (a tap on a phone).
+        for (const t of c.texts.filter((t) => t.full)) {
+          await page.locator('#chart').scrollIntoViewIfNeeded();
+          const box = await page.locator('#chart').boundingBox();
+          await page.mouse.move(box.x + (t.left + t.right) / 2 / c.ratio, box.y + (t.top + t.bottom) / 2 / c.ratio);
+          await page.waitForFunction((full) => { const tip = document.getElementById('chart-tip'); return !tip.hidden && tip.textContent === full; }, t.full, { timeout: 3000 })
+            .catch(async () => { throw new Error(`${where}: hovering "${t.text}" shows ${JSON.stringify(await page.textContent('#chart-tip'))}, not its whole text ${JSON.stringify(t.full)}`); });
+          await page.mouse.move(0, 0);
+        }
+        if (width <= 390 && view === 'cumulative') {
+          assert(c.texts.some((t) => t.full === unbroken), `${where}: the unbreakable label is cut, whole on hover`);
+          await page.locator('#chart').screenshot({ path: join(out, `chart-${width}.png`) });
+        }
+      }
+    } finally {
+      await ctx.close();
+    }
+  });
+}
+
+await check('the page\'s PNG export matches `burnin plot`\'s PNG of the same results', async (page) => {
+  await openPage(page);
+  const file = 'ferry-experiment.json.results.json';
+  await upload(page, file, readFileSync(join(out, file), 'utf8'));
+  await page.waitForSelector('#results:not([hidden])');
+  await page.waitForFunction(() => Number(document.getElementById('chart').dataset.series) > 0);
+  const [dl] = await Promise.all([page.waitForEvent('download'), page.click('#export-png')]);
+  const mine = readFileSync(await dl.path());
+  const cli = readFileSync(join(out, 'ferry-experiment.json.chart.png'));
+  writeFileSync(join(out, 'page-chart.png'), mine);
+  for (const tol of [0, 8, 16, 48]) {
+    const d = await pngDifference(page, mine, cli, tol);
+    console.log(`     PNG: ${(100 * d.share).toFixed(2)}% of pixels differ by more than ${tol}/255 in some channel`);
+  }
+  const d = await pngDifference(page, mine, cli, 48);
+  assertEqual(JSON.stringify(d.size), '[[1280,720]]', 'both are 1280×720');
+});
