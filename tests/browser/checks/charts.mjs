@@ -160,3 +160,52 @@ await check('the page\'s PNG export matches `burnin plot`\'s PNG of the same res
   const d = await pngDifference(page, mine, cli, 48);
   assertEqual(JSON.stringify(d.size), '[[1280,720]]', 'both are 1280×720');
 });
+
+for (const width of [360, 390, 1366]) {
+  await check(`at ${width} px the transition graph's labels keep their size, stay inside the graph and apart, and a cut name reads whole on hover or tap`, async () => {
+    const ctx = await browser.newContext({ viewport: { width, height: 800 }, deviceScaleFactor: 1, acceptDownloads: true });
+    try {
+      const page = await ctx.newPage();
+      await page.goto(url + '/');
+      await shownValue(page, defaultName);
+      // A demo model with one state's name longer than a phone's graph has room for.
+      const model = await (await fetch(`${url}/demo-models/pearl-reef.json`)).json();
+      const long = 'the sheltered west ledge under the cliff, where the oysters grow';
+      model.states[2] = long;
+      await upload(page, 'long-names.json', JSON.stringify(model));
+      await shownValue(page, model.name);
+      await page.click('#tab-graph');
+      await page.waitForFunction((n) => document.querySelectorAll('#graph-box g.node').length === n, model.states.length);
+      const labels = () => page.evaluate(() => {
+        const box = document.getElementById('graph-box').getBoundingClientRect();
+        return { box: { left: box.left, right: box.right, top: box.top, bottom: box.bottom }, labels: [...document.querySelectorAll('#graph-box g.node')].map((g) => {
+          const t = g.querySelector('text');
+          const r = t.getBoundingClientRect();
+          // The size on screen: the font size times the drawing's scale.
+          const spans = [...t.querySelectorAll('tspan')].map((x) => x.textContent);
+          return { state: Number(g.dataset.state), text: spans.length ? spans.join(' ') : t.textContent, title: g.querySelector('title')?.textContent, px: Number(t.getAttribute('font-size')) * t.getScreenCTM().a, left: r.left, right: r.right, top: r.top, bottom: r.bottom };
+        }) };
+      });
+      const { box, labels: ls } = await labels();
+      ls.forEach((l, i) => {
+        assert(l.px >= 12, `${width} px: "${l.text}" is drawn at ${l.px.toFixed(1)} px (at least 12)`);
+        assert(l.left >= box.left && l.right <= box.right, `${width} px: "${l.text}" lies inside the graph: ${JSON.stringify({ l, box })}`);
+        assertEqual(l.title, model.states[l.state], `${width} px: node ${l.state}'s tooltip names it whole`);
+        assert(l.text === model.states[l.state] || (l.text.endsWith('…') && model.states[l.state].startsWith(l.text.slice(0, -1))), `${width} px: "${l.text}" is the state's name or its start`);
+        for (const m of ls.slice(0, i)) {
+          assert(l.right <= m.left || m.right <= l.left || l.bottom <= m.top || m.bottom <= l.top, `${width} px: "${l.text}" and "${m.text}" do not overlap`);
+        }
+      });
+      const cut = ls.find((l) => l.state === 2);
+      assert(cut.text !== long && cut.text.endsWith('…'), `${width} px: the long name is cut (${cut.text})`);
+      // A tap (a click focuses the node) shows the whole name.
+      await page.locator('#graph-box [data-state="2"]').focus();
+      const shown = (await labels()).labels.find((l) => l.state === 2);
+      assertEqual(shown.text, long, `${width} px: the focused node shows its whole name`);
+      assert(shown.left >= box.left && shown.right <= box.right, `${width} px: the whole name lies inside the graph: ${JSON.stringify(shown)}`);
+      if (width === 390) await page.locator('#graph-box').screenshot({ path: join(out, 'graph-390.png') });
+    } finally {
+      await ctx.close();
+    }
+  });
+}
