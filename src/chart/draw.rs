@@ -277,6 +277,81 @@ pub fn base64(bytes: &[u8]) -> String {
 mod tests {
     use super::*;
 
+    /// #34: the SVG keeps curves to half a pixel (whole pixels put kinks
+    /// in slow slopes): it is drawn at twice the size in a `viewBox`, and
+    /// each point of a curve lies within a quarter pixel of where the
+    /// layout's mapping puts it.
+    #[test]
+    fn svg_curves_keep_half_pixel_precision() {
+        use crate::chart::{Series, colours::series_colour};
+        let x: Vec<f64> = (0..200).map(f64::from).collect();
+        let y: Vec<f64> = x.iter().map(|v| 3.0 + 0.037 * v).collect();
+        let fig = Figure {
+            title: "slope".into(),
+            x_label: "x".into(),
+            x_name: "x".into(),
+            y_label: "y".into(),
+            log: false,
+            bars: false,
+            series: vec![Series {
+                label: "a slow slope".into(),
+                colour: series_colour(0),
+                x: x.clone(),
+                y: y.clone(),
+                band: None,
+                dash: None,
+                width: 2.0,
+                legend: true,
+                curve: true,
+            }],
+            caption: String::new(),
+        };
+        let text = svg(&fig, 640, 400, 1.0);
+        assert!(
+            text.starts_with(r#"<svg width="640" height="400" viewBox="0 0 1280 800""#),
+            "{}",
+            &text[..80]
+        );
+        let layout = Layout::new(&fig, 640.0, 400.0, 1.0);
+        let colour = series_colour(0).hex();
+        let line = text
+            .lines()
+            .find(|l| {
+                l.starts_with("<polyline")
+                    && l.to_ascii_lowercase().contains(&colour)
+                    && l.matches(',').count() > 100
+            })
+            .expect("the curve is a polyline");
+        let points = line
+            .split("points=\"")
+            .nth(1)
+            .unwrap()
+            .split('"')
+            .next()
+            .unwrap();
+        let pts: Vec<(f64, f64)> = points
+            .split_whitespace()
+            .map(|p| {
+                let (a, b) = p.split_once(',').unwrap();
+                (
+                    a.parse::<f64>().unwrap() / 2.0,
+                    b.parse::<f64>().unwrap() / 2.0,
+                )
+            })
+            .collect();
+        assert_eq!(pts.len(), x.len());
+        let mut halves = 0;
+        for (i, &(px, py)) in pts.iter().enumerate() {
+            let (wx, wy) = (layout.frame.px(x[i]), layout.frame.py(y[i]));
+            assert!(
+                (px - wx).abs() <= 0.25 + 1e-9 && (py - wy).abs() <= 0.25 + 1e-9,
+                "point {i}: {px},{py} for {wx},{wy}"
+            );
+            halves += usize::from(py.fract() != 0.0);
+        }
+        assert!(halves > 20, "half pixels are used ({halves})");
+    }
+
     /// The test vectors of RFC 4648, section 10.
     #[test]
     fn base64_matches_the_rfc_vectors() {
