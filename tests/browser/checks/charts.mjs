@@ -80,8 +80,10 @@ function chartTexts(page) {
 }
 
 for (const width of [360, 390, 1024, 1366]) {
-  await check(`at ${width} px no chart text is clipped or overlaps another, each learner is named, and a shortened text reads whole on hover`, async () => {
-    const ctx = await browser.newContext({ viewport: { width, height: 800 }, deviceScaleFactor: 1, acceptDownloads: true });
+  // Phones tap where a mouse hovers.
+  const touch = width <= 390;
+  await check(`at ${width} px no chart text is clipped or overlaps another, each learner is named, and a shortened text reads whole on ${touch ? 'a tap' : 'hover'}`, async () => {
+    const ctx = await browser.newContext({ viewport: { width, height: 800 }, deviceScaleFactor: 1, acceptDownloads: true, hasTouch: touch });
     try {
       const page = await ctx.newPage();
       await page.goto(url + '/');
@@ -127,9 +129,11 @@ for (const width of [360, 390, 1024, 1366]) {
         for (const t of c.texts.filter((t) => t.full)) {
           await page.locator('#chart').scrollIntoViewIfNeeded();
           const box = await page.locator('#chart').boundingBox();
-          await page.mouse.move(box.x + (t.left + t.right) / 2 / c.ratio, box.y + (t.top + t.bottom) / 2 / c.ratio);
+          const [x, y] = [box.x + (t.left + t.right) / 2 / c.ratio, box.y + (t.top + t.bottom) / 2 / c.ratio];
+          if (touch) await page.touchscreen.tap(x, y);
+          else await page.mouse.move(x, y);
           await page.waitForFunction((full) => { const tip = document.getElementById('chart-tip'); return !tip.hidden && tip.textContent === full; }, t.full, { timeout: 3000 })
-            .catch(async () => { throw new Error(`${where}: hovering "${t.text}" shows ${JSON.stringify(await page.textContent('#chart-tip'))}, not its whole text ${JSON.stringify(t.full)}`); });
+            .catch(async () => { throw new Error(`${where}: ${touch ? 'tapping' : 'hovering'} "${t.text}" shows ${JSON.stringify(await page.textContent('#chart-tip'))}, not its whole text ${JSON.stringify(t.full)}`); });
           await page.mouse.move(0, 0);
         }
         if (width <= 390 && view === 'cumulative') {
@@ -183,8 +187,9 @@ await check('the page\'s PNG export matches `burnin plot`\'s PNG of the same res
 });
 
 for (const width of [360, 390, 1366]) {
-  await check(`at ${width} px the transition graph's labels keep their size, stay inside the graph and apart, and a cut name reads whole on hover or tap`, async () => {
-    const ctx = await browser.newContext({ viewport: { width, height: 800 }, deviceScaleFactor: 1, acceptDownloads: true });
+  const touch = width <= 390;
+  await check(`at ${width} px the transition graph's labels keep their size, stay inside the graph and apart, and a cut name reads whole on ${touch ? 'a tap' : 'hover'}`, async () => {
+    const ctx = await browser.newContext({ viewport: { width, height: 800 }, deviceScaleFactor: 1, acceptDownloads: true, hasTouch: touch });
     try {
       const page = await ctx.newPage();
       await page.goto(url + '/');
@@ -219,10 +224,13 @@ for (const width of [360, 390, 1366]) {
       });
       const cut = ls.find((l) => l.state === 2);
       assert(cut.text !== long && cut.text.endsWith('…'), `${width} px: the long name is cut (${cut.text})`);
-      // A tap (a click focuses the node) shows the whole name.
-      await page.locator('#graph-box [data-state="2"]').focus();
+      // A tap on the node (or the pointer over it) shows the whole name.
+      const node = page.locator('#graph-box [data-state="2"] circle');
+      if (touch) await node.tap();
+      else await node.hover();
+      await page.waitForTimeout(300);
       const shown = (await labels()).labels.find((l) => l.state === 2);
-      assertEqual(shown.text, long, `${width} px: the focused node shows its whole name`);
+      assertEqual(shown.text, long, `${width} px: the ${touch ? 'tapped' : 'hovered'} node shows its whole name`);
       assert(shown.left >= box.left && shown.right <= box.right, `${width} px: the whole name lies inside the graph: ${JSON.stringify(shown)}`);
       if (width === 390) await page.locator('#graph-box').screenshot({ path: join(out, 'graph-390.png') });
     } finally {
