@@ -47,22 +47,43 @@ export async function openChart(chartText) {
 }
 
 /**
- * Sizes `canvas` to cssW×cssH CSS pixels at the screen's pixel density
+ * Sizes `canvas` to cssW×cssH CSS pixels (cssW at most its box's width)
+ * at the screen's pixel density
  * (sharp on high-density screens) and draws into it, type enlarged by
  * `typeScale`. Returns the core's {ok, series | message} and the ratio of
  * canvas to CSS pixels.
  */
 export function drawInto(chart, canvas, options, cssW, cssH, typeScale = 1) {
   const ratio = window.devicePixelRatio || 1;
+  // Never wider than the box it is in, which would cut its right side off
+  // (at 360 px a results box is 278 px wide; #34).
+  const room = canvas.parentElement?.clientWidth;
+  if (room > 0) cssW = Math.min(cssW, room);
   canvas.width = Math.round(cssW * ratio);
   canvas.height = Math.round(cssH * ratio);
   canvas.style.width = `${cssW}px`;
   canvas.style.height = `${cssH}px`;
   try {
-    return { ...chart.draw(canvas, options, ratio * typeScale), ratio };
+    const r = { ...chart.draw(canvas, options, ratio * typeScale), ratio };
+    drawn.set(canvas, { texts: r.texts ?? [], ratio, width: canvas.width, height: canvas.height });
+    return r;
   } catch (e) {
+    drawn.delete(canvas);
     return { ok: false, message: `the chart could not be drawn: ${e?.message ?? e}`, ratio };
   }
+}
+
+/** What drawInto last drew in each canvas: the core's placed texts. */
+const drawn = new WeakMap();
+
+/**
+ * The texts of the chart last drawn into `canvas`, as the core placed
+ * them: `{text, full, left, top, right, bottom}` with the box of their ink
+ * in canvas pixels (`full`: the whole text where `text` is shortened; the
+ * hover shows it), and the canvas's size and pixel ratio; null if none.
+ */
+export function drawnTexts(canvas) {
+  return drawn.get(canvas) ?? null;
 }
 
 /** Size and type scale of exported pictures (as `burnin plot`'s defaults). */

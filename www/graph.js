@@ -3,7 +3,12 @@
 // with the arrow keys) with their positions kept in the model's layout.
 
 const NS = 'http://www.w3.org/2000/svg';
-const W = 1000, H = 520, M = 60, R = 16;
+// The drawing is as wide as its box in CSS pixels (1000 while the box is
+// hidden), so type keeps its size on a phone rather than shrinking with a
+// fixed-width picture (#34); 520 px high, as the box.
+const H = 520, M = 60, R = 16;
+/** Node labels: their size, and the widest a label may be before it is cut (whole on hover or focus). */
+const LABEL_SIZE = 13, LABEL_MAX = 160;
 /** Largest model drawn as a graph. */
 const MAX_NODES = 80;
 const $ = (id) => document.getElementById(id);
@@ -24,6 +29,12 @@ export class GraphView {
     this.palette = ['#5d676b'];
     $('graph-step').addEventListener('input', () => { $('graph-step-shown').textContent = $('graph-step').value; this.render(); });
     $('graph-policy').addEventListener('change', () => this.render());
+    // Drawn again at a new width (the tab shown, the window turned).
+    this.width = 0;
+    new ResizeObserver(() => {
+      const w = $('graph-box').clientWidth;
+      if (w > 0 && w !== this.width && this.doc) this.render();
+    }).observe($('graph-box'));
   }
 
   show(doc, solution) {
@@ -46,6 +57,7 @@ export class GraphView {
 
   /** Model coordinates ↔ the SVG's viewBox, fixed for one rendering. */
   frame() {
+    const W = this.drawnWidth;
     const xs = this.positions.map((p) => p[0]), ys = this.positions.map((p) => p[1]);
     const [x0, x1, y0, y1] = [Math.min(...xs), Math.max(...xs), Math.min(...ys), Math.max(...ys)];
     const k = Math.min((W - 2 * M) / Math.max(x1 - x0, 1e-9), (H - 2 * M) / Math.max(y1 - y0, 1e-9));
@@ -68,6 +80,9 @@ export class GraphView {
     const h = Number($('graph-step').value) - 1;
     const step = d.steps[d.stationary ? 0 : h];
     const policy = $('graph-policy').checked && this.solution ? this.solution.policy : null;
+    const W = box.clientWidth || 1000;
+    this.width = box.clientWidth;
+    this.drawnWidth = W;
     const f = this.frame();
     this.fr = f;
     const root = svg('svg', { viewBox: `0 0 ${W} ${H}`, role: 'img', 'aria-label': `Transition graph of ${d.name || 'the model'} at step ${h + 1}` });
@@ -119,13 +134,15 @@ export class GraphView {
     for (let s = 0; s < S; s++) {
       const [x, y] = f.to(this.positions[s]);
       const g = svg('g', { class: 'node', transform: `translate(${x},${y})`, tabindex: 0, role: 'button', 'aria-label': `state ${d.states[s]}; arrow keys move it`, 'data-state': s });
+      g.append(svg('title', {}, d.states[s]));
       g.append(svg('circle', { r: R, fill: start[s] > 0 ? '#f3d9cd' : '#fffdf8', stroke: '#1e282d', 'stroke-width': 1.5 }));
-      g.append(svg('text', { y: R + 15, 'text-anchor': 'middle', 'font-size': 13, fill: '#1e282d' }, d.states[s]));
+      g.append(svg('text', { y: R + 15, 'text-anchor': 'middle', 'font-size': LABEL_SIZE, fill: '#1e282d', stroke: '#fffdf8', 'stroke-width': 3, 'paint-order': 'stroke', class: 'node-label' }, d.states[s]));
       this.drag(g, s);
       nodes.append(g);
     }
     root.append(nodes);
     box.replaceChildren(root);
+    this.fitLabels(root, W);
     const legend = $('graph-legend');
     legend.replaceChildren();
     d.actions.forEach((name, a) => {
@@ -137,6 +154,67 @@ export class GraphView {
       label.textContent = name;
       li.append(sw, label);
       legend.append(li);
+    });
+  }
+
+  /**
+   * Node labels at their own size, each cut with an ellipsis to the room
+   * beside its neighbours on the same level (LABEL_MAX at most) and kept
+   * inside the drawing; the whole name shows while the node is hovered or
+   * focused (a tap focuses it), and in its tooltip.
+   */
+  fitLabels(root, W) {
+    const groups = [...root.querySelectorAll('g.node')];
+    const at = groups.map((g) => this.fr.to(this.positions[Number(g.dataset.state)]));
+    groups.forEach((g, i) => {
+      const text = g.querySelector('text');
+      const full = text.textContent;
+      // Room: up to the nearest node whose label is on about the same line.
+      let room = Math.min(LABEL_MAX, W - 8);
+      at.forEach((q, j) => { if (j !== i && Math.abs(q[1] - at[i][1]) < LABEL_SIZE * 1.6) room = Math.min(room, Math.max(2 * R, Math.abs(q[0] - at[i][0]) - 8)); });
+      const place = (shown) => {
+        text.textContent = shown;
+        const x = at[i][0];
+        // Inside the drawing: shifted from the node's centre if need be.
+        const inside = (w) => Math.min(Math.max(x - w / 2, 4), W - 4 - w) + w / 2 - x;
+        if (text.getComputedTextLength() <= W - 8) {
+          text.setAttribute('x', String(inside(text.getComputedTextLength())));
+          return;
+        }
+        // A whole name wider than the drawing: on as many lines as it takes.
+        const lines = [];
+        for (const word of shown.split(' ')) {
+          const next = lines.length ? `${lines[lines.length - 1]} ${word}` : word;
+          text.textContent = next;
+          if (lines.length && text.getComputedTextLength() <= W - 8) lines[lines.length - 1] = next;
+          else if (lines.length) lines.push(word);
+          else lines[0] = word;
+        }
+        text.textContent = '';
+        text.removeAttribute('x');
+        lines.forEach((line, k) => {
+          const span = svg('tspan', { dy: k ? LABEL_SIZE * 1.2 : 0 }, line);
+          text.append(span);
+          span.setAttribute('x', String(inside(span.getComputedTextLength())));
+        });
+      };
+      let shown = full;
+      text.textContent = full;
+      if (text.getComputedTextLength() > room) {
+        const chars = [...full];
+        let n = chars.length;
+        do { n--; text.textContent = chars.slice(0, n).join('') + '…'; } while (n > 1 && text.getComputedTextLength() > room);
+        shown = text.textContent;
+      }
+      place(shown);
+      g.dataset.label = shown;
+      if (shown === full) return;
+      const whole = () => { place(full); if (g.nextSibling) g.parentNode.append(g); };
+      const cut = () => { if (document.activeElement !== g && !g.matches(':hover')) place(shown); };
+      g.addEventListener('pointerenter', whole);
+      g.addEventListener('focus', whole);
+      g.addEventListener('pointerleave', cut);
+      g.addEventListener('blur', cut);
     });
   }
 

@@ -42,7 +42,9 @@ pub const BACKGROUND: Rgb = Rgb(0xff, 0xfd, 0xf8);
 pub const INK: Rgb = Rgb(0x1e, 0x28, 0x2d);
 /// Tick labels, captions and reference lines (lower bound, zero).
 pub const MUTED: Rgb = Rgb(0x5d, 0x67, 0x6b);
-/// Grid lines.
-pub const GRID: Rgb = Rgb(0xe7, 0xe0, 0xd0);
+/// Grid lines: a hairline on one row of pixels (#34), lighter than it was
+/// when half-pixel placement spread it over two, and clear of every
+/// series' band tint (the umber's at 16% is #e4ded2).
+pub const GRID: Rgb = Rgb(0xeb, 0xe5, 0xd7);
 /// The plot's frame.
 pub const FRAME: Rgb = Rgb(0xb9, 0xb0, 0x9c);

@@ -15,9 +15,25 @@ fn colour(c: Rgb) -> RGBColor {
     RGBColor(c.0, c.1, c.2)
 }
 
-/// A pixel position as plotters' integer coordinates.
+/// Backend units to the pixel. Plotters draws at whole units of its
+/// backend, so every backend here is given `FINE` units to the pixel: the
+/// SVG through its `viewBox`, the page's canvas through its transform, the
+/// bitmap by being drawn `FINE` times the size and averaged down. Curves
+/// keep half-pixel precision (whole pixels put visible kinks in slow
+/// slopes, #34), and the page's PNG and `burnin plot`'s PNG draw the same
+/// points.
+pub const FINE: u32 = 2;
+
+/// A pixel position in backend units.
 fn at(x: f64, y: f64) -> (i32, i32) {
-    (x.round() as i32, y.round() as i32)
+    let f = f64::from(FINE);
+    ((x * f).round() as i32, (y * f).round() as i32)
+}
+
+/// The middle of the pixel `v` falls in: a hairline one pixel wide drawn
+/// there covers that pixel only, sharp on every backend.
+fn crisp(v: f64) -> f64 {
+    v.floor() + 0.5
 }
 
 /// How a backend sizes type: plotters' SVG backend writes `font-size` as
@@ -31,8 +47,9 @@ impl TypeSizes {
     pub const SVG: TypeSizes = TypeSizes(1.24);
 }
 
-/// Draws `fig` in the whole of `area` (w×h pixels) with type enlarged by
-/// `scale`; returns the layout (for the hover read-out).
+/// Draws `fig` in the whole of `area` (w×h pixels, `area` being
+/// [`FINE`]·w × [`FINE`]·h units) with type enlarged by `scale`; returns
+/// the layout, in pixels (for the hover read-out).
 pub fn draw<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     fig: &Figure,
@@ -40,7 +57,8 @@ pub fn draw<DB: DrawingBackend>(
     sizes: TypeSizes,
 ) -> Result<Layout, String> {
     let (w, h) = area.dim_in_pixel();
-    let layout = Layout::new(fig, f64::from(w), f64::from(h), scale);
+    let f = f64::from(FINE);
+    let layout = Layout::new(fig, f64::from(w) / f, f64::from(h) / f, scale);
     paint(area, fig, &layout, sizes).map_err(|e| format!("the chart could not be drawn: {e}"))?;
     Ok(layout)
 }
@@ -53,25 +71,26 @@ fn paint<DB: DrawingBackend>(
 ) -> Result<(), DrawingAreaErrorKind<DB::ErrorType>> {
     let f = l.frame;
     let s = l.scale;
-    let width = |w: f64| ((w * s).round() as u32).max(1);
+    let width = |w: f64| ((w * s * f64::from(FINE)).round() as u32).max(1);
     area.fill(&colour(BACKGROUND))?;
-    // Grid.
-    let grid = colour(GRID).stroke_width(1);
+    // Grid and frame: hairlines a pixel wide, each on a row or column of pixels.
+    let grid = colour(GRID).stroke_width(FINE);
     for &v in &l.x_ticks {
         area.draw(&PathElement::new(
-            vec![at(f.px(v), f.y0), at(f.px(v), f.y1)],
+            vec![at(crisp(f.px(v)), f.y0), at(crisp(f.px(v)), f.y1)],
             grid,
         ))?;
     }
     for &v in &l.y_ticks {
         area.draw(&PathElement::new(
-            vec![at(f.x0, f.py(v)), at(f.x1, f.py(v))],
+            vec![at(f.x0, crisp(f.py(v))), at(f.x1, crisp(f.py(v)))],
             grid,
         ))?;
     }
-    area.draw(&Rectangle::new(
-        [at(f.x0, f.y0), at(f.x1, f.y1)],
-        colour(FRAME).stroke_width(1),
+    let (x0, x1, y0, y1) = (crisp(f.x0), crisp(f.x1), crisp(f.y0), crisp(f.y1));
+    area.draw(&PathElement::new(
+        vec![at(x0, y0), at(x1, y0), at(x1, y1), at(x0, y1), at(x0, y0)],
+        colour(FRAME).stroke_width(FINE),
     ))?;
     // Series: bands first, then lines, in order.
     for series in &fig.series {
@@ -158,7 +177,7 @@ fn line<DB: DrawingBackend>(
     match dash {
         None => area.draw(&PathElement::new(pts, style)),
         Some((on, off)) => {
-            let len = |v: f64| ((v * scale).round() as u32).max(1);
+            let len = |v: f64| ((v * scale * f64::from(FINE)).round() as u32).max(1);
             area.draw(&DashedPathElement::new(pts, len(on), len(off), style))
         }
     }
@@ -175,7 +194,8 @@ fn text<DB: DrawingBackend>(
         Align::Right => HPos::Right,
     };
     let ink = colour(if label.muted { MUTED } else { INK });
-    let mut style = TextStyle::from((FONT_FAMILY, label.size * sizes.0).into_font())
+    let size = label.size * sizes.0 * f64::from(FINE);
+    let mut style = TextStyle::from((FONT_FAMILY, size).into_font())
         .color(&ink)
         .pos(Pos::new(h, VPos::Center));
     if label.upright {
@@ -189,10 +209,17 @@ fn text<DB: DrawingBackend>(
 pub fn svg(fig: &Figure, w: u32, h: u32, scale: f64) -> String {
     let mut out = String::new();
     {
-        let area = SVGBackend::with_string(&mut out, (w, h)).into_drawing_area();
+        let area = SVGBackend::with_string(&mut out, (FINE * w, FINE * h)).into_drawing_area();
         draw(&area, fig, scale, TypeSizes::SVG).expect("drawing into a string cannot fail");
         area.present().expect("an SVG string is always complete");
     }
+    // The picture is w×h pixels; its drawing, in FINE units to the pixel.
+    let size = format!(r#"width="{}" height="{}""#, FINE * w, FINE * h);
+    assert!(
+        out.starts_with(&format!("<svg {size} ")),
+        "the SVG backend writes its size first"
+    );
+    out.replace_range(5..5 + size.len(), &format!(r#"width="{w}" height="{h}""#));
     let end = out
         .find('>')
         .expect("the SVG backend writes its root element first")
@@ -249,6 +276,81 @@ pub fn base64(bytes: &[u8]) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// #34: the SVG keeps curves to half a pixel (whole pixels put kinks
+    /// in slow slopes): it is drawn at twice the size in a `viewBox`, and
+    /// each point of a curve lies within a quarter pixel of where the
+    /// layout's mapping puts it.
+    #[test]
+    fn svg_curves_keep_half_pixel_precision() {
+        use crate::chart::{Series, colours::series_colour};
+        let x: Vec<f64> = (0..200).map(f64::from).collect();
+        let y: Vec<f64> = x.iter().map(|v| 3.0 + 0.037 * v).collect();
+        let fig = Figure {
+            title: "slope".into(),
+            x_label: "x".into(),
+            x_name: "x".into(),
+            y_label: "y".into(),
+            log: false,
+            bars: false,
+            series: vec![Series {
+                label: "a slow slope".into(),
+                colour: series_colour(0),
+                x: x.clone(),
+                y: y.clone(),
+                band: None,
+                dash: None,
+                width: 2.0,
+                legend: true,
+                curve: true,
+            }],
+            caption: String::new(),
+        };
+        let text = svg(&fig, 640, 400, 1.0);
+        assert!(
+            text.starts_with(r#"<svg width="640" height="400" viewBox="0 0 1280 800""#),
+            "{}",
+            &text[..80]
+        );
+        let layout = Layout::new(&fig, 640.0, 400.0, 1.0);
+        let colour = series_colour(0).hex();
+        let line = text
+            .lines()
+            .find(|l| {
+                l.starts_with("<polyline")
+                    && l.to_ascii_lowercase().contains(&colour)
+                    && l.matches(',').count() > 100
+            })
+            .expect("the curve is a polyline");
+        let points = line
+            .split("points=\"")
+            .nth(1)
+            .unwrap()
+            .split('"')
+            .next()
+            .unwrap();
+        let pts: Vec<(f64, f64)> = points
+            .split_whitespace()
+            .map(|p| {
+                let (a, b) = p.split_once(',').unwrap();
+                (
+                    a.parse::<f64>().unwrap() / 2.0,
+                    b.parse::<f64>().unwrap() / 2.0,
+                )
+            })
+            .collect();
+        assert_eq!(pts.len(), x.len());
+        let mut halves = 0;
+        for (i, &(px, py)) in pts.iter().enumerate() {
+            let (wx, wy) = (layout.frame.px(x[i]), layout.frame.py(y[i]));
+            assert!(
+                (px - wx).abs() <= 0.25 + 1e-9 && (py - wy).abs() <= 0.25 + 1e-9,
+                "point {i}: {px},{py} for {wx},{wy}"
+            );
+            halves += usize::from(py.fract() != 0.0);
+        }
+        assert!(halves > 20, "half pixels are used ({halves})");
+    }
 
     /// The test vectors of RFC 4648, section 10.
     #[test]

@@ -21,6 +21,10 @@ pub struct Metrics {
     fallback: f64,
     /// The height of "x" in ems (SVG's `ex` unit; text is centred on it).
     pub x_height: f64,
+    /// The typeface's ascender and descender in ems (the ink guessed for a
+    /// character it does not have, which a viewer draws from another font).
+    ascender: f64,
+    descender: f64,
 }
 
 impl Metrics {
@@ -39,6 +43,8 @@ impl Metrics {
             .map(|b| f64::from(b.y_max) / per_em)
             .expect("the font has x");
         Metrics {
+            ascender: f64::from(face.ascender()) / per_em,
+            descender: f64::from(face.descender()) / per_em,
             face,
             per_em,
             fallback,
@@ -84,6 +90,58 @@ impl Metrics {
             keep = end;
         }
         format!("{}…", &text[..keep])
+    }
+
+    /// `text` in at most `most` lines of at most `max` pixels at `size`,
+    /// and whether it had to be shortened: a word longer than a line, and
+    /// the last line when more are needed, are cut with an ellipsis.
+    pub fn block(&self, text: &str, size: f64, max: f64, most: usize) -> (Vec<String>, bool) {
+        let mut lines = self.wrap(text, size, max);
+        let mut cut = false;
+        for line in &mut lines {
+            if self.width(line, size) > max {
+                *line = self.fit(line, size, max);
+                cut = true;
+            }
+        }
+        let most = most.max(1);
+        if lines.len() > most {
+            let rest = lines[most - 1..].join(" ");
+            lines.truncate(most - 1);
+            lines.push(self.fit(&rest, size, max));
+            cut = true;
+        }
+        (lines, cut)
+    }
+
+    /// The ink of `text` set from pen position 0 on the baseline, in ems:
+    /// left, right, lowest and highest (y up), from the glyphs' outlines'
+    /// bounding boxes; None for text without ink (spaces).
+    pub fn ink(&self, text: &str) -> Option<(f64, f64, f64, f64)> {
+        let mut pen = 0.0;
+        let mut ink: Option<(f64, f64, f64, f64)> = None;
+        for c in text.chars() {
+            let glyph = match self.face.glyph_index(c) {
+                Some(g) => self.face.glyph_bounding_box(g).map(|r| {
+                    (
+                        f64::from(r.x_min) / self.per_em,
+                        f64::from(r.x_max) / self.per_em,
+                        f64::from(r.y_min) / self.per_em,
+                        f64::from(r.y_max) / self.per_em,
+                    )
+                }),
+                None => Some((0.0, self.fallback, self.descender, self.ascender)),
+            };
+            if let Some((x0, x1, y0, y1)) = glyph {
+                let b = (pen + x0, pen + x1, y0, y1);
+                ink = Some(match ink {
+                    None => b,
+                    Some(a) => (a.0.min(b.0), a.1.max(b.1), a.2.min(b.2), a.3.max(b.3)),
+                });
+            }
+            pen += self.advance(c);
+        }
+        ink
     }
 
     /// `text` broken into lines of at most `max` pixels at `size` (a word
@@ -160,7 +218,10 @@ impl Frame {
 /// A piece of text placed: `y` is the middle of its lowercase letters.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Label {
+    /// What is drawn.
     pub text: String,
+    /// The whole text when `text` is shortened (the page shows it on hover).
+    pub full: Option<String>,
     pub x: f64,
     pub y: f64,
     pub size: f64,
@@ -168,6 +229,178 @@ pub struct Label {
     /// Rotated a quarter turn anticlockwise (the y axis's label).
     pub upright: bool,
     pub muted: bool,
+}
+
+impl Label {
+    /// The box of the ink drawn: the text is anchored by its advance
+    /// width (as canvas, SVG and our bitmap text anchor it), its baseline
+    /// half an x-height below `y`; None for text without ink.
+    pub fn bounds(&self) -> Option<TextBox> {
+        let m = Metrics::get();
+        let (x0, x1, y0, y1) = m.ink(&self.text)?;
+        let width = m.width(&self.text, self.size);
+        let start = match self.align {
+            Align::Left => 0.0,
+            Align::Centre => -width / 2.0,
+            Align::Right => -width,
+        };
+        let base = 0.5 * m.x_height;
+        // Along the text (u) and down across it (v), from the anchor.
+        let (u0, u1) = (start + x0 * self.size, start + x1 * self.size);
+        let (v0, v1) = ((base - y1) * self.size, (base - y0) * self.size);
+        Some(if self.upright {
+            // A quarter turn anticlockwise: along the text is up the page.
+            TextBox {
+                left: self.x + v0,
+                right: self.x + v1,
+                top: self.y - u1,
+                bottom: self.y - u0,
+            }
+        } else {
+            TextBox {
+                left: self.x + u0,
+                right: self.x + u1,
+                top: self.y + v0,
+                bottom: self.y + v1,
+            }
+        })
+    }
+}
+
+/// A box in pixels (y down).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct TextBox {
+    pub left: f64,
+    pub top: f64,
+    pub right: f64,
+    pub bottom: f64,
+}
+
+impl TextBox {
+    pub fn overlaps(&self, o: &TextBox) -> bool {
+        self.left < o.right && o.left < self.right && self.top < o.bottom && o.top < self.bottom
+    }
+
+    pub fn inside(&self, w: f64, h: f64) -> bool {
+        self.left >= 0.0 && self.top >= 0.0 && self.right <= w && self.bottom <= h
+    }
+}
+
+/// A text as drawn (see [`Layout::texts`]).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PlacedText {
+    pub text: String,
+    /// The whole text when `text` is shortened.
+    pub full: Option<String>,
+    /// Pixels to the em, and whether it runs up the page.
+    pub size: f64,
+    pub upright: bool,
+    #[serde(flatten)]
+    pub bounds: TextBox,
+}
+
+/// A legend entry: which of the legend's items (None for the entry that
+/// gathers those left out), its lines, and its whole text when shortened.
+struct Entry {
+    item: Option<usize>,
+    lines: Vec<String>,
+    full: Option<String>,
+}
+
+/// A legend label's lines in `max` pixels: wrapped onto at most `most`
+/// lines, the last cut if they are not enough.
+fn entry_lines(m: &Metrics, text: &str, size: f64, max: f64, most: usize) -> (Vec<String>, bool) {
+    m.block(text, size, max, most)
+}
+
+/// The legend's entries for `texts`: wrapped if they then `fit`, else
+/// wrapped onto two lines at most, else cut to a line each, else the first
+/// that fit with one entry saying how many more there are (their labels
+/// in its whole text).
+fn fit_legend(
+    texts: &[&str],
+    fits: impl Fn(&[Entry]) -> bool,
+    lines: impl Fn(&str, usize) -> (Vec<String>, bool),
+) -> Vec<Entry> {
+    let entry = |i: usize, most: usize| {
+        let (l, cut) = lines(texts[i], most);
+        Entry {
+            item: Some(i),
+            lines: l,
+            full: cut.then(|| texts[i].to_string()),
+        }
+    };
+    for most in [usize::MAX, 2, 1] {
+        let e: Vec<Entry> = (0..texts.len()).map(|i| entry(i, most)).collect();
+        if fits(&e) {
+            return e;
+        }
+    }
+    let mut k = texts.len();
+    loop {
+        k -= 1;
+        let mut e: Vec<Entry> = (0..k).map(|i| entry(i, 1)).collect();
+        let (l, _) = lines(&format!("… and {} more", texts.len() - k), 1);
+        e.push(Entry {
+            item: None,
+            lines: l,
+            full: Some(texts[k..].join("; ")),
+        });
+        if k == 0 || fits(&e) {
+            return e;
+        }
+    }
+}
+
+/// Legend entries flowing along rows `width` pixels wide: each entry's
+/// left x and first row, and the rows taken. An entry of one line goes on
+/// the current row if it fits there; one of several lines takes rows of
+/// its own.
+fn flow(
+    m: &Metrics,
+    entries: &[Entry],
+    size: f64,
+    width: f64,
+    sample: f64,
+    gap: f64,
+) -> (Vec<(f64, usize)>, usize) {
+    let (mut x, mut r) = (0.0, 0);
+    let mut spots = Vec::new();
+    for e in entries {
+        if let [line] = e.lines.as_slice() {
+            let need = sample + m.width(line, size);
+            if x > 0.0 && x + need > width {
+                r += 1;
+                x = 0.0;
+            }
+            spots.push((x, r));
+            x += need + gap;
+        } else {
+            if x > 0.0 {
+                r += 1;
+            }
+            spots.push((0.0, r));
+            r += e.lines.len();
+            x = 0.0;
+        }
+    }
+    (spots, if x > 0.0 { r + 1 } else { r })
+}
+
+/// Every `k`th tick, for the smallest `k` that keeps the labels `gap`
+/// apart; `at` gives a tick label's centre and half its extent along the axis.
+fn thin(ticks: Vec<f64>, at: impl Fn(f64) -> (f64, f64), gap: f64) -> Vec<f64> {
+    for k in 1..=ticks.len() {
+        let kept: Vec<f64> = ticks.iter().copied().step_by(k).collect();
+        let apart = kept.windows(2).all(|p| {
+            let ((a, ha), (b, hb)) = (at(p[0]), at(p[1]));
+            (a - b).abs() >= ha + hb + gap
+        });
+        if apart {
+            return kept;
+        }
+    }
+    ticks
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -410,38 +643,15 @@ impl Layout {
         let legend_items: Vec<usize> = (0..fig.series.len())
             .filter(|&i| fig.series[i].legend)
             .collect();
-        let widest = legend_items
+        let legend_texts: Vec<&str> = legend_items
             .iter()
-            .map(|&i| m.width(&fig.series[i].label, fs))
-            .fold(0.0, f64::max);
-        let legend_w = if legend_items.is_empty() {
-            0.0
-        } else {
-            (w * 0.38).min(widest + 34.0 * scale)
-        };
-        let title_h = if fig.title.is_empty() { pad } else { fs * 1.9 };
-        let caption_size = fs * 0.95;
-        let caption = if fig.caption.is_empty() {
-            vec![]
-        } else {
-            m.wrap(&fig.caption, caption_size, w - 2.0 * pad)
-        };
-        let caption_h = caption.len() as f64 * fs * 1.3;
-        let axis = |v: f64| if log { libm::log10(v) } else { v };
-        let frame = Frame {
-            x0: pad + fs * 4.6,
-            x1: w - legend_w - pad,
-            y0: title_h + pad * 0.5,
-            y1: h - fs * 3.2 - caption_h,
-            lx0: axis(xmin),
-            lx1: axis(xmax),
-            ly0: axis(ymin),
-            ly1: axis(ymax),
-            log,
-        };
+            .map(|&i| fig.series[i].label.as_str())
+            .collect();
+        let text_w = w - 2.0 * pad;
         let mut labels = Vec::new();
         let label = |text: String, x: f64, y: f64, size: f64, align: Align, muted: bool| Label {
             text,
+            full: None,
             x,
             y,
             size,
@@ -449,41 +659,143 @@ impl Layout {
             upright: false,
             muted,
         };
+        // The title: a little smaller rather than wrapped, then on two lines
+        // (more for a message in place of a chart), the last cut with an
+        // ellipsis if even those are not enough (the whole title on hover).
+        let mut title_h = pad;
         if !fig.title.is_empty() {
-            // A long title shrinks a little, then is cut, rather than run off the chart.
             let mut size = fs * 1.25;
-            while size > fs && m.width(&fig.title, size) > w - 2.0 * pad {
+            while size > fs && m.width(&fig.title, size) > text_w {
                 size *= 0.95;
             }
-            labels.push(label(
-                m.fit(&fig.title, size, w - 2.0 * pad),
-                pad,
-                pad + fs * 0.55,
-                size,
-                Align::Left,
-                false,
-            ));
+            let most = if fig.series.is_empty() { 6 } else { 2 };
+            let (lines, cut) = m.block(&fig.title, size, text_w, most);
+            let step = size * 1.25;
+            for (i, line) in lines.iter().enumerate() {
+                labels.push(Label {
+                    full: cut.then(|| fig.title.clone()),
+                    ..label(
+                        line.clone(),
+                        pad,
+                        pad + fs * 0.55 + step * i as f64,
+                        size,
+                        Align::Left,
+                        false,
+                    )
+                });
+            }
+            // Room under it for the top y tick label, centred on the frame's top.
+            title_h = fs * 2.2 + step * (lines.len().max(1) - 1) as f64;
         }
-        let (x_ticks, y_ticks) = if log {
-            (log_ticks(xmin, xmax), log_ticks(ymin, ymax))
+        // The caption (exports only) takes at most a third of the height.
+        let caption_size = fs * 0.95;
+        let caption_step = fs * 1.3;
+        let (caption, caption_cut) = if fig.caption.is_empty() {
+            (vec![], false)
         } else {
-            (
-                linear_ticks(
-                    xmin,
-                    xmax,
-                    ((frame.x1 - frame.x0) / (70.0 * scale)).max(2.0),
-                ),
-                linear_ticks(
-                    ymin,
-                    ymax,
-                    ((frame.y1 - frame.y0) / (45.0 * scale)).max(2.0),
-                ),
+            let most = ((h / 3.0) / caption_step).floor().max(1.0) as usize;
+            m.block(&fig.caption, caption_size, text_w, most)
+        };
+        let caption_h = caption.len() as f64 * caption_step;
+        // The legend: right of the plot when the chart is wide enough,
+        // else under it, its entries flowing along rows. Entries wrap; when
+        // wrapped entries do not fit, each is cut to one line (the whole
+        // label on hover), and when even those do not fit, the last are
+        // gathered into one "and n more" entry.
+        let right = !legend_items.is_empty() && w >= 560.0 * scale;
+        let widest = legend_texts
+            .iter()
+            .map(|t| m.width(t, fs))
+            .fold(0.0, f64::max);
+        let legend_w = if right {
+            (w * 0.38).min(widest + 34.0 * scale)
+        } else {
+            0.0
+        };
+        let sample_w = 26.0 * scale;
+        let row = fs * 1.35;
+        let axis_band = fs * 3.2;
+        let plot_top = title_h + pad * 0.5;
+        let entries = if legend_items.is_empty() {
+            Vec::new()
+        } else if right {
+            let room = h - caption_h - pad - (plot_top + fs * 0.5);
+            fit_legend(
+                &legend_texts,
+                |e| {
+                    let lines: usize = e.iter().map(|e| e.lines.len()).sum();
+                    lines as f64 * row <= room
+                },
+                |text, most| entry_lines(m, text, fs, legend_w - 30.0 * scale, most),
+            )
+        } else {
+            let room = (h - caption_h - title_h - axis_band) * 0.5;
+            fit_legend(
+                &legend_texts,
+                |e| {
+                    flow(m, e, fs, text_w, sample_w, 16.0 * scale).1 as f64 * row + 0.3 * fs <= room
+                },
+                |text, most| entry_lines(m, text, fs, text_w - sample_w, most),
             )
         };
+        let legend_h = if right || entries.is_empty() {
+            0.0
+        } else {
+            flow(m, &entries, fs, text_w, sample_w, 16.0 * scale).1 as f64 * row + 0.3 * fs
+        };
+        let axis = |v: f64| if log { libm::log10(v) } else { v };
+        let mut frame = Frame {
+            x0: pad + fs * 4.6,
+            x1: w - legend_w - pad,
+            y0: plot_top,
+            y1: h - axis_band - caption_h - legend_h,
+            lx0: axis(xmin),
+            lx1: axis(xmax),
+            ly0: axis(ymin),
+            ly1: axis(ymax),
+            log,
+        };
+        // Ticks, thinned where their labels would touch.
+        let y_ticks = if log {
+            log_ticks(ymin, ymax)
+        } else {
+            linear_ticks(
+                ymin,
+                ymax,
+                ((frame.y1 - frame.y0) / (45.0 * scale)).max(2.0),
+            )
+        };
+        let y_ticks = thin(y_ticks, |v| (frame.py(v), fs * 0.6), fs * 0.3);
+        // Room left of the plot for the widest y tick label and the y axis's label.
+        let widest_tick = y_ticks
+            .iter()
+            .map(|&v| m.width(&tick_label(v), fs))
+            .fold(0.0, f64::max);
+        frame.x0 = frame.x0.max(pad + fs * 1.8 + widest_tick);
+        let x_ticks = if log {
+            log_ticks(xmin, xmax)
+        } else {
+            linear_ticks(
+                xmin,
+                xmax,
+                ((frame.x1 - frame.x0) / (70.0 * scale)).max(2.0),
+            )
+        };
+        // An x tick label is kept inside the chart, and the labels apart.
+        let x_at = |v: f64| {
+            let half = m.width(&tick_label(v), fs) / 2.0;
+            (
+                frame
+                    .px(v)
+                    .clamp(half + scale, (w - half - scale).max(half + scale)),
+                half,
+            )
+        };
+        let x_ticks = thin(x_ticks, x_at, fs * 0.5);
         for &v in &x_ticks {
             labels.push(label(
                 tick_label(v),
-                frame.px(v),
+                x_at(v).0,
                 frame.y1 + fs * 1.0,
                 fs,
                 Align::Centre,
@@ -500,37 +812,71 @@ impl Layout {
                 true,
             ));
         }
-        labels.push(label(
-            fig.x_label.clone(),
-            (frame.x0 + frame.x1) / 2.0,
-            frame.y1 + fs * 2.3,
-            fs,
-            Align::Centre,
-            false,
-        ));
-        labels.push(Label {
-            upright: true,
-            ..label(
-                fig.y_label.clone(),
-                pad + fs * 0.5,
-                (frame.y0 + frame.y1) / 2.0,
-                fs,
-                Align::Centre,
-                false,
-            )
-        });
-        let mut legend = Vec::new();
-        let mut ly = frame.y0 + fs * 0.5;
-        for &i in &legend_items {
-            let lx = frame.x1 + pad;
-            legend.push((i, lx, ly));
-            let text = m.fit(&fig.series[i].label, fs, legend_w - 30.0 * scale);
-            labels.push(label(text, lx + 26.0 * scale, ly, fs, Align::Left, false));
-            ly += fs * 1.5;
+        // Axis labels: cut to fit (the whole on hover).
+        if !fig.x_label.is_empty() {
+            // Under the plot, clear of a legend to its right.
+            let end = if right { frame.x1 + pad * 0.5 } else { w - pad };
+            let text = m.fit(&fig.x_label, fs, end - pad);
+            let half = m.width(&text, fs) / 2.0;
+            let centre =
+                ((frame.x0 + frame.x1) / 2.0).clamp(pad + half, (end - half).max(pad + half));
+            labels.push(Label {
+                full: (text != fig.x_label).then(|| fig.x_label.clone()),
+                ..label(text, centre, frame.y1 + fs * 2.3, fs, Align::Centre, false)
+            });
         }
+        if !fig.y_label.is_empty() {
+            // Beside the plot, running past its ends when it must (left of
+            // the tick labels, clear of the title and of a legend below).
+            let (a, b) = (plot_top, frame.y1 + fs * 2.9);
+            let text = m.fit(&fig.y_label, fs, (b - a).max(0.0));
+            let half = m.width(&text, fs) / 2.0;
+            let centre = ((frame.y0 + frame.y1) / 2.0).clamp(a + half, (b - half).max(a + half));
+            labels.push(Label {
+                upright: true,
+                full: (text != fig.y_label).then(|| fig.y_label.clone()),
+                ..label(text, pad + fs * 0.6, centre, fs, Align::Centre, false)
+            });
+        }
+        let mut legend = Vec::new();
+        let mut place = |e: &Entry, x: f64, y: f64| {
+            if let Some(i) = e.item {
+                legend.push((legend_items[i], x, y));
+            }
+            for (k, line) in e.lines.iter().enumerate() {
+                labels.push(Label {
+                    full: e.full.clone(),
+                    ..label(
+                        line.clone(),
+                        x + sample_w,
+                        y + row * k as f64,
+                        fs,
+                        Align::Left,
+                        false,
+                    )
+                });
+            }
+        };
+        if right {
+            let mut ly = frame.y0 + fs * 0.5;
+            for e in &entries {
+                place(e, frame.x1 + pad, ly);
+                ly += row * e.lines.len() as f64;
+            }
+        } else {
+            let top = h - caption_h - legend_h + fs * 0.15 + row * 0.5;
+            let (spots, _) = flow(m, &entries, fs, text_w, sample_w, 16.0 * scale);
+            for (e, (x, r)) in entries.iter().zip(spots) {
+                place(e, pad + x, top + row * r as f64);
+            }
+        }
+        let caption_top = h - caption_h;
         for (i, line) in caption.into_iter().enumerate() {
-            let y = frame.y1 + fs * 3.2 + fs * (0.55 + 1.3 * i as f64);
-            labels.push(label(line, pad, y, caption_size, Align::Left, true));
+            let y = caption_top + fs * 0.55 + caption_step * i as f64;
+            labels.push(Label {
+                full: caption_cut.then(|| fig.caption.clone()),
+                ..label(line, pad, y, caption_size, Align::Left, true)
+            });
         }
         Layout {
             width: w,
@@ -542,6 +888,38 @@ impl Layout {
             labels,
             legend,
         }
+    }
+
+    /// Where each text is drawn: its ink box, and its whole text when what
+    /// is drawn is shortened.
+    pub fn texts(&self) -> Vec<PlacedText> {
+        self.labels
+            .iter()
+            .filter_map(|l| {
+                Some(PlacedText {
+                    text: l.text.clone(),
+                    full: l.full.clone(),
+                    size: l.size,
+                    upright: l.upright,
+                    bounds: l.bounds()?,
+                })
+            })
+            .collect()
+    }
+
+    /// The whole text of a shortened text at pixel (`px`, `py`) (a few
+    /// pixels around its ink count), with its box.
+    pub fn full_text_at(&self, px: f64, py: f64) -> Option<(&str, TextBox)> {
+        let near = 4.0 * self.scale;
+        self.labels.iter().find_map(|l| {
+            let full = l.full.as_deref()?;
+            let b = l.bounds()?;
+            (px >= b.left - near
+                && px <= b.right + near
+                && py >= b.top - near
+                && py <= b.bottom + near)
+                .then_some((full, b))
+        })
     }
 
     /// The index of the chart's x value nearest to pixel (`px`, `py`), or
@@ -719,6 +1097,202 @@ mod tests {
         assert!(linear_ticks(0.0, f64::INFINITY, 10.0).is_empty());
         let big = linear_ticks(0.0, 9.36e307, 13.0);
         assert!(!big.is_empty() && big.len() <= 101 && big.iter().all(|v| v.is_finite()));
+    }
+
+    /// A chart like the (#34): five learners with long labels, a
+    /// burn-in legend entry and a long title, on linear or log axes.
+    fn crowded(log: bool, learners: usize, caption: &str) -> Figure {
+        use crate::chart::{Series, colours::series_colour};
+        let names = [
+            "ucbvi-bernstein ×0.1 (bonus scaled)",
+            "mvp ×0.01",
+            "q-learning with UCB-Hoeffding bonuses",
+            "psrl",
+            "eps-greedy ε=0.2",
+            "uniform",
+            "orlc ×0.1: certificate",
+        ];
+        let x: Vec<f64> = (1..=60).map(|k| f64::from(k) * 25.0).collect();
+        let mut series: Vec<Series> = (0..learners)
+            .map(|i| Series {
+                label: names[i % names.len()].to_string(),
+                colour: series_colour(i),
+                x: x.clone(),
+                y: x.iter().map(|k| k.sqrt() * (i + 1) as f64 * 13.7).collect(),
+                band: None,
+                dash: None,
+                width: 2.0,
+                legend: true,
+                curve: true,
+            })
+            .collect();
+        series.push(Series {
+            label: "thick tick: burn-in (the slope settles)".into(),
+            x: vec![],
+            y: vec![],
+            curve: false,
+            ..series[0].clone()
+        });
+        Figure {
+            title: "Cumulative regret — Night ferry with a long name (S=4, A=3, H=7, 16 seeds)"
+                .into(),
+            x_label: "episode k".into(),
+            x_name: "k".into(),
+            y_label: "cumulative expected regret".into(),
+            log,
+            bars: false,
+            series,
+            caption: caption.into(),
+        }
+    }
+
+    /// Every text's ink inside the chart and clear of every other text.
+    fn clear(l: &Layout) -> Result<(), String> {
+        let texts = l.texts();
+        for (i, a) in texts.iter().enumerate() {
+            if !a.bounds.inside(l.width, l.height) {
+                return Err(format!("{:?} outside {}×{}", a, l.width, l.height));
+            }
+            if let Some(b) = texts[..i].iter().find(|b| b.bounds.overlaps(&a.bounds)) {
+                return Err(format!("{a:?} overlaps {b:?}"));
+            }
+        }
+        if !(l.frame.x1 - l.frame.x0 > 100.0 * l.scale && l.frame.y1 - l.frame.y0 > 60.0 * l.scale)
+        {
+            return Err(format!("a plot too small to read: {:?}", l.frame));
+        }
+        Ok(())
+    }
+
+    /// #34: at every width the page draws (its chart box is 278 CSS
+    /// pixels wide on a 360-pixel phone; up to 1400, at the page's height
+    /// for it, on screens of one and two pixels to the CSS pixel) and at
+    /// export sizes, no text runs outside the chart or into
+    /// another; a shortened text keeps its whole text for the hover, and
+    /// each learner is named in the legend.
+    #[test]
+    fn texts_stay_inside_the_chart_and_apart_at_every_width() {
+        let long_caption = "Ferry check. Shaded: 95% Student-t intervals across seeds. Dashed: each learner’s published bound as an order (constants and log factors dropped); sparsely dashed where it does not apply.";
+        for log in [false, true] {
+            for learners in [2, 5, 7] {
+                let fig = crowded(log, learners, "");
+                for css in (270..=1400).step_by(10) {
+                    let w = f64::from(css);
+                    // The page's chart height for its width (www/experiment.js).
+                    let h = (w.max(320.0) * 0.5).clamp(300.0, 520.0).round();
+                    for ratio in [1.0, 2.0] {
+                        let l = Layout::new(&fig, w * ratio, h * ratio, ratio);
+                        clear(&l).unwrap_or_else(|e| {
+                            panic!("{css} px ×{ratio}, log {log}, {learners} learners: {e}")
+                        });
+                        let texts = l.texts();
+                        for s in fig.series.iter().filter(|s| s.legend) {
+                            let named = texts.iter().any(|t| {
+                                t.text == s.label
+                                    || t.full
+                                        .as_deref()
+                                        .is_some_and(|f| f.split("; ").any(|x| x == s.label))
+                            }) || s.label.split(' ').all(|word| {
+                                texts.iter().any(|t| t.text.split(' ').any(|w| w == word))
+                            });
+                            assert!(
+                                named,
+                                "{css} px: {} is in the legend, whole or on hover",
+                                s.label
+                            );
+                        }
+                        for t in texts.iter().filter(|t| t.text.contains('…')) {
+                            assert!(
+                                t.full.is_some(),
+                                "{css} px: {:?} is cut and has its whole text",
+                                t.text
+                            );
+                        }
+                    }
+                }
+                // Exports: `burnin plot`'s default size and smaller ones, captioned.
+                let fig = crowded(log, learners, long_caption);
+                for (w, h, s) in [
+                    (1280.0, 720.0, 1.25),
+                    (640.0, 400.0, 1.0),
+                    (400.0, 300.0, 1.0),
+                ] {
+                    clear(&Layout::new(&fig, w, h, s))
+                        .unwrap_or_else(|e| panic!("export {w}×{h}: {e}"));
+                }
+            }
+        }
+    }
+
+    /// Where there is room, legend entries and titles wrap rather than
+    /// being cut (the "ucbvi-berns", "…(the slope settles").
+    #[test]
+    fn legends_and_titles_wrap_where_there_is_room() {
+        let fig = crowded(false, 5, "");
+        for (w, h) in [(390.0, 300.0), (700.0, 350.0), (1366.0, 520.0)] {
+            let l = Layout::new(&fig, w, h, 1.0);
+            assert!(
+                l.labels.iter().all(|t| t.full.is_none()),
+                "{w} px: nothing is cut: {:?}",
+                l.labels
+                    .iter()
+                    .filter(|t| t.full.is_some())
+                    .map(|t| &t.text)
+                    .collect::<Vec<_>>()
+            );
+            let words: Vec<&str> = l.labels.iter().flat_map(|t| t.text.split(' ')).collect();
+            for s in &fig.series {
+                assert!(
+                    s.label.split(' ').all(|word| words.contains(&word)),
+                    "{w} px: {}",
+                    s.label
+                );
+            }
+        }
+        // A chart too small for the legend cuts entries and keeps them whole for the hover.
+        let l = Layout::new(&crowded(false, 7, ""), 360.0, 220.0, 1.0);
+        clear(&l).unwrap();
+        let cut: Vec<&Label> = l.labels.iter().filter(|t| t.full.is_some()).collect();
+        assert!(!cut.is_empty());
+        let b = cut[0].bounds().unwrap();
+        let (full, _) = l
+            .full_text_at((b.left + b.right) / 2.0, (b.top + b.bottom) / 2.0)
+            .unwrap();
+        assert_eq!(Some(full), cut[0].full.as_deref());
+    }
+
+    /// The ink boxes are the font's: "x" sits on the baseline with the
+    /// font's x-height, half of it above the anchor; "g" descends below it.
+    #[test]
+    fn ink_boxes_are_the_glyphs() {
+        let m = Metrics::get();
+        let (x0, x1, lo, hi) = m.ink("x").unwrap();
+        // DejaVu Sans's "x": 1120 units high, from 59 to 1190 of 2048 (its glyf table).
+        assert!(
+            (hi - 1120.0 / 2048.0).abs() < 1e-9 && lo.abs() < 1e-9,
+            "{lo} {hi}"
+        );
+        assert!(x0 > 0.0 && x1 < m.width("x", 1.0));
+        assert!(m.ink("g").unwrap().2 < -0.2);
+        assert!(m.ink("   ").is_none());
+        let l = Label {
+            text: "x".into(),
+            full: None,
+            x: 100.0,
+            y: 50.0,
+            size: 20.0,
+            align: Align::Left,
+            upright: false,
+            muted: false,
+        };
+        let b = l.bounds().unwrap();
+        assert!(
+            (b.top - (50.0 - 10.0 * m.x_height)).abs() < 1e-9
+                && (b.bottom - (50.0 + 10.0 * m.x_height)).abs() < 1e-9,
+            "{b:?}"
+        );
+        let up = Label { upright: true, ..l }.bounds().unwrap();
+        assert!((up.right - up.left - (b.bottom - b.top)).abs() < 1e-9 && up.bottom <= 50.0 + 1e-9);
     }
 
     /// A frame of 400×280 pixels showing 10⁰…10³ by 10⁰…10² (or 0…3 by 0…2).

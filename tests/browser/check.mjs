@@ -4,7 +4,8 @@
 //   BURNIN_CHROMIUM  the Chromium binary
 //   BURNIN_EXPECTED  JSON {demo file: optimal_value from `burnin solve --json`}
 //   BURNIN_OUT       folder for screenshots; it also holds `<fixture>.results.json`,
-//                    what `burnin run --json` printed for each fixtures/*-experiment.json
+//                    what `burnin run --json` printed for each fixtures/*-experiment.json,
+//                    and `burnin plot`'s figures (SVG and PNG) of the ferry fixture's results
 //   BURNIN_DIST_URL, BURNIN_DIST_DIR, BURNIN_DIST_NEXT, BURNIN_VERSION  the published site (checks/site.mjs)
 // BURNIN_ONLY=TEXT runs only the checks whose name contains TEXT, or the view named TEXT.
 //
@@ -14,7 +15,7 @@
 // fresh browser context.
 import { finish } from './checks/helpers.mjs';
 
-const VIEWS = ['solution', 'experiment', 'results', 'guide', 'table1', 'library', 'share', 'editor', 'layout', 'graph', 'guests', 'site'];
+const VIEWS = ['solution', 'experiment', 'results', 'guide', 'table1', 'library', 'share', 'editor', 'layout', 'charts', 'graph', 'guests', 'site'];
 
 for (const view of VIEWS) await import(`./checks/${view}.mjs`);
 await finish();

@@ -455,16 +455,21 @@ fn browser_checks(www: PathBuf) -> Result<()> {
                 .ok_or_else(|| format!("burnin table failed on {}", results.display()))?;
             }
         }
+        // And as PNG, for the page's PNG export to be compared with pixel
+        // by pixel (checks/charts.mjs).
         for (suffix, args) in figures {
-            let svg = out.join(format!("{name}.{suffix}.svg"));
-            let mut plot = Command::new(&cli);
-            plot.arg("plot")
-                .arg(&results)
-                .arg("--output")
-                .arg(&svg)
-                .args(*args);
-            output(&mut plot)
-                .ok_or_else(|| format!("burnin plot {args:?} failed on {}", results.display()))?;
+            for ext in ["svg", "png"] {
+                let file = out.join(format!("{name}.{suffix}.{ext}"));
+                let mut plot = Command::new(&cli);
+                plot.arg("plot")
+                    .arg(&results)
+                    .arg("--output")
+                    .arg(&file)
+                    .args(*args);
+                output(&mut plot).ok_or_else(|| {
+                    format!("burnin plot {args:?} failed on {}", results.display())
+                })?;
+            }
         }
     }
     // A results file written by an earlier build must still plot, in the
