@@ -665,7 +665,8 @@ impl ResultsChart {
     /// Draws the chart into `canvas` at its pixel size, type and lines
     /// enlarged by `scale` (the device pixel ratio times any presentation
     /// scale). `{ok: true, series}` or `{ok: false, message}` when the view
-    /// cannot be drawn (the canvas then says why).
+    /// cannot be drawn (the canvas then says why), with the placed `texts`
+    /// and the `plot` area's [left, top, right, bottom] in canvas pixels.
     pub fn draw(
         &mut self,
         canvas: web_sys::HtmlCanvasElement,
@@ -693,6 +694,8 @@ impl ResultsChart {
             .map_err(|e| JsValue::from_str(&e.to_string()))?;
         let obj = Object::new();
         set(&obj, "texts", to_js(&layout.texts()));
+        let f = &layout.frame;
+        set(&obj, "plot", to_js(&[f.x0, f.y0, f.x1, f.y1]));
         match ok {
             Ok(()) => {
                 set(&obj, "ok", true);

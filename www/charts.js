@@ -65,7 +65,7 @@ export function drawInto(chart, canvas, options, cssW, cssH, typeScale = 1) {
   canvas.style.height = `${cssH}px`;
   try {
     const r = { ...chart.draw(canvas, options, ratio * typeScale), ratio };
-    drawn.set(canvas, { texts: r.texts ?? [], ratio, width: canvas.width, height: canvas.height });
+    drawn.set(canvas, { texts: r.texts ?? [], plot: r.plot ?? null, ratio, width: canvas.width, height: canvas.height });
     return r;
   } catch (e) {
     drawn.delete(canvas);
@@ -80,7 +80,8 @@ const drawn = new WeakMap();
  * The texts of the chart last drawn into `canvas`, as the core placed
  * them: `{text, full, left, top, right, bottom}` with the box of their ink
  * in canvas pixels (`full`: the whole text where `text` is shortened; the
- * hover shows it), and the canvas's size and pixel ratio; null if none.
+ * hover shows it), the plot area's [left, top, right, bottom] in canvas
+ * pixels, and the canvas's size and pixel ratio; null if none.
  */
 export function drawnTexts(canvas) {
   return drawn.get(canvas) ?? null;

@@ -775,7 +775,9 @@ export class ExperimentView {
     if (!this.chart) return;
     const canvas = $('chart');
     const w = Math.max(320, canvas.parentElement.clientWidth || 800);
-    const h = Math.round(Math.min(520, Math.max(300, w * 0.5)));
+    // Below 560 px the core puts the legend under the plot (src/chart/layout.rs),
+    // so a phone's chart is taller than it is wide, and the plot keeps its room.
+    const h = Math.round(Math.min(520, Math.max(300, w < 560 ? w * 1.25 : w * 0.5)));
     const r = drawInto(this.chart, canvas, this.chartOptions(false), w, h);
     this.ratio = r.ratio;
     canvas.dataset.series = String(r.ok ? r.series : 0);

@@ -118,6 +118,14 @@ for (const [width, density] of [[360, 1], [390, 1], [390, 2], [1024, 1], [1366, 
           if (t.text.includes('…')) assert(t.full && t.full.length > t.text.length - 1, `${where}: "${t.text}" is cut and keeps its whole text`);
         });
         if (view === 'cumulative') console.log(`     ${where}: ${c.texts.length} texts, the browser's measure at most ${worst.toFixed(2)} px over the core's boxes`);
+        if (view === 'cumulative') {
+          // The plot keeps its room beside a legend of five long labels: at
+          // least 180 CSS px high at every width (on a phone the legend goes
+          // under the plot and the chart grows taller than it is wide).
+          const [l, t, r, b] = c.plot.map((v) => v / c.ratio);
+          console.log(`     ${where}: plot ${(r - l).toFixed(0)} × ${(b - t).toFixed(0)} CSS px`);
+          assert(b - t >= 180, `${where}: the plot is ${(b - t).toFixed(0)} px high, at least 180`);
+        }
         if (view !== 'difference') {
           const words = new Set(c.texts.flatMap((t) => t.text.split(' ')));
           for (const label of Object.values(longLabels)) {
