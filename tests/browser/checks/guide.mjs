@@ -281,3 +281,33 @@ await check('at 390 px, by touch: each header\'s "?" opens its definition on a t
     await ctx.close();
   }
 });
+
+await check('at 1366 px the results table fits its card with a header of at most 160 px, and the export buttons keep their own height', async () => {
+  const ctx = await browser.newContext({ viewport: { width: 1366, height: 768 }, deviceScaleFactor: 1, acceptDownloads: true });
+  try {
+    const page = await ctx.newPage();
+    await page.goto(url + '/');
+    await shownValue(page, defaultName);
+    await page.click('#tab-experiment');
+    await runAndWait(page);
+    // Before: 208 px (the ε headers wrapped to 13 lines at the width of
+    // their cells) and the buttons beside the table-format chooser
+    // stretched to its height (106 px).
+    const m = await page.evaluate(() => {
+      const wrap = document.getElementById('results-table');
+      const buttons = [...document.querySelectorAll('.export-row > button, .table-export button')].filter((b) => !b.hidden);
+      return {
+        head: wrap.querySelector('thead').getBoundingClientRect().height,
+        scroll: wrap.scrollWidth, client: wrap.clientWidth,
+        tallest: Math.max(...buttons.map((b) => b.getBoundingClientRect().height)),
+        buttons: buttons.length,
+      };
+    });
+    console.log(`     (1366 px: results-table header ${m.head.toFixed(1)} px, tallest export button ${m.tallest.toFixed(1)} px)`);
+    assert(m.head <= 160, `the header is at most 160 px high (${m.head})`);
+    assert(m.scroll <= m.client, `the table fits its card (${m.scroll} > ${m.client})`);
+    assert(m.buttons >= 9 && m.tallest <= 48, `no export button is stretched (${m.buttons} buttons, the tallest ${m.tallest} px)`);
+  } finally {
+    await ctx.close();
+  }
+});
