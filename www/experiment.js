@@ -131,6 +131,8 @@ export class ExperimentView {
     $('present-close').addEventListener('click', () => this.closePresent());
     document.addEventListener('keydown', (e) => { if (e.key === 'Escape' && !$('presenter').hidden) this.closePresent(); });
     $('present-caption').addEventListener('input', () => { this.presentCaption = $('present-caption').value; this.drawPresent(); });
+    // The caption is one paragraph: Enter does not start a new line.
+    $('present-caption').addEventListener('keydown', (e) => { if (e.key === 'Enter') e.preventDefault(); });
     window.addEventListener('resize', () => { this.draw(); if (!$('presenter').hidden) this.drawPresent(); });
     const canvas = $('chart');
     canvas.addEventListener('mousemove', (e) => this.hover(e));

@@ -33,6 +33,12 @@ for (const width of [360, 390, 1024]) {
       await runAndWait(page);
       assert(await fits(), 'results: no sideways scroll');
       await page.click('#present');
+      // The chart's own caption reads whole, wrapped to the screen (it was a
+      // one-line field that showed its start only on a phone).
+      const caption = await page.$eval('#present-caption', (t) => ({ text: t.value.length, sw: t.scrollWidth, cw: t.clientWidth, sh: t.scrollHeight, ch: t.clientHeight, bottom: t.getBoundingClientRect().bottom }));
+      assert(caption.text > 40 && caption.sw <= caption.cw && caption.sh <= caption.ch + 1 && caption.bottom <= 760, `the caption reads whole: ${JSON.stringify(caption)}`);
+      const closeFirst = await page.locator('#present-close').boundingBox();
+      assert(closeFirst.y + closeFirst.height <= 760 && closeFirst.x + closeFirst.width <= width, `Close is on screen beside the whole caption: ${JSON.stringify(closeFirst)}`);
       await page.fill('#present-caption', 'For Thursday');
       const close = await page.locator('#present-close').boundingBox();
       assert(close.y + close.height <= 760 && close.x + close.width <= width, `Close is on screen: ${JSON.stringify(close)}`);
