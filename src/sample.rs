@@ -317,37 +317,15 @@ pub fn normal<R: Rng>(rng: &mut R) -> f64 {
 }
 
 /// A Gamma(shape, 1) draw (Marsaglia & Tsang 2000; for shape < 1 the
-/// boost Gamma(shape + 1)·U^(1/shape) from the same paper).
+/// boost Gamma(shape + 1)·U^(1/shape) from the same paper): [`Gamma`]'s
+/// draw, its constants computed for this one draw.
 pub fn gamma<R: Rng>(rng: &mut R, shape: f64) -> f64 {
-    if shape == 1.0 {
-        // Gamma(1, 1) is the standard exponential.
-        return exponential(rng);
-    }
-    if shape < 1.0 {
-        let u: f64 = rng.random();
-        return gamma(rng, shape + 1.0) * libm::pow(u, 1.0 / shape);
-    }
-    let d = shape - 1.0 / 3.0;
-    let c = 1.0 / (9.0 * d).sqrt();
-    loop {
-        let x = normal(rng);
-        let v = 1.0 + c * x;
-        if v <= 0.0 {
-            continue;
-        }
-        let v = v * v * v;
-        let u: f64 = rng.random();
-        if u < 1.0 - 0.0331 * x * x * x * x
-            || libm::log(u) < 0.5 * x * x + d * (1.0 - v + libm::log(v))
-        {
-            return d * v;
-        }
-    }
+    Gamma::new(shape).draw(rng)
 }
 
-/// Gamma(shape, 1) draws with the constants of [`gamma`] computed once, for
-/// loops of many draws of one shape (OPSRL's J posterior draws per row): the
-/// same draws and bits as [`gamma`] with that shape.
+/// Gamma(shape, 1) draws (Marsaglia & Tsang 2000) with their constants
+/// computed once, for loops of many draws of one shape (OPSRL's J posterior
+/// draws per row); [`gamma`] is one draw.
 #[derive(Debug, Clone, Copy)]
 pub struct Gamma {
     /// Marsaglia–Tsang's d = shape′ − 1/3 and c = 1/√(9d) for shape′ =
