@@ -1,6 +1,6 @@
 //! The runner's clock and threads for native front ends (`burnin run`, the
 //! tests, a Python package): std's scoped threads and `Instant`. Like
-//! `src/wasm.rs` this is a front end's part, not the core's: the core's
+//! `src/wasm/` this is a front end's part, not the core's: the core's
 //! runner (`experiment::Runner`) only calls the `Pool` and `Clock` it is
 //! handed.
 

@@ -178,7 +178,7 @@ fn the_runner_is_on_the_diagram_and_every_front_end_runs_through_it() {
             "burnin run does not call the runner's {call}"
         );
     }
-    let wasm = read("src/wasm.rs");
+    let wasm = read("src/wasm/mod.rs");
     for call in [
         "Runner::new(",
         "Runner::lanes(",
@@ -201,7 +201,7 @@ fn the_runner_is_on_the_diagram_and_every_front_end_runs_through_it() {
     }
     let mut front = vec![
         ("python/src/run.rs".to_string(), python),
-        ("src/wasm.rs".to_string(), wasm),
+        ("src/wasm/mod.rs".to_string(), wasm),
         ("src/native.rs".to_string(), read("src/native.rs")),
     ];
     for e in std::fs::read_dir(root().join("src/bin/burnin")).unwrap() {
@@ -265,9 +265,9 @@ fn the_cli_is_a_module_per_command_and_no_file_is_long() {
 }
 
 /// The names the page can import from the wasm module: top-level items of
-/// src/wasm.rs marked `#[wasm_bindgen]`, under their JS name.
+/// src/wasm/ marked `#[wasm_bindgen]`, under their JS name.
 fn wasm_exports() -> Vec<String> {
-    let src = read("src/wasm.rs");
+    let src = read("src/wasm/mod.rs") + "\n" + &read("src/wasm/chart.rs");
     let lines: Vec<&str> = src.lines().collect();
     let mut out = Vec::new();
     for (i, l) in lines.iter().enumerate() {
