@@ -5,6 +5,7 @@ import { runExperiment, checkGuest, checkExperiment, estimateRun, freshSeed } fr
 import * as store from './store.js';
 import { timeLeft } from './eta.js';
 import { el, download, safeName, definitionButton, closeDefinition } from './dom.js';
+import { initGuide, offerGuide } from './guide.js';
 import { openChart, drawInto, EXPORT } from './charts.js';
 import { short, grouped, valueColour, inkOn } from './format.js';
 import { sweepableParams } from './generator-form.js';
@@ -43,9 +44,6 @@ export const resultsOf = (doc, experiment = null) => ({
 
 /** Why results opened from a results file cannot go to the library. */
 const SAVE_WHY_NOT = 'Not in the library: a results file does not hold the experiment that made it, and a library entry keeps both. Keep the file itself (Results JSON), or open the experiment and run it.';
-
-/** The session storage key that says the guide was offered in this browser session. */
-const GUIDE_OFFERED = 'burnin:v1:guide-offered';
 
 /** Resolves in a later task (after the browser has had its turn). */
 const nextTask = () => new Promise((resolve) => setTimeout(resolve, 0));
@@ -138,7 +136,7 @@ export class ExperimentView {
     canvas.addEventListener('mousemove', (e) => this.hover(e));
     canvas.addEventListener('mouseleave', () => { $('chart-tip').hidden = true; });
     this.setSweepChoices(null);
-    this.initGuide();
+    initGuide((key) => this.terms(key));
   }
 
   /** The core's definition of a number shown (src/catalogue.rs, GLOSSARY). */
@@ -155,48 +153,6 @@ export class ExperimentView {
     const th = el('th', text, { title: keys.map((k) => this.meaning(k)).join(' '), scope: 'col' });
     th.append(definitionButton(what, this.terms(...keys)));
     return th;
-  }
-
-  /**
-   * The "How to read these results" panel: each term's "?" opens the core's
-   * definition; the page's caution about toy models closes it. Opened from
-   * its link beside the results heading, and offered once per browser
-   * session, after the first run that finishes (`offerGuide`).
-   */
-  initGuide() {
-    for (const slot of document.querySelectorAll('#guide [data-def]')) {
-      const [t] = this.terms(slot.dataset.def);
-      if (t) slot.replaceWith(definitionButton(t.name, [t]));
-    }
-    $('guide-caveat').textContent = $('results-caution').textContent;
-    $('guide-open').addEventListener('click', () => ($('guide').hidden ? this.showGuide() : this.hideGuide()));
-    $('guide-close').addEventListener('click', () => this.hideGuide(true));
-    $('guide').addEventListener('keydown', (e) => { if (e.key === 'Escape' && $('definition')?.hidden !== false) this.hideGuide(true); });
-  }
-
-  showGuide() {
-    $('guide').hidden = false;
-    $('guide-open').setAttribute('aria-expanded', 'true');
-    $('guide').scrollIntoView({ block: 'start', behavior: 'instant' });
-    $('guide').focus({ preventScroll: true });
-  }
-
-  hideGuide(refocus = false) {
-    closeDefinition();
-    $('guide').hidden = true;
-    $('guide-open').setAttribute('aria-expanded', 'false');
-    if (refocus) $('guide-open').focus();
-  }
-
-  /** Shows the guide after a run, the first time in this browser session only. */
-  offerGuide() {
-    try {
-      if (sessionStorage.getItem(GUIDE_OFFERED)) return;
-      sessionStorage.setItem(GUIDE_OFFERED, 'yes');
-    } catch {
-      return; // no session storage: the link offers it, never unasked
-    }
-    this.showGuide();
   }
 
   /** The glossary under the results: every number the page shows, defined once in the core. */
@@ -620,7 +576,7 @@ export class ExperimentView {
         $('exp-status').textContent = `Done in ${secs.toFixed(1)} s on ${job.workers} worker${job.workers === 1 ? '' : 's'}.`;
         this.hooks.changed();
         $('results').scrollIntoView({ block: 'start', behavior: 'instant' });
-        this.offerGuide();
+        offerGuide();
       }
     } catch (err) {
       $('exp-status').textContent = `The run failed: ${err.message}`;
